@@ -1,0 +1,13 @@
+// Package demo holds the built-in demo input: an invented molecule, labelled
+// as such, that the command line runs when it is given no file.
+package demo
+
+import _ "embed"
+
+// Name is the file name the demo reports as its source.
+const Name = "demo.yaml"
+
+// Text is the demo input file.
+//
+//go:embed demo.yaml
+var Text []byte

@@ -1,0 +1,183 @@
+package rrkm
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// MaxFineBins bounds the fine-grain array (8 bytes a bin): 5e7 bins is 400 MB,
+// the most a count may take. Larger requests fail with ErrTooLarge.
+const MaxFineBins = 50_000_000
+
+// ErrTooLarge reports an energy range and fine grain that would not fit in
+// memory.
+var ErrTooLarge = errors.New("rrkm: state count too large for memory")
+
+// Counter holds the fine-grain count of a species' quantized states
+// (vibrations and electronic levels) and evaluates sums and densities with the
+// classical rotors convolved in, at any energy up to its ceiling.
+type Counter struct {
+	species *Species
+	fine    float64   // δ, cm⁻¹
+	comb    []float64 // comb[j]: states at energy j·δ (quantized degrees only)
+	ceiling float64   // cm⁻¹
+	rot     *powerSum // nil if the species has no classical rotor
+	cum0    []float64 // cum0[j] = Σ_{k<j} comb[k]
+	cum1    []float64 // cum1[j] = Σ_{k<j} k·comb[k]
+	rotB    float64
+	rotDim  int
+}
+
+// NewCounter counts the quantized states of s on a fine grain of fine cm⁻¹ up
+// to ceiling cm⁻¹ by the Beyer–Swinehart algorithm (Beyer & Swinehart 1973),
+// with electronic levels convolved in as quantized levels (Stein & Rabinovitch
+// 1973).
+func NewCounter(s *Species, fine, ceiling float64) (*Counter, error) {
+	if err := s.Validate(); err != nil {
+		return nil, err
+	}
+	if !(fine > 0) || !(ceiling > 0) || math.IsInf(ceiling, 0) {
+		return nil, fmt.Errorf("rrkm: species %q: fine grain %v and ceiling %v cm-1 must be positive", s.Name, fine, ceiling)
+	}
+	for i, v := range s.Vibrations {
+		if v < fine {
+			return nil, fmt.Errorf("rrkm: species %q: vibrations[%d] = %v cm-1 is below the fine grain %v cm-1; use a finer grain", s.Name, i, v, fine)
+		}
+	}
+	nf := math.Ceil(ceiling/fine) + 2
+	if nf > MaxFineBins {
+		return nil, fmt.Errorf("%w: species %q: %.3g fine bins of %v cm-1 up to %v cm-1 (at most %d)", ErrTooLarge, s.Name, nf, fine, ceiling, MaxFineBins)
+	}
+	n := int(nf)
+	comb := make([]float64, n)
+	comb[0] = 1
+	for _, v := range s.Vibrations {
+		addOscillator(comb, v/fine)
+	}
+	comb = convolveLevels(comb, s.levels(), fine)
+	c := &Counter{species: s, fine: fine, comb: comb, ceiling: ceiling}
+	c.cum0 = make([]float64, n+1)
+	c.cum1 = make([]float64, n+1)
+	for j, x := range comb {
+		c.cum0[j+1] = c.cum0[j] + x
+		c.cum1[j+1] = c.cum1[j] + float64(j)*x
+	}
+	c.rotB, c.rotDim = s.rotorFactor()
+	if c.rotDim > 0 {
+		c.rot = newPowerSum(comb, fine)
+	}
+	return c, nil
+}
+
+// split returns the grain index n and fraction f of an energy r = x/δ in
+// fine grains, rounding fractions within 1e-9 of a grain to it.
+func split(r float64) (int, float64) {
+	n := math.Floor(r)
+	f := r - n
+	if f < 1e-9 {
+		f = 0
+	} else if f > 1-1e-9 {
+		n, f = n+1, 0
+	}
+	return int(n), f
+}
+
+// addOscillator adds one harmonic oscillator of frequency r fine grains to the
+// comb in place: the Beyer–Swinehart recursion c[j] += c[j−r] for integer r.
+// For a fractional r = n+f each quantum is shared between n and n+1 grains
+// with weights 1−f and f, which keeps its mean energy exactly.
+func addOscillator(c []float64, r float64) {
+	n, f := split(r)
+	if f == 0 {
+		for j := n; j < len(c); j++ {
+			c[j] += c[j-n]
+		}
+		return
+	}
+	g := 1 - f
+	c[n] += g * c[0]
+	for j := n + 1; j < len(c); j++ {
+		c[j] += g*c[j-n] + f*c[j-n-1]
+	}
+}
+
+// convolveLevels convolves the comb with a list of quantized levels (energies
+// in cm⁻¹ above the lowest, with degeneracies), split like addOscillator.
+func convolveLevels(c []float64, levels []Level, fine float64) []float64 {
+	if len(levels) == 1 && levels[0].Energy == 0 && levels[0].Degeneracy == 1 {
+		return c
+	}
+	out := make([]float64, len(c))
+	for _, l := range levels {
+		n, f := split(l.Energy / fine)
+		for j := len(c) - 1; j >= n; j-- {
+			x := (1 - f) * c[j-n]
+			if f > 0 && j-n-1 >= 0 {
+				x += f * c[j-n-1]
+			}
+			out[j] += l.Degeneracy * x
+		}
+	}
+	return out
+}
+
+// Fine returns the fine grain δ in cm⁻¹.
+func (c *Counter) Fine() float64 { return c.fine }
+
+// Ceiling returns the highest energy in cm⁻¹ the counter covers.
+func (c *Counter) Ceiling() float64 { return c.ceiling }
+
+// Comb returns the fine-grain counts of quantized states: element j is the
+// number of states at energy j·δ. The slice is the counter's own; do not
+// modify it.
+func (c *Counter) Comb() []float64 { return c.comb }
+
+// Sum returns the sum of states W(E), the number of states with energy below
+// e cm⁻¹ (a state lying exactly at e counts one half), rotors included.
+func (c *Counter) Sum(e float64) float64 {
+	if e <= 0 {
+		if e == 0 && c.rot == nil {
+			return c.comb[0] / 2
+		}
+		return 0
+	}
+	c.check(e)
+	if c.rot != nil {
+		// W_rot(x) = B·x^(D/2)/Γ(D/2+1).
+		p := float64(c.rotDim) / 2
+		return c.rotB / math.Gamma(p+1) * c.rot.at(e, p)
+	}
+	r := e / c.fine
+	n, f := split(r)
+	if f == 0 {
+		return c.cum0[n] + c.comb[n]/2
+	}
+	return c.cum0[n+1]
+}
+
+// IntegratedSum returns ∫₀^e W(x) dx in cm⁻¹, used for grain averages of W.
+func (c *Counter) IntegratedSum(e float64) float64 {
+	if e <= 0 {
+		return 0
+	}
+	c.check(e)
+	if c.rot != nil {
+		p := float64(c.rotDim)/2 + 1
+		return c.rotB / math.Gamma(p+1) * c.rot.at(e, p)
+	}
+	// Σ_{jδ<e} comb[j]·(e − jδ): W is a step function, so its integral is
+	// piecewise linear and exact from two prefix sums.
+	n, f := split(e / c.fine)
+	k := n
+	if f > 0 {
+		k = n + 1
+	}
+	return e*c.cum0[k] - c.fine*c.cum1[k]
+}
+
+func (c *Counter) check(e float64) {
+	if e > c.ceiling*(1+1e-12)+c.fine {
+		panic(fmt.Sprintf("rrkm: species %q: energy %v cm-1 above the counted ceiling %v cm-1", c.species.Name, e, c.ceiling))
+	}
+}

@@ -1,0 +1,30 @@
+// Package rrkm counts the quantum states of molecules and transition states and
+// computes RRKM microcanonical rate constants k(E) and the canonical
+// transition-state-theory rate constant k∞(T). It knows nothing of pressure.
+//
+// Units: energies in cm⁻¹ measured from the reactant's zero-point level,
+// temperatures in K, densities of states in states per cm⁻¹, sums of states
+// dimensionless, rate constants in s⁻¹.
+//
+// State counting follows the Beyer–Swinehart direct count (Beyer & Swinehart,
+// Commun. ACM 16, 379, 1973) on a fine grain δ, extended to lists of quantized
+// levels as by Stein & Rabinovitch (J. Chem. Phys. 58, 2438, 1973). A frequency
+// that is not a multiple of δ is split between the two neighbouring grains with
+// weights that keep its mean energy, so the counted partition function equals
+// the harmonic one to second order in δ/kT instead of first. Classical rotors
+// (external rotation and free internal rotors) are added by convolution with
+// their combined analytic density ρ(E) = B·E^(D/2−1)/Γ(D/2), whose Laplace
+// transform is exactly the product of the classical rotor partition functions.
+//
+// Grains: grain i of width Δ is centred on E_i = i·Δ and covers
+// [(i−½)Δ, (i+½)Δ). Counts per grain are exact integrals of ρ over the grain;
+// k(E) on a grain uses the grain average of W‡(E−E0), so that the thermal
+// average of k(E) reproduces canonical TST to second order in Δ/kT
+// (Holbrook, Pilling & Robertson, Unimolecular Reactions, 2nd ed., Wiley 1996,
+// ch. 4 and 6).
+//
+// External symmetry numbers and optical isomers enter only through the
+// reaction-path degeneracy L = σ_R·m‡/(σ‡·m_R) (Pollak & Pechukas, J. Am. Chem.
+// Soc. 100, 2984, 1978); the densities and partition functions here exclude
+// them, so k(E) = L·c·W‡(E−E0)/ρ(E) and k∞ = L·(kT/h)·(Q‡/Q)·exp(−E0/kT).
+package rrkm

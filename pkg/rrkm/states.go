@@ -1,0 +1,91 @@
+package rrkm
+
+import (
+	"fmt"
+	"math"
+)
+
+// Grains describes the grid on which sums, densities and k(E) are reported:
+// N grains of width Width cm⁻¹, grain i centred on i·Width.
+type Grains struct {
+	Width float64
+	N     int
+}
+
+// Energy returns the centre of grain i in cm⁻¹.
+func (g Grains) Energy(i int) float64 { return float64(i) * g.Width }
+
+// Top returns the upper edge of the last grain in cm⁻¹.
+func (g Grains) Top() float64 { return (float64(g.N) - 0.5) * g.Width }
+
+// GrainsTo returns the grains of width w whose last one contains ceiling.
+func GrainsTo(w, ceiling float64) Grains {
+	return Grains{Width: w, N: int(math.Floor(ceiling/w+0.5)) + 1}
+}
+
+// Counts returns the number of states in each grain, the exact integral of
+// ρ over [(i−½)Δ, (i+½)Δ), shifted up by offset cm⁻¹ (the threshold of a
+// transition state; 0 for a reactant).
+func (c *Counter) Counts(g Grains, offset float64) []float64 {
+	c.need(g, offset)
+	out := make([]float64, g.N)
+	lo := c.Sum(-0.5*g.Width - offset)
+	for i := range out {
+		hi := c.Sum((float64(i)+0.5)*g.Width - offset)
+		out[i] = hi - lo
+		lo = hi
+	}
+	return out
+}
+
+// Densities returns the grain-averaged density of states in states per cm⁻¹.
+func (c *Counter) Densities(g Grains) []float64 {
+	n := c.Counts(g, 0)
+	for i := range n {
+		n[i] /= g.Width
+	}
+	return n
+}
+
+// SumsAt returns W at the grain centres (states below E_i, half of any at E_i).
+func (c *Counter) SumsAt(g Grains) []float64 {
+	c.need(g, 0)
+	out := make([]float64, g.N)
+	for i := range out {
+		out[i] = c.Sum(g.Energy(i))
+	}
+	return out
+}
+
+// AveragedSums returns the grain averages of W(E − offset), the sum of states
+// measured from a threshold at offset cm⁻¹: the quantity k(E) needs, because a
+// grain average keeps the thermal average of k(E) equal to canonical TST.
+func (c *Counter) AveragedSums(g Grains, offset float64) []float64 {
+	c.need(g, offset)
+	out := make([]float64, g.N)
+	lo := c.IntegratedSum(-0.5*g.Width - offset)
+	for i := range out {
+		hi := c.IntegratedSum((float64(i)+0.5)*g.Width - offset)
+		out[i] = (hi - lo) / g.Width
+		lo = hi
+	}
+	return out
+}
+
+func (c *Counter) need(g Grains, offset float64) {
+	if top := g.Top() - offset; top > c.ceiling+c.fine {
+		panic(fmt.Sprintf("rrkm: species %q: grains reach %v cm-1, counted only to %v cm-1", c.species.Name, top, c.ceiling))
+	}
+}
+
+// CountedQ returns the partition function of the counted states on grains g,
+// Σ N_i·exp(−E_i/kT), with N_i = Counts(g, 0). It equals PartitionFunction to
+// O((Δ/kT)²) when the grains reach well above the thermal energies.
+func CountedQ(counts []float64, g Grains, tK float64) float64 {
+	beta := 1 / kT(tK)
+	q := 0.0
+	for i, n := range counts {
+		q += n * math.Exp(-beta*g.Energy(i))
+	}
+	return q
+}

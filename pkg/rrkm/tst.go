@@ -1,0 +1,50 @@
+package rrkm
+
+import (
+	"math"
+
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// PathDegeneracy returns the reaction-path degeneracy
+// L = (σ_R·m‡)/(σ‡·m_R) from the external symmetry numbers σ and optical-isomer
+// counts m of the reactant and transition state (Pollak & Pechukas 1978;
+// Gilbert & Smith, Theory of Unimolecular and Recombination Reactions, 1990,
+// §4.5).
+func PathDegeneracy(reactant, ts *Species) float64 {
+	return orOne(reactant.Symmetry) * orOne(ts.OpticalIsomers) /
+		(orOne(ts.Symmetry) * orOne(reactant.OpticalIsomers))
+}
+
+func orOne(x float64) float64 {
+	if x <= 0 {
+		return 1
+	}
+	return x
+}
+
+// KInf returns the canonical transition-state-theory rate constant
+// k∞(T) = L·(k_BT/h)·(Q‡/Q)·exp(−E0/kT) in s⁻¹, with Q the internal partition
+// functions (translation cancels for a unimolecular step; Eyring, J. Chem.
+// Phys. 3, 107, 1935).
+func KInf(reactant, ts *Species, l, tK float64) float64 {
+	kt := kT(tK)
+	// k_BT/h in s⁻¹ is c·kT with kT in cm⁻¹.
+	return l * units.LightCm * kt * ts.InternalQ(tK) / reactant.InternalQ(tK) * math.Exp(-ts.E0/kt)
+}
+
+// ThermalAverage returns the Boltzmann average Σ N_i k_i e^(−E_i/kT) / Σ N_i
+// e^(−E_i/kT) of a microcanonical rate k over grains with counts N.
+func ThermalAverage(counts, k []float64, g Grains, tK float64) float64 {
+	if len(counts) != len(k) {
+		panic("rrkm: ThermalAverage: counts and k differ in length")
+	}
+	beta := 1 / kT(tK)
+	num, den := 0.0, 0.0
+	for i, n := range counts {
+		w := n * math.Exp(-beta*g.Energy(i))
+		num += w * k[i]
+		den += w
+	}
+	return num / den
+}
