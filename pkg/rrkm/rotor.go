@@ -16,18 +16,24 @@ import "math"
 type powerSum struct {
 	c     []float64
 	delta float64
+	block int                // fine bins a block
 	mom   [][moments]float64 // mom[b][k] = Σ_{j in block b} c_j·(jδ − centre_b)^k
 }
 
 const (
-	block      = 128
 	nearBlocks = 3
 	moments    = 9
 )
 
+// newPowerSum groups the comb in blocks of about sqrt(N·moments/nearBlocks)
+// bins (a power of two), which balances the far and near costs of at.
 func newPowerSum(c []float64, delta float64) *powerSum {
+	block := 64
+	for block < 1024 && block*block < len(c)*moments/nearBlocks {
+		block *= 2
+	}
 	nb := len(c) / block
-	ps := &powerSum{c: c, delta: delta, mom: make([][moments]float64, nb)}
+	ps := &powerSum{c: c, delta: delta, block: block, mom: make([][moments]float64, nb)}
 	for b := range nb {
 		centre := float64(b*block) + float64(block-1)/2
 		for j := b * block; j < (b+1)*block; j++ {
@@ -42,8 +48,14 @@ func newPowerSum(c []float64, delta float64) *powerSum {
 	return ps
 }
 
-// at returns S_p(x) for x > 0.
+// at returns S_p(x) for x > 0 and p a positive multiple of ½ (rotor
+// dimensions are whole numbers).
 func (ps *powerSum) at(x, p float64) float64 {
+	block := ps.block
+	twoP := int(2 * p)
+	if float64(twoP) != 2*p || twoP <= 0 {
+		panic("rrkm: powerSum exponent must be a positive multiple of 1/2")
+	}
 	// Binomial coefficients C(p,k)·(−1)^k.
 	var coef [moments]float64
 	coef[0] = 1
@@ -71,14 +83,27 @@ func (ps *powerSum) at(x, p float64) float64 {
 			t += coef[k] * m[k] * r
 			r *= inv
 		}
-		sum += math.Pow(y, p) * t
+		sum += powHalf(y, twoP) * t
 	}
 	for j := farBlocks * block; j <= last; j++ {
 		if w := ps.c[j]; w != 0 {
 			if y := x - float64(j)*ps.delta; y > 0 {
-				sum += w * math.Pow(y, p)
+				sum += w * powHalf(y, twoP)
 			}
 		}
 	}
 	return sum
+}
+
+// powHalf returns y^(twoP/2) for y > 0 with multiplications and at most one
+// square root, several times faster than math.Pow.
+func powHalf(y float64, twoP int) float64 {
+	r := 1.0
+	for range twoP / 2 {
+		r *= y
+	}
+	if twoP%2 == 1 {
+		r *= math.Sqrt(y)
+	}
+	return r
 }
