@@ -18,9 +18,10 @@ func (g Grains) Energy(i int) float64 { return float64(i) * g.Width }
 // Top returns the upper edge of the last grain in cm⁻¹.
 func (g Grains) Top() float64 { return (float64(g.N) - 0.5) * g.Width }
 
-// GrainsTo returns the grains of width w whose last one contains ceiling.
+// GrainsTo returns the grains of width w that lie wholly below ceiling (at
+// least one).
 func GrainsTo(w, ceiling float64) Grains {
-	return Grains{Width: w, N: int(math.Floor(ceiling/w+0.5)) + 1}
+	return Grains{Width: w, N: max(1, int(math.Floor(ceiling/w+0.5+1e-9)))}
 }
 
 // Counts returns the number of states in each grain, the exact integral of

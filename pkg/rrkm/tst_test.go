@@ -55,8 +55,11 @@ func TestThermalAverageEqualsCanonical(t *testing.T) {
 			}
 			l := PathDegeneracy(r, ts)
 			m := RRKM(rc, tc, l, GrainsTo(10, ceiling-10))
+			worst := 0.0
+			defer func() { t.Logf("%s: worst |<k(E)>/k∞ − 1| = %.2g", r.Name, worst) }()
 			for _, tK := range temps {
 				got, want := m.ThermalK(tK), KInf(r, ts, l, tK)
+				worst = math.Max(worst, math.Abs(got/want-1))
 				if !scalar.EqualWithinRel(got, want, tol) {
 					t.Errorf("%v K: <k(E)> = %.6g, k∞ = %.6g s-1 (ratio %.6f)", tK, got, want, got/want)
 				}

@@ -1,0 +1,127 @@
+package main
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/spf13/pflag"
+
+	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+type microOptions struct {
+	json, quiet bool
+	step        string
+	energy      energyOptions
+}
+
+func (o *microOptions) addFlags(fs *pflag.FlagSet) {
+	fs.BoolVar(&o.json, "json", false, "print one JSON object (every grain) instead of tables")
+	fs.StringVar(&o.step, "step", "2000 cm-1", "energy spacing of the k(E) rows in the terminal table, with its unit")
+	o.energy.addFlags(fs)
+	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no chatter or warnings on stderr")
+}
+
+func (o *microOptions) validate(args []string) error {
+	if len(args) > 1 {
+		return usagef("micro takes at most one input file, got %d", len(args))
+	}
+	if _, err := units.Parse(o.step, units.Energy); err != nil {
+		return usagef("--step: %v", err)
+	}
+	return o.energy.check()
+}
+
+func runMicroCmd(args []string, s streams) error {
+	var o microOptions
+	fs := newFlags("micro", "micro [flags] [FILE]",
+		"  falloff micro                          # the built-in demo\n"+
+			"  falloff micro ring.yaml --grain \"20 cm-1\"\n"+
+			"  falloff micro ring.yaml --json > micro.json", s)
+	o.addFlags(fs)
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if err := o.validate(fs.Args()); err != nil {
+		return err
+	}
+	m, err := loadModel(fs.Args(), o.quiet || o.json, s)
+	if err != nil {
+		return err
+	}
+	return runMicro(o, m, s)
+}
+
+type microChannel struct {
+	Name           string    `json:"name"`
+	E0             float64   `json:"E0_cm-1"`
+	L              float64   `json:"path_degeneracy"`
+	Grain          float64   `json:"grid_cm-1"`
+	Energies       []float64 `json:"energies_cm-1"`
+	K              []float64 `json:"k_per_s"`
+	Temperatures   []float64 `json:"temperatures_K"`
+	KInf           []float64 `json:"k_inf"`
+	KInfIntegrated []float64 `json:"k_inf_integrated"`
+}
+
+type microReport struct {
+	File     string         `json:"file"`
+	Note     string         `json:"note"`
+	Channels []microChannel `json:"channels"`
+}
+
+const microNote = "energies from the reactant zero-point level; k in s-1; k_inf is canonical TST, " +
+	"k_inf_integrated the Boltzmann average of k(E) on the same grains"
+
+func microOf(ch *channel, temps []float64) (microChannel, error) {
+	mi := rrkm.RRKM(ch.rc, ch.tc, ch.l, ch.grains)
+	out := microChannel{Name: ch.name, E0: ch.ts.E0, L: ch.l, Grain: ch.grains.Width,
+		Energies: make([]float64, ch.grains.N), K: mi.K, Temperatures: temps}
+	for i := range out.Energies {
+		out.Energies[i] = ch.grains.Energy(i)
+	}
+	for _, t := range temps {
+		out.KInf = append(out.KInf, rrkm.KInf(&ch.reactant.Species, &ch.ts.Species, ch.l, t))
+		out.KInfIntegrated = append(out.KInfIntegrated, mi.ThermalK(t))
+	}
+	for _, xs := range [][]float64{out.K, out.KInf, out.KInfIntegrated} {
+		if err := finite("k", xs...); err != nil {
+			return out, err
+		}
+	}
+	return out, nil
+}
+
+func runMicro(o microOptions, m *input.Model, s streams) error {
+	ch, err := newChannel(m, &o.energy)
+	if err != nil {
+		return err
+	}
+	mc, err := microOf(ch, m.Temperatures)
+	if err != nil {
+		return err
+	}
+	if o.json {
+		return writeJSON(s.out, microReport{File: m.File, Note: microNote, Channels: []microChannel{mc}})
+	}
+	step, _ := units.Parse(o.step, units.Energy)
+	fmt.Fprintf(s.out, "%s: %s\nchannel %s: E0 = %s cm-1 (%s kcal/mol), L = %g, %s cm-1 grains\n\n",
+		m.File, m.Title, mc.Name, numE(mc.E0), num(mc.E0/units.Cm1PerKcalPerMol), mc.L, num(mc.Grain))
+	var rows [][]string
+	first := int(math.Ceil(mc.E0 / mc.Grain))
+	every := max(1, int(math.Round(step/mc.Grain)))
+	for i := first; i < len(mc.Energies); i += every {
+		rows = append(rows, []string{numE(mc.Energies[i]), numE(mc.Energies[i] - mc.E0), num(mc.K[i])})
+	}
+	if err := renderTable(s.out, []string{"E / cm-1", "E - E0 / cm-1", "k(E) / s-1"}, rows); err != nil {
+		return err
+	}
+	fmt.Fprintln(s.out, "\nCanonical TST against the thermal average of k(E) (they must agree):")
+	rows = rows[:0]
+	for i, t := range mc.Temperatures {
+		rows = append(rows, []string{num(t), num(mc.KInf[i]), num(mc.KInfIntegrated[i]), num6(mc.KInfIntegrated[i] / mc.KInf[i])})
+	}
+	return renderTable(s.out, []string{"T / K", "k∞ TST / s-1", "<k(E)> / s-1", "ratio"}, rows)
+}

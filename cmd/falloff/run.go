@@ -1,0 +1,152 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// Exit codes (documented in README.md and `falloff help`).
+const (
+	exitOK        = 0
+	exitInput     = 1 // bad input file or value
+	exitUsage     = 2 // bad command line
+	exitNumerical = 3 // a computation failed or produced a non-finite number
+)
+
+// streams carries the standard streams into a verb, so tests run verbs
+// in-process with buffers.
+type streams struct {
+	in       io.Reader
+	out, err io.Writer
+}
+
+// usageError is a mistake on the command line.
+type usageError struct{ msg string }
+
+func (e *usageError) Error() string { return e.msg }
+
+func usagef(format string, a ...any) error { return &usageError{fmt.Sprintf(format, a...)} }
+
+// numericalError is a computation that failed on valid input.
+type numericalError struct{ err error }
+
+func (e *numericalError) Error() string { return e.err.Error() }
+func (e *numericalError) Unwrap() error { return e.err }
+
+type verb struct {
+	name, summary string
+	run           func(args []string, s streams) error
+}
+
+func verbs() []verb {
+	return []verb{
+		{"check", "validate an input file and summarise what it describes", runCheckCmd},
+		{"states", "partition functions, sums and densities of states", runStatesCmd},
+		{"micro", "RRKM k(E) and its thermal average beside canonical k∞(T)", runMicroCmd},
+		{"example", "print the built-in demo input (edit it to make your own)", runExampleCmd},
+	}
+}
+
+func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	s := streams{in: stdin, out: stdout, err: stderr}
+	if len(args) == 0 || args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
+		if len(args) > 1 {
+			return run([]string{args[1], "--help"}, stdin, stdout, stderr)
+		}
+		printUsage(stdout)
+		return exitOK
+	}
+	if args[0] == "version" || args[0] == "--version" {
+		fmt.Fprintln(stdout, "falloff", version)
+		return exitOK
+	}
+	for _, v := range verbs() {
+		if v.name == args[0] {
+			return exitCode(v.run(args[1:], s), stderr)
+		}
+	}
+	fmt.Fprintf(stderr, "falloff: unknown command %q (hint: run `falloff help` for the list)\n", args[0])
+	return exitUsage
+}
+
+// exitCode prints err on one line and maps it to an exit code.
+func exitCode(err error, stderr io.Writer) int {
+	if err == nil {
+		return exitOK
+	}
+	if errors.Is(err, pflag.ErrHelp) {
+		return exitOK
+	}
+	msg := strings.ReplaceAll(err.Error(), "\n", " ")
+	fmt.Fprintln(stderr, "falloff:", msg)
+	var ue *usageError
+	var fe *input.FieldError
+	var unitErr *units.UnitError
+	var ne *numericalError
+	switch {
+	case errors.As(err, &ue):
+		return exitUsage
+	case errors.As(err, &ne):
+		return exitNumerical
+	case errors.As(err, &fe), errors.As(err, &unitErr):
+		return exitInput
+	}
+	return exitInput
+}
+
+func printUsage(w io.Writer) {
+	fmt.Fprintf(w, `falloff %s: RRKM and master-equation rate coefficients for unimolecular reactions
+
+Usage: falloff <command> [flags] [FILE]
+
+Commands:
+`, version)
+	for _, v := range verbs() {
+		fmt.Fprintf(w, "  %-9s %s\n", v.name, v.summary)
+	}
+	fmt.Fprint(w, `
+With no FILE, states and micro run the built-in demo (an invented molecule).
+Run 'falloff <command> --help' for its flags and a worked example.
+
+Exit codes: 0 ok, 1 bad input, 2 usage, 3 numerical failure.
+
+Computed rate coefficients are model estimates. Validate them against
+experiment before using them in safety, hazard or design decisions, which
+remain subject to local codes and qualified review.
+`)
+}
+
+// version is the program version, written into output headers.
+const version = "0.1.0-dev"
+
+// newFlags returns a flag set for a verb whose --help prints the usage line,
+// the flags and a worked example.
+func newFlags(name, usage, example string, s streams) *pflag.FlagSet {
+	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
+	fs.SetOutput(s.err)
+	fs.SortFlags = false
+	fs.Usage = func() {
+		fmt.Fprintf(s.out, "Usage: falloff %s\n\nFlags:\n%s\nExample:\n%s\n", usage, fs.FlagUsages(), example)
+	}
+	return fs
+}
+
+// parseFlags parses args and wraps a flag error as a usage error.
+func parseFlags(fs *pflag.FlagSet, args []string) error {
+	fs.SetOutput(io.Discard)
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, pflag.ErrHelp) {
+			fs.Usage()
+			return err
+		}
+		return usagef("%s: %v (hint: falloff %s --help)", fs.Name(), err, fs.Name())
+	}
+	return nil
+}

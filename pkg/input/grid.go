@@ -1,0 +1,222 @@
+package input
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"sort"
+	"strings"
+
+	"github.com/falloff-kinetics/falloff/pkg/units"
+	"go.yaml.in/yaml/v3"
+)
+
+// grid converts the temperature and pressure grid.
+func (p *parser) grid(r *rawGrid) (temps, pressures []float64, err error) {
+	if r == nil {
+		return nil, nil, p.missing("grid", "give at least grid: {temperatures: {from: 300 K, to: 2500 K, points: 12}}")
+	}
+	if r.Temperatures == nil {
+		return nil, nil, p.missing("grid.temperatures", "write temperatures: {from: 300 K, to: 2500 K, points: 12} or {unit: K, values: [300, 400]}")
+	}
+	if temps, err = p.axis("grid.temperatures", r.Temperatures, units.Temperature); err != nil {
+		return nil, nil, err
+	}
+	if r.Pressures != nil {
+		if pressures, err = p.axis("grid.pressures", r.Pressures, units.Pressure); err != nil {
+			return nil, nil, err
+		}
+	}
+	return temps, pressures, nil
+}
+
+// axis converts a temperature or pressure axis, {from, to, points} or
+// {unit, values}, into ascending values in the internal unit of d.
+// Temperatures from a range are evenly spaced in 1/T, pressures in log P,
+// the spacings in which rate constants vary most smoothly.
+func (p *parser) axis(path string, r *rawRange, d units.Dimension) ([]float64, error) {
+	shape := fmt.Sprintf("{from: %s, to: %s, points: 12} or {unit: %s, values: [...]}",
+		map[units.Dimension]string{units.Temperature: "300 K", units.Pressure: "0.001 bar"}[d],
+		map[units.Dimension]string{units.Temperature: "2500 K", units.Pressure: "1000 bar"}[d], d.Internal())
+	isRange := given(&r.From) || given(&r.To) || given(&r.Points)
+	isList := given(&r.Unit) || given(&r.Values)
+	switch {
+	case isRange && isList:
+		return nil, p.errAt(path, nil, problemf("mixes {from, to, points} with {unit, values}"), "use one form: "+shape)
+	case isList:
+		return p.axisList(path, r, d)
+	case !isRange:
+		return nil, p.errAt(path, nil, problemf("empty"), "write "+shape)
+	}
+
+	positive := func(key string, n *yaml.Node) (float64, error) {
+		kp := path + "." + key
+		if !given(n) {
+			return 0, p.missing(kp, "write "+shape)
+		}
+		x, err := p.quantity(kp, n, d)
+		if err != nil {
+			return 0, err
+		}
+		if !(x > 0) {
+			return 0, p.errAt(kp, n, problemf("a %s must be positive", d), positiveHint(d))
+		}
+		return x, nil
+	}
+	from, err := positive("from", &r.From)
+	if err != nil {
+		return nil, err
+	}
+	to, err := positive("to", &r.To)
+	if err != nil {
+		return nil, err
+	}
+	pp := path + ".points"
+	if !given(&r.Points) {
+		return nil, p.missing(pp, "give the number of points, e.g. points: 12")
+	}
+	n, err := p.integer(pp, &r.Points)
+	if err != nil {
+		return nil, err
+	}
+	switch {
+	case n < 1:
+		return nil, p.errAt(pp, &r.Points, problemf("must be at least 1"), "give 2 or more points, or 1 with from equal to to")
+	case from > to:
+		return nil, p.errAt(path+".from", &r.From, problemf("above to (%s)", r.To.Value), "from is the low end of the range: swap them")
+	case from == to && n > 1:
+		return nil, p.errAt(pp, &r.Points, problemf("%d points between equal ends", n), "use points: 1, or widen the range")
+	case from < to && n == 1:
+		return nil, p.errAt(pp, &r.Points, problemf("one point cannot span from %s to %s", r.From.Value, r.To.Value),
+			"give 2 or more points, or make from equal to to")
+	}
+	if n == 1 {
+		return []float64{from}, nil
+	}
+
+	// x is 1/T or ln P; the ends are set exactly, not recomputed.
+	fwd, inv := func(v float64) float64 { return 1 / v }, func(x float64) float64 { return 1 / x }
+	if d == units.Pressure {
+		fwd, inv = math.Log, math.Exp
+	}
+	x0, x1 := fwd(from), fwd(to)
+	out := make([]float64, n)
+	for i := range out {
+		out[i] = inv(x0 + (x1-x0)*float64(i)/float64(n-1))
+	}
+	out[0], out[n-1] = from, to
+	return out, nil
+}
+
+func positiveHint(d units.Dimension) string {
+	if d == units.Temperature {
+		return "temperatures are absolute, in K"
+	}
+	return ""
+}
+
+// axisList converts {unit, values} into sorted values; duplicates are an
+// error.
+func (p *parser) axisList(path string, r *rawRange, d units.Dimension) ([]float64, error) {
+	xs, nodes, err := p.list(path, &rawList{Unit: r.Unit, Values: r.Values}, d)
+	if err != nil {
+		return nil, err
+	}
+	order := make([]int, len(xs))
+	for i := range order {
+		order[i] = i
+		if !(xs[i] > 0) {
+			return nil, p.errAt(fmt.Sprintf("%s.values[%d]", path, i), nodes[i], problemf("a %s must be positive", d), positiveHint(d))
+		}
+	}
+	sort.SliceStable(order, func(a, b int) bool { return xs[order[a]] < xs[order[b]] })
+	out := make([]float64, len(xs))
+	for k, i := range order {
+		out[k] = xs[i]
+		if k > 0 && out[k] == out[k-1] {
+			later := max(i, order[k-1])
+			return nil, p.errAt(fmt.Sprintf("%s.values[%d]", path, later), nodes[later],
+				problemf("given twice (also values[%d])", min(i, order[k-1])), "delete one of them")
+		}
+	}
+	return out, nil
+}
+
+// fitNames are the fitted forms pkg/fit provides; all but arrhenius describe
+// pressure dependence.
+var fitNames = []string{"arrhenius", "lindemann", "troe", "sri", "plog", "chebyshev"}
+
+// fits converts the list of fits.
+func (p *parser) fits(n *yaml.Node) ([]string, error) {
+	if !given(n) {
+		return nil, nil
+	}
+	known := "the fits are: " + strings.Join(fitNames, ", ")
+	if n.Kind != yaml.SequenceNode {
+		return nil, p.errAt("fits", n, problemf("expected a list of fit names, found %s", kindName(n)), "write fits: [troe, plog]; "+known)
+	}
+	var out []string
+	for i, c := range n.Content {
+		fp := fmt.Sprintf("fits[%d]", i)
+		name, err := p.name(fp, c)
+		if err != nil {
+			return nil, err
+		}
+		if !slices.Contains(fitNames, name) {
+			hint := known
+			if s := closest(name, fitNames); s != "" {
+				hint = "did you mean " + s + "? " + known
+			}
+			return nil, p.errAt(fp, c, problemf("unknown fit"), hint)
+		}
+		if j := slices.Index(out, name); j >= 0 {
+			return nil, p.errAt(fp, c, problemf("listed twice (also fits[%d])", j), "delete one of them")
+		}
+		out = append(out, name)
+	}
+	return out, nil
+}
+
+// energyGrid converts the energy-grid section, filling in defaults.
+func (p *parser) energyGrid(r *rawEnergyGrid) (EnergyGrid, error) {
+	g := EnergyGrid{Fine: DefaultFineGrain, Grain: DefaultGrain}
+	if r == nil {
+		return g, nil
+	}
+	var err error
+	read := func(key string, n *yaml.Node, dst *float64) error {
+		if !given(n) {
+			return nil
+		}
+		kp := "energy-grid." + key
+		if *dst, err = p.quantity(kp, n, units.Energy); err != nil {
+			return err
+		}
+		if !(*dst > 0) {
+			return p.errAt(kp, n, problemf("must be positive"), "")
+		}
+		return nil
+	}
+	if err := read("fine-grain", &r.FineGrain, &g.Fine); err != nil {
+		return g, err
+	}
+	if err := read("grain", &r.Grain, &g.Grain); err != nil {
+		return g, err
+	}
+	if err := read("ceiling", &r.Ceiling, &g.Ceiling); err != nil {
+		return g, err
+	}
+	if g.Grain < g.Fine {
+		n := &r.Grain
+		path := "energy-grid.grain"
+		if !given(n) {
+			n, path = &r.FineGrain, "energy-grid.fine-grain"
+		}
+		return g, p.errAt(path, n, problemf("grain %s cm-1 is smaller than fine-grain %s cm-1", fmtCm1(g.Grain), fmtCm1(g.Fine)),
+			"the master-equation grain must be at least the fine counting grain")
+	}
+	return g, nil
+}
+
+// fmtCm1 formats an energy in cm⁻¹ for messages.
+func fmtCm1(x float64) string { return fmt.Sprintf("%.6g", x) }

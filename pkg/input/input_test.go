@@ -1,0 +1,468 @@
+package input
+
+import (
+	"errors"
+	"io/fs"
+	"math"
+	"strings"
+	"testing"
+
+	"github.com/falloff-kinetics/falloff/pkg/units"
+	"gonum.org/v1/gonum/floats/scalar"
+)
+
+// minimal is the smallest complete input; each bad-input case below breaks it
+// with one textual edit. Every line that a case edits occurs once.
+const minimal = `title: minimal test input
+molecules:
+  r:
+    mass: 28.05 amu
+    vibrations: {unit: cm-1, values: [3000, 1500, 1000]}
+    rotation: {constants: {unit: cm-1, values: [4.8, 1.0, 0.8]}, symmetry: 2}
+    optical-isomers: 1
+    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}
+  ts:
+    energy: 40 kcal/mol
+    imaginary-frequency: 800 cm-1
+    vibrations: {unit: cm-1, values: [2900, 1200]}
+    rotation: {constants: {unit: cm-1, values: [4.0, 0.9, 0.7]}, symmetry: 1}
+reaction:
+  reactant: r
+  via: ts
+  products: [a, b]
+  path-degeneracy: auto
+bath:
+  gas: Ar
+energy-transfer:
+  model: exponential-down
+  alpha-300: 250 cm-1
+  alpha-exponent: 0.85
+grid:
+  temperatures: {from: 300 K, to: 1500 K, points: 5}
+  pressures: {unit: bar, values: [1, 0.1, 10]}
+fits: [troe]
+energy-grid:
+  fine-grain: 1 cm-1
+  grain: 10 cm-1
+`
+
+const testFile = "test.yaml"
+
+// edit returns minimal with old replaced by new; old must occur exactly once.
+func edit(t *testing.T, old, new string) []byte {
+	t.Helper()
+	if n := strings.Count(minimal, old); n != 1 {
+		t.Fatalf("edit: %q occurs %d times in the minimal input, want 1", old, n)
+	}
+	return []byte(strings.Replace(minimal, old, new, 1))
+}
+
+func TestMinimalIsValid(t *testing.T) {
+	m, err := Parse(testFile, []byte(minimal))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(m.Warnings) != 0 {
+		t.Errorf("warnings: %q", m.Warnings)
+	}
+}
+
+func TestDemo(t *testing.T) {
+	m, err := ReadFile("../../internal/demo/demo.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(m.Warnings) != 0 {
+		t.Errorf("the demo gives warnings: %q", m.Warnings)
+	}
+	reactant, ts := m.ReactantAndTS()
+	if reactant == nil || ts == nil {
+		t.Fatalf("ReactantAndTS = %v, %v", reactant, ts)
+	}
+
+	// Unit conversions are exact products, so a relative 1e-6 only covers
+	// the 7 digits quoted in design.md §2; lists are checked to 1e-12.
+	const (
+		quoted = 1e-6
+		exact  = 1e-12
+	)
+	checks := []struct {
+		name      string
+		got, want float64
+		tol       float64
+	}{
+		// design.md §2: 1 kcal/mol = 349.7551 cm⁻¹.
+		{"E0", ts.E0, 42.0 * 349.7551, quoted},
+		{"imaginary", ts.Imaginary, 650, exact},
+		{"mass", reactant.Mass, 70.09, exact},
+		{"vibrations[17]", reactant.Vibrations[17], 260, exact},
+		{"rotation A", reactant.Rotors[0].Consts[0], 0.35, exact},
+		{"rotation C", ts.Rotors[0].Consts[2], 0.10, exact},
+		{"symmetry", reactant.Symmetry, 1, exact},
+		{"optical isomers", ts.OpticalIsomers, 1, exact},
+		{"sigma", reactant.LJ.Sigma, 5.0, exact},
+		{"epsilon", reactant.LJ.Epsilon, 400, exact},
+		{"alpha-300", m.Transfer.Alpha300, 250, exact},
+		{"alpha-exponent", m.Transfer.AlphaExponent, 0.85, exact},
+		{"efficiency", m.Transfer.Efficiency, 1, exact},
+		{"fine grain", m.EnergyGrid.Fine, 1, exact},
+		{"grain", m.EnergyGrid.Grain, 10, exact},
+		{"ceiling", m.EnergyGrid.Ceiling, 0, exact},
+		{"path degeneracy", m.Reaction.PathDegeneracy, 0, exact},
+	}
+	for _, c := range checks {
+		if !scalar.EqualWithinAbsOrRel(c.got, c.want, c.tol, c.tol) {
+			t.Errorf("%s = %.12g, want %.12g", c.name, c.got, c.want)
+		}
+	}
+	if len(reactant.Vibrations) != 18 || len(ts.Vibrations) != 17 {
+		t.Errorf("mode counts %d, %d; want 18, 17", len(reactant.Vibrations), len(ts.Vibrations))
+	}
+	if r := reactant.Rotors; len(r) != 1 || r[0].Dim != 3 || r[0].Symmetry != 1 {
+		t.Errorf("reactant rotors = %+v, want one 3D top with symmetry 1", r)
+	}
+	if reactant.IsTS || !ts.IsTS {
+		t.Errorf("IsTS: reactant %v, ts %v", reactant.IsTS, ts.IsTS)
+	}
+	if got := strings.Join(m.Fits, ","); got != "troe,plog,chebyshev" {
+		t.Errorf("fits = %s", got)
+	}
+	if got := strings.Join(m.Reaction.Products, ","); got != "demo-fragment-a,demo-fragment-b" {
+		t.Errorf("products = %s", got)
+	}
+	if m.Bath.Gas != "Ar" || m.Transfer.Model != ExponentialDown {
+		t.Errorf("bath %q, model %q", m.Bath.Gas, m.Transfer.Model)
+	}
+	if m.Molecule("demo-ring") != reactant || m.Molecule("absent") != nil {
+		t.Error("Molecule lookup")
+	}
+
+	// 12 temperatures from 300 to 2500 K evenly spaced in 1/T, the ends exact.
+	temps := m.Temperatures
+	if len(temps) != 12 || temps[0] != 300 || temps[11] != 2500 {
+		t.Fatalf("temperatures = %v", temps)
+	}
+	step := (1.0/2500 - 1.0/300) / 11
+	for i := 1; i < len(temps); i++ {
+		if d := 1/temps[i] - 1/temps[i-1]; math.Abs(d-step) > 1e-12 {
+			t.Errorf("1/T[%d] − 1/T[%d] = %.15g K⁻¹, want %.15g", i, i-1, d, step)
+		}
+	}
+
+	// 13 pressures from 0.001 bar = 100 Pa to 1000 bar = 1e8 Pa, two per
+	// decade; the rounding of exp(log) allows a few ulps.
+	const logTol = 1e-12
+	pres := m.Pressures
+	if len(pres) != 13 {
+		t.Fatalf("pressures = %v", pres)
+	}
+	for i, p := range pres {
+		want := 100 * math.Pow(10, float64(i)/2)
+		if !scalar.EqualWithinRel(p, want, logTol) {
+			t.Errorf("pressures[%d] = %.15g Pa, want %g", i, p, want)
+		}
+	}
+}
+
+func TestTestdataDemo(t *testing.T) {
+	m, err := ReadFile("../../testdata/demo.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m.File != "../../testdata/demo.yaml" || len(m.Warnings) != 0 {
+		t.Errorf("File %q, warnings %q", m.File, m.Warnings)
+	}
+}
+
+func TestReadFileMissing(t *testing.T) {
+	_, err := ReadFile("testdata/no-such-file.yaml")
+	if !errors.Is(err, fs.ErrNotExist) {
+		t.Errorf("err = %v, want fs.ErrNotExist", err)
+	}
+}
+
+// TestConversions checks the unit conversions of single fields against
+// values worked out by hand.
+func TestConversions(t *testing.T) {
+	// B = h/(8π²cI): with CODATA 2018 h, c and m_u, I = 16.857629 amu Å²
+	// gives B = 1.000000 cm⁻¹.
+	const inertiaTol = 1e-6
+	// GHz and MHz: B[cm⁻¹] = B[Hz]/c with c = 29.9792458 GHz cm (exact).
+	const exact = 1e-12
+	rotation := "rotation: {constants: {unit: cm-1, values: [4.8, 1.0, 0.8]}, symmetry: 2}"
+	cases := []struct {
+		name, old, new string
+		get            func(m *Model) []float64
+		want           []float64
+		tol            float64
+	}{
+		{"inertia", rotation, "rotation: {inertia: {unit: amu*angstrom^2, values: [16.857629, 16.857629, 16.857629]}, symmetry: 2}",
+			reactantConsts, []float64{1, 1, 1}, inertiaTol},
+		{"linear inertia", rotation, "rotation: {linear: true, inertia: {unit: amu*angstrom^2, values: [16.857629]}, symmetry: 2}",
+			reactantConsts, []float64{1}, inertiaTol},
+		{"GHz", rotation, "rotation: {constants: {unit: GHz, values: [29.9792458, 59.9584916, 14.9896229]}, symmetry: 2}",
+			reactantConsts, []float64{1, 2, 0.5}, exact},
+		{"MHz linear", rotation, "rotation: {linear: true, constants: {unit: MHz, values: [29979.2458]}, symmetry: 2}",
+			reactantConsts, []float64{1}, exact},
+		{"imaginary with i", "imaginary-frequency: 800 cm-1", "imaginary-frequency: 650i cm-1",
+			func(m *Model) []float64 { _, ts := m.ReactantAndTS(); return []float64{ts.Imaginary} }, []float64{650}, exact},
+		{"imaginary negative", "imaginary-frequency: 800 cm-1", "imaginary-frequency: -650 cm-1",
+			func(m *Model) []float64 { _, ts := m.ReactantAndTS(); return []float64{ts.Imaginary} }, []float64{650}, exact},
+		// 1 kcal/mol = 349.7551 cm⁻¹ (design.md §2), to its 7 quoted digits.
+		{"vibrations in kcal/mol", "vibrations: {unit: cm-1, values: [3000, 1500, 1000]}", "vibrations: {unit: kcal/mol, values: [10, 5, 3]}",
+			func(m *Model) []float64 { r, _ := m.ReactantAndTS(); return r.Vibrations }, []float64{3497.551, 1748.7755, 1049.2653}, 1e-6},
+		// ε/k_B given as an energy comes back in K: 1 kJ/mol / R = 120.27 K
+		// (R = 8.314462618 J/(mol K), CODATA 2018).
+		{"epsilon in kJ/mol", "epsilon: 230 K", "epsilon: 1 kJ/mol",
+			func(m *Model) []float64 { r, _ := m.ReactantAndTS(); return []float64{r.LJ.Epsilon} }, []float64{1000 / 8.314462618}, 1e-9},
+		{"explicit temperatures sorted", "temperatures: {from: 300 K, to: 1500 K, points: 5}", "temperatures: {unit: K, values: [1000, 300, 600]}",
+			func(m *Model) []float64 { return m.Temperatures }, []float64{300, 600, 1000}, exact},
+		{"pressures sorted, in Pa", "pressures: {unit: bar, values: [1, 0.1, 10]}", "pressures: {unit: Torr, values: [760, 7.6]}",
+			func(m *Model) []float64 { return m.Pressures }, []float64{1013.25, 101325}, exact},
+		{"single temperature", "temperatures: {from: 300 K, to: 1500 K, points: 5}", "temperatures: {from: 500 K, to: 500 K, points: 1}",
+			func(m *Model) []float64 { return m.Temperatures }, []float64{500}, exact},
+		{"collision rate", "gas: Ar", "gas: Ar\n  collision-rate: 3.1e-10 cm^3/molecule/s",
+			func(m *Model) []float64 { return []float64{m.Bath.CollisionRate} }, []float64{3.1e-10}, exact},
+		{"path degeneracy", "path-degeneracy: auto", "path-degeneracy: 2",
+			func(m *Model) []float64 { return []float64{m.Reaction.PathDegeneracy} }, []float64{2}, exact},
+		{"strong collider", "  model: exponential-down\n  alpha-300: 250 cm-1\n  alpha-exponent: 0.85\n", "  model: strong-collider\n  efficiency: 0.3\n",
+			func(m *Model) []float64 { return []float64{m.Transfer.Efficiency} }, []float64{0.3}, exact},
+		{"electronic", "    optical-isomers: 1\n", "    optical-isomers: 2\n    electronic: [{energy: 0 cm-1, degeneracy: 2}, {energy: 1 eV, degeneracy: 1}]\n",
+			func(m *Model) []float64 {
+				r, _ := m.ReactantAndTS()
+				return []float64{r.OpticalIsomers, r.Electronic[0].Degeneracy, r.Electronic[1].Energy}
+			}, []float64{2, 2, units.Cm1PerEV}, exact},
+		{"ceiling", "grain: 10 cm-1", "grain: 20 cm-1\n  ceiling: 30000 cm-1",
+			func(m *Model) []float64 { return []float64{m.EnergyGrid.Grain, m.EnergyGrid.Ceiling} }, []float64{20, 30000}, exact},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			m, err := Parse(testFile, edit(t, tc.old, tc.new))
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := tc.get(m)
+			if len(got) != len(tc.want) {
+				t.Fatalf("got %v, want %v", got, tc.want)
+			}
+			for i := range got {
+				if !scalar.EqualWithinAbsOrRel(got[i], tc.want[i], tc.tol, tc.tol) {
+					t.Errorf("[%d] = %.12g, want %.12g", i, got[i], tc.want[i])
+				}
+			}
+		})
+	}
+}
+
+func reactantConsts(m *Model) []float64 {
+	r, _ := m.ReactantAndTS()
+	return r.Rotors[0].Consts
+}
+
+// TestLinearRotor checks the rotor shape a linear molecule gets.
+func TestLinearRotor(t *testing.T) {
+	m, err := Parse(testFile, edit(t, "rotation: {constants: {unit: cm-1, values: [4.8, 1.0, 0.8]}, symmetry: 2}",
+		"rotation: {linear: true, constants: {unit: cm-1, values: [0.39]}, symmetry: 2}"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, _ := m.ReactantAndTS()
+	if len(r.Rotors) != 1 || r.Rotors[0].Dim != 2 || r.Rotors[0].Symmetry != 1 || r.Symmetry != 2 {
+		t.Errorf("rotors %+v, symmetry %v; want one 2D rotor of symmetry 1 and σ = 2", r.Rotors, r.Symmetry)
+	}
+}
+
+func TestBadInput(t *testing.T) {
+	transfer := "  model: exponential-down\n  alpha-300: 250 cm-1\n  alpha-exponent: 0.85\n"
+	cases := []struct {
+		name, old, new string
+		path, value    string // must appear in the message ("" for none)
+		hint           string // must appear in the hint, if not ""
+	}{
+		{"missing unit", "energy: 40 kcal/mol", "energy: 42", "molecules.ts.energy", "42", "kcal/mol"},
+		{"unknown unit", "mass: 28.05 amu", "mass: 28.05 amus", "molecules.r.mass", "28.05 amus", "amu"},
+		{"wrong dimension", "energy: 40 kcal/mol", "energy: 40 angstrom", "molecules.ts.energy", "40 angstrom", "cm-1"},
+		{"not a number", "alpha-300: 250 cm-1", "alpha-300: lots cm-1", "energy-transfer.alpha-300", "lots cm-1", ""},
+		{"list without unit", "vibrations: {unit: cm-1, values: [3000, 1500, 1000]}", "vibrations: {values: [3000, 1500, 1000]}", "molecules.r.vibrations.unit", "", "cm-1"},
+		{"list not a mapping", "vibrations: {unit: cm-1, values: [3000, 1500, 1000]}", "vibrations: [3000, 1500, 1000]", "molecules.r.vibrations", "", "unit"},
+		{"zero frequency", "values: [3000, 1500, 1000]", "values: [3000, 0, 1000]", "molecules.r.vibrations.values[1]", "0", ""},
+		{"NaN frequency", "values: [3000, 1500, 1000]", "values: [3000, .nan, 1000]", "molecules.r.vibrations.values[1]", ".nan", ""},
+		{"negative frequency in stable species", "values: [3000, 1500, 1000]", "values: [3000, -1500, 1000]", "molecules.r.vibrations.values[1]", "-1500", "is this a transition state?"},
+		{"negative frequency in TS", "values: [2900, 1200]", "values: [2900, -800]", "molecules.ts.vibrations.values[1]", "-800", "imaginary-frequency"},
+		{"zero imaginary frequency", "imaginary-frequency: 800 cm-1", "imaginary-frequency: 0 cm-1", "molecules.ts.imaginary-frequency", "0 cm-1", ""},
+		{"imaginary frequency in stable species", "    optical-isomers: 1\n", "    optical-isomers: 1\n    imaginary-frequency: 500 cm-1\n", "molecules.r.imaginary-frequency", "500 cm-1", "energy"},
+		{"two rotational constants", "values: [4.8, 1.0, 0.8]", "values: [4.8, 1.0]", "molecules.r.rotation.constants.values", "[4.8, 1.0]", "linear: true"},
+		{"linear with three constants", "rotation: {constants: {unit: cm-1, values: [4.8, 1.0, 0.8]}", "rotation: {linear: true, constants: {unit: cm-1, values: [4.8, 1.0, 0.8]}", "molecules.r.rotation.constants.values", "[4.8, 1.0, 0.8]", ""},
+		{"zero rotational constant", "values: [4.8, 1.0, 0.8]", "values: [4.8, 0, 0.8]", "molecules.r.rotation.constants.values[1]", "0", ""},
+		{"negative moment of inertia", "constants: {unit: cm-1, values: [4.8, 1.0, 0.8]}", "inertia: {unit: amu*angstrom^2, values: [3.5, -16.9, 21.1]}", "molecules.r.rotation.inertia.values[1]", "-16.9", ""},
+		{"rotational constant in wrong unit", "constants: {unit: cm-1, values: [4.8, 1.0, 0.8]}", "constants: {unit: amu, values: [4.8, 1.0, 0.8]}", "molecules.r.rotation.constants.unit", "amu", "GHz"},
+		{"symmetry zero", "symmetry: 2}", "symmetry: 0}", "molecules.r.rotation.symmetry", "0", ""},
+		{"optical isomers zero", "optical-isomers: 1", "optical-isomers: 0", "molecules.r.optical-isomers", "0", ""},
+		{"optical isomers fractional", "optical-isomers: 1", "optical-isomers: 1.5", "molecules.r.optical-isomers", "1.5", ""},
+		{"negative E0", "energy: 40 kcal/mol", "energy: -5 kcal/mol", "molecules.ts.energy", "-5 kcal/mol", "zero-point level"},
+		{"electronic without ground level", "    optical-isomers: 1\n", "    electronic: [{energy: 100 cm-1, degeneracy: 2}]\n", "molecules.r.electronic", "", "0 cm-1"},
+		{"epsilon without unit", "epsilon: 230 K", "epsilon: 230", "molecules.r.lennard-jones.epsilon", "230", "K"},
+		{"reactant missing", "  reactant: r\n", "", "reaction.reactant", "", "r, ts"},
+		{"reactant not a molecule", "reactant: r", "reactant: q", "reaction.reactant", "q", "r, ts"},
+		{"reactant is a TS", "reactant: r", "reactant: ts", "reaction.reactant", "ts", ""},
+		{"via missing", "  via: ts\n", "", "reaction.via", "", ""},
+		{"via not a TS", "via: ts", "via: r", "reaction.via", "r", "energy:"},
+		{"reactant without mass", "    mass: 28.05 amu\n", "", "molecules.r.mass", "", ""},
+		{"path degeneracy zero", "path-degeneracy: auto", "path-degeneracy: 0", "reaction.path-degeneracy", "0", ""},
+		{"path degeneracy not a number", "path-degeneracy: auto", "path-degeneracy: many", "reaction.path-degeneracy", "many", "auto"},
+		{"unknown top-level key", "fits: [troe]\n", "fits: [troe]\ncolour: blue\n", "colour", "colour", "title"},
+		{"misspelt key", "    vibrations: {unit: cm-1, values: [3000", "    vibration: {unit: cm-1, values: [3000", "molecules.r.vibration", "vibration", "did you mean vibrations?"},
+		{"misspelt nested key", "alpha-exponent: 0.85", "alpha-exp: 0.85", "energy-transfer.alpha-exp", "alpha-exp", "alpha-exponent"},
+		{"key given twice", "  via: ts\n", "  via: ts\n  via: ts\n", "reaction.via", "via", ""},
+		{"key without value", "  gas: Ar", "  gas:", "bath.gas", "", ""},
+		{"zero temperature", "from: 300 K", "from: 0 K", "grid.temperatures.from", "0 K", ""},
+		{"temperature in Celsius", "from: 300 K", "from: 27 C", "grid.temperatures.from", "27 C", "K"},
+		{"from above to", "from: 300 K", "from: 3000 K", "grid.temperatures.from", "3000 K", "swap"},
+		{"no points", "points: 5", "points: 0", "grid.temperatures.points", "0", ""},
+		{"one point for a range", "points: 5", "points: 1", "grid.temperatures.points", "1", ""},
+		{"negative pressure", "values: [1, 0.1, 10]", "values: [1, -0.1, 10]", "grid.pressures.values[1]", "-0.1", ""},
+		{"duplicate temperature", "temperatures: {from: 300 K, to: 1500 K, points: 5}", "temperatures: {unit: K, values: [300, 400, 300]}", "grid.temperatures.values[2]", "300", ""},
+		{"range and list mixed", "points: 5}", "points: 5, unit: K}", "grid.temperatures", "", ""},
+		{"temperatures missing", "  temperatures: {from: 300 K, to: 1500 K, points: 5}\n", "", "grid.temperatures", "", ""},
+		{"unknown fit", "fits: [troe]", "fits: [trow]", "fits[0]", "trow", "did you mean troe?"},
+		{"pressure fit without pressures", "  pressures: {unit: bar, values: [1, 0.1, 10]}\n", "", "fits[0]", "troe", "pressures"},
+		{"unknown energy-transfer model", "model: exponential-down", "model: exponential", "energy-transfer.model", "exponential", "exponential-down"},
+		{"alpha-300 zero", "alpha-300: 250 cm-1", "alpha-300: 0 cm-1", "energy-transfer.alpha-300", "0 cm-1", ""},
+		{"efficiency above one", transfer, "  model: strong-collider\n  efficiency: 1.5\n", "energy-transfer.efficiency", "1.5", ""},
+		{"efficiency zero", transfer, "  model: strong-collider\n  efficiency: 0\n", "energy-transfer.efficiency", "0", ""},
+		{"collision rate in wrong unit", "gas: Ar", "gas: Ar\n  collision-rate: 3.1e-10 cm3/s", "bath.collision-rate", "3.1e-10 cm3/s", "cm3/molecule/s"},
+		{"fine grain zero", "fine-grain: 1 cm-1", "fine-grain: 0 cm-1", "energy-grid.fine-grain", "0 cm-1", ""},
+		{"grain below fine grain", "grain: 10 cm-1", "grain: 0.5 cm-1", "energy-grid.grain", "0.5 cm-1", ""},
+		{"fine grain above lowest frequency", "  fine-grain: 1 cm-1\n  grain: 10 cm-1\n", "  fine-grain: 1100 cm-1\n  grain: 2000 cm-1\n", "energy-grid.fine-grain", "1100 cm-1", "finer fine-grain"},
+		{"ceiling below barrier", "grain: 10 cm-1", "grain: 10 cm-1\n  ceiling: 10 kcal/mol", "energy-grid.ceiling", "10 kcal/mol", ""},
+		{"title missing", "title: minimal test input\n", "", "title", "", ""},
+		{"empty file", minimal, "", "", "", ""},
+		{"only a comment", minimal, "# nothing here\n", "", "", ""},
+		{"not YAML", minimal, "title: [unclosed\nmolecules: {\n", "", "", ""},
+		{"not a mapping", minimal, "just some text\n", "", "", ""},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			m, err := Parse(testFile, edit(t, tc.old, tc.new))
+			if err == nil {
+				t.Fatalf("no error; warnings %q", m.Warnings)
+			}
+			var fe *FieldError
+			if !errors.As(err, &fe) {
+				t.Fatalf("error %v (%T) is not a *FieldError", err, err)
+			}
+			msg := err.Error()
+			t.Log(msg)
+			if strings.Contains(msg, "\n") {
+				t.Errorf("message is not a single line: %q", msg)
+			}
+			if !strings.HasPrefix(msg, testFile) {
+				t.Errorf("message does not start with the file name: %q", msg)
+			}
+			if fe.Path != tc.path {
+				t.Errorf("Path = %q, want %q", fe.Path, tc.path)
+			}
+			if !strings.Contains(msg, tc.path) || !strings.Contains(msg, tc.value) {
+				t.Errorf("message %q lacks the path %q or the value %q", msg, tc.path, tc.value)
+			}
+			if tc.value != "" && fe.Value != tc.value {
+				t.Errorf("Value = %q, want %q", fe.Value, tc.value)
+			}
+			if !strings.Contains(fe.Hint, tc.hint) {
+				t.Errorf("Hint = %q, want it to mention %q", fe.Hint, tc.hint)
+			}
+		})
+	}
+}
+
+// A bare number where a unit is needed names the units that would do.
+func TestNoUnitHint(t *testing.T) {
+	_, err := Parse(testFile, edit(t, "energy: 40 kcal/mol", "energy: 42"))
+	var fe *FieldError
+	if !errors.As(err, &fe) {
+		t.Fatalf("err = %v, want a *FieldError", err)
+	}
+	if !errors.Is(err, units.ErrNoUnit) {
+		t.Errorf("err = %v does not wrap units.ErrNoUnit", err)
+	}
+	for _, u := range []string{"cm-1", "kcal/mol", "kJ/mol", "eV", "K"} {
+		if !strings.Contains(fe.Hint, u) {
+			t.Errorf("hint %q does not list %s", fe.Hint, u)
+		}
+	}
+}
+
+func TestFieldErrorFormat(t *testing.T) {
+	cases := []struct {
+		name string
+		err  *FieldError
+		want string
+	}{
+		{"full", &FieldError{File: "a.yaml", Line: 7, Path: "molecules.x.mass", Value: "70", Hint: "write 70 amu", Err: errors.New("no unit")},
+			`a.yaml:7: molecules.x.mass: "70": no unit (hint: write 70 amu)`},
+		{"no line, no value, no hint", &FieldError{File: "a.yaml", Path: "title", Err: errors.New("missing")},
+			`a.yaml: title: missing`},
+		{"whole file", &FieldError{File: "a.yaml", Err: errors.New("the file is empty")},
+			`a.yaml: the file is empty`},
+		{"line breaks folded", &FieldError{File: "a.yaml", Path: "title", Value: "two\nlines", Err: errors.New("bad\nthing")},
+			`a.yaml: title: "two\nlines": bad thing`},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			if got := tc.err.Error(); got != tc.want {
+				t.Errorf("got  %s\nwant %s", got, tc.want)
+			}
+		})
+	}
+}
+
+func TestWarnings(t *testing.T) {
+	cases := []struct {
+		name, old, new string
+		path, word     string // the warning names path and mentions word
+	}{
+		{"TS without imaginary frequency", "    imaginary-frequency: 800 cm-1\n", "", "molecules.ts", "imaginary-frequency"},
+		{"same mode count", "values: [2900, 1200]", "values: [2900, 1200, 900]", "molecules.ts.vibrations", "same number"},
+		{"two modes fewer", "values: [2900, 1200]", "values: [2900]", "molecules.ts.vibrations", "imply 2"},
+		{"large barrier", "energy: 40 kcal/mol", "energy: 200 kcal/mol", "molecules.ts.energy", "unusually large"},
+		{"small barrier", "energy: 40 kcal/mol", "energy: 100 cm-1", "molecules.ts.energy", "unusually small"},
+		{"low temperature", "from: 300 K", "from: 50 K", "grid.temperatures", "below 100 K"},
+		{"high temperature", "to: 1500 K", "to: 6000 K", "grid.temperatures", "above 5000 K"},
+		{"TS mass differs", "    energy: 40 kcal/mol\n", "    energy: 40 kcal/mol\n    mass: 30 amu\n", "molecules.ts.mass", "differs"},
+		{"TS without rotation", "    rotation: {constants: {unit: cm-1, values: [4.0, 0.9, 0.7]}, symmetry: 1}\n", "", "molecules.ts", "no rotation"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			m, err := Parse(testFile, edit(t, tc.old, tc.new))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(m.Warnings) != 1 {
+				t.Fatalf("warnings = %q, want one", m.Warnings)
+			}
+			w := m.Warnings[0]
+			t.Log(w)
+			if !strings.HasPrefix(w, testFile+":") || !strings.Contains(w, " "+tc.path+": ") || !strings.Contains(w, tc.word) {
+				t.Errorf("warning %q should name %s, %s and mention %q", w, testFile, tc.path, tc.word)
+			}
+			if strings.Contains(w, "\n") {
+				t.Errorf("warning is not a single line: %q", w)
+			}
+		})
+	}
+}
+
+// An alias stands for its anchored value, here a rotation shared by the
+// reactant and the transition state.
+func TestAlias(t *testing.T) {
+	doc := strings.Replace(minimal, "rotation: {constants: {unit: cm-1, values: [4.8", "rotation: &rot {constants: {unit: cm-1, values: [4.8", 1)
+	doc = strings.Replace(doc, "rotation: {constants: {unit: cm-1, values: [4.0, 0.9, 0.7]}, symmetry: 1}", "rotation: *rot", 1)
+	m, err := Parse(testFile, []byte(doc))
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, ts := m.ReactantAndTS()
+	if ts.Symmetry != 2 || ts.Rotors[0].Consts[0] != r.Rotors[0].Consts[0] {
+		t.Errorf("ts rotation %+v, symmetry %v; want the reactant's", ts.Rotors, ts.Symmetry)
+	}
+}

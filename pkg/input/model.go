@@ -1,0 +1,147 @@
+package input
+
+import (
+	"os"
+
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+)
+
+// Model is the content of an input file, checked and converted to internal
+// units: energies in cm⁻¹, temperatures in K, masses in amu, lengths in Å,
+// pressures in Pa.
+type Model struct {
+	File      string // name used in messages
+	Title     string
+	Molecules []*Molecule // in file order
+	Reaction  Reaction
+	Bath      Bath
+	Transfer  EnergyTransfer
+	// Temperatures are the grid temperatures in K, ascending.
+	Temperatures []float64
+	// Pressures are the grid pressures in Pa, ascending; nil if the file
+	// has none (a high-pressure-limit calculation).
+	Pressures []float64
+	// Fits names the fitted forms asked for, in file order: arrhenius,
+	// lindemann, troe, sri, plog, chebyshev.
+	Fits       []string
+	EnergyGrid EnergyGrid
+	// Warnings are physically odd but accepted inputs, one line each,
+	// naming the file and the field.
+	Warnings []string
+}
+
+// Molecule is a stable species or a transition state.
+type Molecule struct {
+	rrkm.Species
+	IsTS bool          // the molecule has an energy: key (a transition state)
+	LJ   *LennardJones // nil if not given
+}
+
+// LennardJones holds Lennard-Jones collision parameters.
+type LennardJones struct {
+	Sigma   float64 // σ in Å
+	Epsilon float64 // ε/k_B in K
+}
+
+// Reaction names the unimolecular channel: a reactant passing a transition
+// state to products.
+type Reaction struct {
+	Reactant string   // name of a stable molecule
+	Via      string   // name of a transition state
+	Products []string // names used in exported equations; need not be molecules
+	// PathDegeneracy is the reaction-path degeneracy L given by the user;
+	// 0 means auto, to be computed by rrkm.PathDegeneracy.
+	PathDegeneracy float64
+}
+
+// Bath describes the bath gas.
+type Bath struct {
+	Gas  string        // name, such as Ar or N2
+	Mass float64       // amu; 0 means take it from the built-in table
+	LJ   *LennardJones // nil means take it from the built-in table
+	// CollisionRate is the collision rate constant Z/[M] in
+	// cm³ molecule⁻¹ s⁻¹; 0 means compute it from Lennard-Jones parameters.
+	CollisionRate float64
+}
+
+// EnergyTransfer names the collisional energy-transfer model.
+type EnergyTransfer struct {
+	Model string // "exponential-down" or "strong-collider"; "" if not given
+	// Alpha300 is α at 300 K in cm⁻¹ (exponential-down), ⟨ΔE⟩down.
+	Alpha300 float64
+	// AlphaExponent is n in α(T) = α300·(T/300 K)^n (exponential-down).
+	AlphaExponent float64
+	// Efficiency is the collision efficiency βc of the strong collider, in
+	// (0, 1]; 1 unless given.
+	Efficiency float64
+}
+
+// Energy-transfer model names.
+const (
+	ExponentialDown = "exponential-down"
+	StrongCollider  = "strong-collider"
+)
+
+// EnergyGrid sets the grains of state counting and of the master equation.
+type EnergyGrid struct {
+	Fine    float64 // fine counting grain δ in cm⁻¹ (default 1)
+	Grain   float64 // master-equation grain Δ in cm⁻¹ (default 10)
+	Ceiling float64 // top of the grid in cm⁻¹; 0 means choose automatically
+}
+
+// Default grains in cm⁻¹.
+const (
+	DefaultFineGrain = 1.0
+	DefaultGrain     = 10.0
+)
+
+// Parse reads an input file's content; name is used in messages. A problem
+// with a field is returned as a *FieldError.
+func Parse(name string, data []byte) (*Model, error) {
+	p := &parser{file: name}
+	raw, err := p.decode(data)
+	if err != nil {
+		return nil, err
+	}
+	m, err := p.model(raw)
+	if err != nil {
+		return nil, err
+	}
+	m.Warnings = p.warnings
+	return m, nil
+}
+
+// ReadFile reads and parses the input file at path; path is used in
+// messages. An error reading the file is returned as it is (an
+// *fs.PathError).
+func ReadFile(path string) (*Model, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return Parse(path, data)
+}
+
+// Molecule returns the molecule called name, or nil if there is none.
+func (m *Model) Molecule(name string) *Molecule {
+	for _, mol := range m.Molecules {
+		if mol.Name == name {
+			return mol
+		}
+	}
+	return nil
+}
+
+// ReactantAndTS returns the reactant and the transition state of the
+// reaction. For a Model from Parse both exist.
+func (m *Model) ReactantAndTS() (reactant, ts *Molecule) {
+	return m.Molecule(m.Reaction.Reactant), m.Molecule(m.Reaction.Via)
+}
+
+// parser carries the file name, the node index and the warnings through
+// the checks.
+type parser struct {
+	file     string
+	index    *nodeIndex
+	warnings []string
+}

@@ -1,0 +1,318 @@
+package input
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+	"go.yaml.in/yaml/v3"
+)
+
+// molecules converts the molecules mapping, keeping the file order.
+func (p *parser) molecules(raw map[string]*rawMolecule) ([]*Molecule, error) {
+	if _, ok := p.index.byPath["molecules"]; !ok {
+		return nil, p.missing("molecules", "give the reactant and the transition state under molecules:, as in the demo input")
+	}
+	names := p.index.mappingKeys("molecules")
+	if len(names) == 0 {
+		return nil, p.errAt("molecules", p.index.byPath["molecules"], problemf("no molecules"),
+			"give the reactant and the transition state under molecules:")
+	}
+	var mols []*Molecule
+	for _, name := range names {
+		path := "molecules." + name
+		switch {
+		case strings.TrimSpace(name) == "":
+			return nil, p.errAt(path, nil, problemf("empty molecule name"), "")
+		case strings.IndexFunc(name, isSpace) >= 0:
+			fe := p.errAt(path, nil, problemf("a molecule name may not contain white space"), "join the words with '-' or '_'")
+			fe.Value = name
+			return nil, fe
+		}
+		r := raw[name]
+		if r == nil {
+			return nil, p.errAt(path, p.index.byPath[path], problemf("no data"), "give at least mass and vibrations")
+		}
+		mol, err := p.molecule(path, name, r)
+		if err != nil {
+			return nil, err
+		}
+		mols = append(mols, mol)
+	}
+	return mols, nil
+}
+
+// molecule converts one molecule at path.
+func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) {
+	m := &Molecule{Species: rrkm.Species{
+		Name:           name,
+		Symmetry:       1,
+		OpticalIsomers: 1,
+		Electronic:     []rrkm.Level{{Energy: 0, Degeneracy: 1}},
+	}}
+	m.IsTS = given(&r.Energy)
+
+	if given(&r.Mass) {
+		v, err := p.quantity(path+".mass", &r.Mass, units.Mass)
+		if err != nil {
+			return nil, err
+		}
+		if !(v > 0) {
+			return nil, p.errAt(path+".mass", &r.Mass, problemf("a mass must be positive"), "")
+		}
+		m.Mass = v
+	}
+
+	if m.IsTS {
+		e0, err := p.quantity(path+".energy", &r.Energy, units.Energy)
+		if err != nil {
+			return nil, err
+		}
+		if e0 < 0 {
+			return nil, p.errAt(path+".energy", &r.Energy, problemf("negative barrier"),
+				"energy is the zero-point-corrected barrier E0, measured from the reactant's zero-point level; a transition state cannot lie below it")
+		}
+		m.E0 = e0
+	}
+
+	if given(&r.Imaginary) {
+		ipath := path + ".imaginary-frequency"
+		if !m.IsTS {
+			return nil, p.errAt(ipath, &r.Imaginary, problemf("imaginary-frequency given for a stable species (one without energy:)"),
+				"a transition state needs energy: (its barrier E0); a stable species has no imaginary frequency")
+		}
+		v, err := p.imaginary(ipath, &r.Imaginary)
+		if err != nil {
+			return nil, err
+		}
+		m.Imaginary = v
+	}
+
+	if r.Vibrations != nil {
+		vp := path + ".vibrations"
+		xs, nodes, err := p.list(vp, r.Vibrations, units.Energy)
+		if err != nil {
+			return nil, err
+		}
+		for i, x := range xs {
+			ip := fmt.Sprintf("%s.values[%d]", vp, i)
+			switch {
+			case x < 0 && m.IsTS:
+				return nil, p.errAt(ip, nodes[i], problemf("a negative frequency among a transition state's vibrations"),
+					fmt.Sprintf("give the imaginary mode as imaginary-frequency: %s %s and remove it from vibrations; vibrations lists the real modes only",
+						strings.TrimLeft(nodes[i].Value, "-"), r.Vibrations.Unit.Value))
+			case x < 0:
+				return nil, p.errAt(ip, nodes[i], problemf("a negative frequency"),
+					"an imaginary frequency in a stable species: is this a transition state? If so, add energy: and give the mode as imaginary-frequency")
+			case x == 0:
+				return nil, p.errAt(ip, nodes[i], problemf("a zero frequency"),
+					"a vibration needs a positive frequency; delete a mode that is not a vibration (a translation or rotation)")
+			}
+		}
+		m.Vibrations = xs
+	}
+
+	if r.Rotation != nil {
+		rot, sigma, err := p.rotation(path+".rotation", r.Rotation)
+		if err != nil {
+			return nil, err
+		}
+		m.Rotors = []rrkm.Rotor{rot}
+		m.Symmetry = float64(sigma)
+	}
+
+	if given(&r.OpticalIsomers) {
+		op := path + ".optical-isomers"
+		k, err := p.integer(op, &r.OpticalIsomers)
+		if err != nil {
+			return nil, err
+		}
+		if k < 1 {
+			return nil, p.errAt(op, &r.OpticalIsomers, problemf("must be at least 1"),
+				"1 for an achiral species, 2 for a chiral one")
+		}
+		m.OpticalIsomers = float64(k)
+	}
+
+	ep := path + ".electronic"
+	if _, ok := p.index.byPath[ep]; ok {
+		levels, err := p.electronic(ep, r.Electronic)
+		if err != nil {
+			return nil, err
+		}
+		m.Electronic = levels
+	}
+
+	if r.LennardJones != nil {
+		lj, err := p.lennardJones(path+".lennard-jones", r.LennardJones)
+		if err != nil {
+			return nil, err
+		}
+		m.LJ = lj
+	}
+	return m, nil
+}
+
+// imaginary reads an imaginary frequency and returns its magnitude in cm⁻¹.
+// It accepts "650 cm-1", "-650 cm-1" and "650i cm-1".
+func (p *parser) imaginary(path string, n *yaml.Node) (float64, error) {
+	if err := p.scalar(path, n, `"650 cm-1"`); err != nil {
+		return 0, err
+	}
+	text := strings.TrimSpace(n.Value)
+	if num, rest := splitNumber(text); num != "" && strings.HasPrefix(rest, "i") &&
+		(len(rest) == 1 || isSpace(rune(rest[1]))) {
+		text = num + " " + strings.TrimSpace(rest[1:])
+	}
+	v, err := units.Parse(text, units.Energy)
+	if err != nil {
+		return 0, p.unitError(path, n, text, units.Energy, err)
+	}
+	if v == 0 {
+		return 0, p.errAt(path, n, problemf("a zero imaginary frequency"),
+			"give the magnitude of the imaginary mode, e.g. \"650 cm-1\", or delete the key")
+	}
+	return math.Abs(v), nil
+}
+
+// rotation converts an external rotation into a rotor (symmetry 1) and the
+// external symmetry number σ.
+func (p *parser) rotation(path string, r *rawRotation) (rrkm.Rotor, int, error) {
+	var rot rrkm.Rotor
+	linear := false
+	if given(&r.Linear) {
+		var err error
+		if linear, err = p.boolean(path+".linear", &r.Linear); err != nil {
+			return rot, 0, err
+		}
+	}
+	shape := "{constants: {unit: cm-1, values: [A, B, C]}, symmetry: 1}, or {inertia: {unit: amu*angstrom^2, values: [Ia, Ib, Ic]}, symmetry: 1}"
+	var (
+		lp    string
+		xs    []float64
+		nodes []*yaml.Node
+		list  *rawList
+		err   error
+	)
+	switch {
+	case r.Constants != nil && r.Inertia != nil:
+		return rot, 0, p.errAt(path, nil, problemf("both constants and inertia"), "give one of them")
+	case r.Constants != nil:
+		lp, list = path+".constants", r.Constants
+		xs, nodes, err = p.list(lp, list, units.RotConst)
+	case r.Inertia != nil:
+		lp, list = path+".inertia", r.Inertia
+		xs, nodes, err = p.list(lp, list, units.Inertia)
+	default:
+		return rot, 0, p.errAt(path, nil, problemf("neither constants nor inertia"), "write "+shape)
+	}
+	if err != nil {
+		return rot, 0, err
+	}
+	switch want := map[bool]int{false: 3, true: 1}[linear]; {
+	case len(xs) != want && linear:
+		return rot, 0, p.errAt(lp+".values", &list.Values,
+			problemf("%d values; a linear molecule has one rotational constant (or moment of inertia)", len(xs)),
+			"give one value, or remove linear: true for a non-linear molecule")
+	case len(xs) != want:
+		return rot, 0, p.errAt(lp+".values", &list.Values,
+			problemf("%d values; a non-linear molecule has three rotational constants A, B, C (or moments of inertia)", len(xs)),
+			"give three values, or add linear: true for a linear molecule")
+	}
+	for i, x := range xs {
+		if !(x > 0) {
+			return rot, 0, p.errAt(fmt.Sprintf("%s.values[%d]", lp, i), nodes[i], problemf("must be positive"), "")
+		}
+		if list == r.Inertia {
+			// B = h/(8π²cI) (Herzberg 1945).
+			xs[i] = units.RotConstFromInertia / x
+		}
+	}
+	rot = rrkm.Rotor{Dim: 3, Consts: xs, Symmetry: 1}
+	if linear {
+		rot.Dim = 2
+	}
+	sigma := 1
+	if given(&r.Symmetry) {
+		sp := path + ".symmetry"
+		if sigma, err = p.integer(sp, &r.Symmetry); err != nil {
+			return rot, 0, err
+		}
+		if sigma < 1 {
+			return rot, 0, p.errAt(sp, &r.Symmetry, problemf("a symmetry number must be at least 1"),
+				"the external rotational symmetry number: 1 for no symmetry, 2 for H2O, 3 for NH3, 12 for CH4")
+		}
+	}
+	return rot, sigma, nil
+}
+
+// electronic converts a list of electronic levels.
+func (p *parser) electronic(path string, raw []*rawLevel) ([]rrkm.Level, error) {
+	if len(raw) == 0 {
+		return nil, p.errAt(path, p.index.byPath[path], problemf("empty list"),
+			"list the levels as [{energy: 0 cm-1, degeneracy: 1}], or delete the key for a single non-degenerate level")
+	}
+	levels := make([]rrkm.Level, len(raw))
+	ground := false
+	for i, r := range raw {
+		lp := fmt.Sprintf("%s[%d]", path, i)
+		if r == nil {
+			return nil, p.errAt(lp, nil, problemf("empty level"), "write {energy: 0 cm-1, degeneracy: 1}")
+		}
+		if !given(&r.Energy) {
+			return nil, p.missing(lp+".energy", "give the level's energy above the ground level, e.g. energy: 0 cm-1")
+		}
+		e, err := p.quantity(lp+".energy", &r.Energy, units.Energy)
+		if err != nil {
+			return nil, err
+		}
+		if e < 0 {
+			return nil, p.errAt(lp+".energy", &r.Energy, problemf("negative level energy"),
+				"energies are measured from the ground level, which is at 0")
+		}
+		g := 1
+		if given(&r.Degeneracy) {
+			if g, err = p.integer(lp+".degeneracy", &r.Degeneracy); err != nil {
+				return nil, err
+			}
+			if g < 1 {
+				return nil, p.errAt(lp+".degeneracy", &r.Degeneracy, problemf("a degeneracy must be at least 1"), "")
+			}
+		}
+		ground = ground || e == 0
+		levels[i] = rrkm.Level{Energy: e, Degeneracy: float64(g)}
+	}
+	if !ground {
+		return nil, p.errAt(path, p.index.byPath[path], problemf("no level at 0"),
+			"energies are measured from the ground level; list it as {energy: 0 cm-1, degeneracy: 1}")
+	}
+	return levels, nil
+}
+
+// lennardJones converts Lennard-Jones parameters; ε may be given in any
+// energy unit and is stored as ε/k_B in K.
+func (p *parser) lennardJones(path string, r *rawLJ) (*LennardJones, error) {
+	if !given(&r.Sigma) {
+		return nil, p.missing(path+".sigma", "give σ with a length unit, e.g. sigma: 5.0 angstrom")
+	}
+	if !given(&r.Epsilon) {
+		return nil, p.missing(path+".epsilon", "give ε/k_B, e.g. epsilon: 400 K")
+	}
+	sigma, err := p.quantity(path+".sigma", &r.Sigma, units.Length)
+	if err != nil {
+		return nil, err
+	}
+	if !(sigma > 0) {
+		return nil, p.errAt(path+".sigma", &r.Sigma, problemf("must be positive"), "")
+	}
+	eps, err := p.quantity(path+".epsilon", &r.Epsilon, units.Energy)
+	if err != nil {
+		return nil, err
+	}
+	if !(eps > 0) {
+		return nil, p.errAt(path+".epsilon", &r.Epsilon, problemf("must be positive"), "")
+	}
+	return &LennardJones{Sigma: sigma, Epsilon: eps / units.KelvinToCm1}, nil
+}

@@ -1,0 +1,217 @@
+package input
+
+import (
+	"fmt"
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/falloff-kinetics/falloff/pkg/units"
+	"go.yaml.in/yaml/v3"
+)
+
+// reaction converts the reaction section; the molecules are already read.
+func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
+	var rx Reaction
+	if r == nil {
+		return rx, p.missing("reaction", "name the channel: reaction: {reactant: NAME, via: TS-NAME, products: [A, B]}")
+	}
+	var names []string
+	byName := map[string]*Molecule{}
+	for _, m := range mols {
+		names = append(names, m.Name)
+		byName[m.Name] = m
+	}
+	inFile := "the molecules in this file are: " + strings.Join(names, ", ")
+
+	lookup := func(key string, n *yaml.Node) (*Molecule, error) {
+		path := "reaction." + key
+		if !given(n) {
+			return nil, p.missing(path, inFile)
+		}
+		name, err := p.name(path, n)
+		if err != nil {
+			return nil, err
+		}
+		m := byName[name]
+		if m == nil {
+			return nil, p.errAt(path, n, problemf("no molecule of this name"), inFile)
+		}
+		return m, nil
+	}
+
+	reactant, err := lookup("reactant", &r.Reactant)
+	if err != nil {
+		return rx, err
+	}
+	if reactant.IsTS {
+		return rx, p.errAt("reaction.reactant", &r.Reactant, problemf("the reactant has an energy: key, which makes it a transition state"),
+			fmt.Sprintf("the reactant is the zero of energy and has no energy:; remove it from molecules.%s or name the stable species here", reactant.Name))
+	}
+	ts, err := lookup("via", &r.Via)
+	if err != nil {
+		return rx, err
+	}
+	if !ts.IsTS {
+		return rx, p.errAt("reaction.via", &r.Via, problemf("not a transition state: it has no energy: key"),
+			fmt.Sprintf("add energy: (the barrier E0 above the reactant's zero-point level) to molecules.%s", ts.Name))
+	}
+	rx.Reactant, rx.Via = reactant.Name, ts.Name
+
+	if given(&r.Products) {
+		pp := "reaction.products"
+		if r.Products.Kind != yaml.SequenceNode {
+			return rx, p.errAt(pp, &r.Products, problemf("expected a list of names, found %s", kindName(&r.Products)),
+				"write products: [A, B]")
+		}
+		for i, n := range r.Products.Content {
+			name, err := p.name(fmt.Sprintf("%s[%d]", pp, i), n)
+			if err != nil {
+				return rx, err
+			}
+			rx.Products = append(rx.Products, name)
+		}
+	}
+
+	if given(&r.PathDegeneracy) {
+		dp := "reaction.path-degeneracy"
+		if r.PathDegeneracy.Kind == yaml.ScalarNode && strings.EqualFold(strings.TrimSpace(r.PathDegeneracy.Value), "auto") {
+			return rx, nil
+		}
+		l, err := p.number(dp, &r.PathDegeneracy)
+		if err != nil {
+			if fe, ok := err.(*FieldError); ok {
+				fe.Hint = "write auto, or a positive number such as 2"
+			}
+			return rx, err
+		}
+		if !(l > 0) {
+			return rx, p.errAt(dp, &r.PathDegeneracy, problemf("must be positive"),
+				"write auto to compute L = σ_R·m‡/(σ‡·m_R), or a positive number")
+		}
+		rx.PathDegeneracy = l
+	}
+	return rx, nil
+}
+
+// bath converts the bath-gas section.
+func (p *parser) bath(r *rawBath) (Bath, error) {
+	var b Bath
+	if !given(&r.Gas) {
+		return b, p.missing("bath.gas", "name the bath gas, e.g. gas: Ar")
+	}
+	gas, err := p.name("bath.gas", &r.Gas)
+	if err != nil {
+		return b, err
+	}
+	b.Gas = gas
+	if given(&r.Mass) {
+		if b.Mass, err = p.quantity("bath.mass", &r.Mass, units.Mass); err != nil {
+			return b, err
+		}
+		if !(b.Mass > 0) {
+			return b, p.errAt("bath.mass", &r.Mass, problemf("a mass must be positive"), "")
+		}
+	}
+	if r.LennardJones != nil {
+		if b.LJ, err = p.lennardJones("bath.lennard-jones", r.LennardJones); err != nil {
+			return b, err
+		}
+	}
+	if given(&r.CollisionRate) {
+		if b.CollisionRate, err = p.collisionRate("bath.collision-rate", &r.CollisionRate); err != nil {
+			return b, err
+		}
+	}
+	return b, nil
+}
+
+// collisionRateUnits are the accepted spellings of the collision rate
+// constant's unit.
+var collisionRateUnits = []string{"cm3/molecule/s", "cm^3/molecule/s"}
+
+// collisionRate reads a collision rate constant in cm³ molecule⁻¹ s⁻¹.
+func (p *parser) collisionRate(path string, n *yaml.Node) (float64, error) {
+	const hint = `write it as e.g. "3.1e-10 cm3/molecule/s"; the unit is cm3/molecule/s or cm^3/molecule/s`
+	if err := p.scalar(path, n, `"3.1e-10 cm3/molecule/s"`); err != nil {
+		return 0, err
+	}
+	num, unit := splitNumber(strings.TrimSpace(n.Value))
+	x, err := strconv.ParseFloat(num, 64)
+	switch {
+	case num == "" || err != nil:
+		return 0, p.errAt(path, n, problemf("not a number"), hint)
+	case unit == "":
+		return 0, p.errAt(path, n, problemf("no unit"), hint)
+	case !slices.Contains(collisionRateUnits, unit):
+		return 0, p.errAt(path, n, problemf("unknown unit %q", unit), hint)
+	case !(x > 0) || x > 1e300:
+		return 0, p.errAt(path, n, problemf("must be positive and finite"), hint)
+	}
+	return x, nil
+}
+
+// transfer converts the energy-transfer section.
+func (p *parser) transfer(r *rawTransfer) (EnergyTransfer, error) {
+	et := EnergyTransfer{Efficiency: 1}
+	models := []string{ExponentialDown, StrongCollider}
+	if !given(&r.Model) {
+		return et, p.missing("energy-transfer.model", "the models are: "+strings.Join(models, ", "))
+	}
+	model, err := p.name("energy-transfer.model", &r.Model)
+	if err != nil {
+		return et, err
+	}
+	if !slices.Contains(models, model) {
+		hint := "the models are: " + strings.Join(models, ", ")
+		if s := closest(model, models); s != "" {
+			hint = "did you mean " + s + "? " + hint
+		}
+		return et, p.errAt("energy-transfer.model", &r.Model, problemf("unknown energy-transfer model"), hint)
+	}
+	et.Model = model
+
+	switch model {
+	case ExponentialDown:
+		if given(&r.Efficiency) {
+			return et, p.errAt("energy-transfer.efficiency", &r.Efficiency, problemf("efficiency belongs to the strong-collider model"),
+				"exponential-down takes alpha-300 and alpha-exponent; delete efficiency")
+		}
+		ap := "energy-transfer.alpha-300"
+		if !given(&r.Alpha300) {
+			return et, p.missing(ap, "give ⟨ΔE⟩down at 300 K, e.g. alpha-300: 250 cm-1")
+		}
+		if et.Alpha300, err = p.quantity(ap, &r.Alpha300, units.Energy); err != nil {
+			return et, err
+		}
+		if !(et.Alpha300 > 0) {
+			return et, p.errAt(ap, &r.Alpha300, problemf("must be positive"), "α300 is ⟨ΔE⟩down at 300 K, typically 100 to 1000 cm-1")
+		}
+		if given(&r.AlphaExponent) {
+			if et.AlphaExponent, err = p.number("energy-transfer.alpha-exponent", &r.AlphaExponent); err != nil {
+				return et, err
+			}
+		}
+	case StrongCollider:
+		for _, f := range []struct {
+			key string
+			n   *yaml.Node
+		}{{"alpha-300", &r.Alpha300}, {"alpha-exponent", &r.AlphaExponent}} {
+			if given(f.n) {
+				return et, p.errAt("energy-transfer."+f.key, f.n, problemf("%s belongs to the exponential-down model", f.key),
+					"strong-collider takes only efficiency (0 < βc ≤ 1); delete "+f.key)
+			}
+		}
+		if given(&r.Efficiency) {
+			ep := "energy-transfer.efficiency"
+			if et.Efficiency, err = p.number(ep, &r.Efficiency); err != nil {
+				return et, err
+			}
+			if !(et.Efficiency > 0 && et.Efficiency <= 1) {
+				return et, p.errAt(ep, &r.Efficiency, problemf("outside (0, 1]"),
+					"the collision efficiency βc is a fraction: 0 < βc ≤ 1")
+			}
+		}
+	}
+	return et, nil
+}

@@ -1,0 +1,298 @@
+package input
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/falloff-kinetics/falloff/pkg/units"
+	"go.yaml.in/yaml/v3"
+)
+
+// given reports whether a key was written in the file.
+func given(n *yaml.Node) bool { return n.Kind != 0 }
+
+// errAt returns a FieldError for the value n of the field at path; n may be
+// nil for a field that is missing or has no single node.
+func (p *parser) errAt(path string, n *yaml.Node, err error, hint string) *FieldError {
+	fe := &FieldError{File: p.file, Path: path, Err: err, Hint: hint}
+	if n != nil && n.Kind != 0 {
+		fe.Line = n.Line
+		switch n.Kind {
+		case yaml.ScalarNode:
+			fe.Value = n.Value
+		case yaml.SequenceNode:
+			fe.Value = flow(n)
+		}
+	} else if p.index != nil {
+		fe.Line = p.index.line(path)
+	}
+	return fe
+}
+
+// flow writes a short list of scalars as [a, b, c], for messages; "" if it
+// is long or nested.
+func flow(n *yaml.Node) string {
+	var items []string
+	for _, c := range n.Content {
+		if c.Kind != yaml.ScalarNode {
+			return ""
+		}
+		items = append(items, c.Value)
+	}
+	s := "[" + strings.Join(items, ", ") + "]"
+	if len(s) > 80 {
+		return ""
+	}
+	return s
+}
+
+// missing reports a required key that is absent.
+func (p *parser) missing(path, hint string) *FieldError {
+	return p.errAt(path, nil, problemf("missing (this key is required)"), hint)
+}
+
+// fileError reports a problem with the file as a whole.
+func (p *parser) fileError(line int, err error, hint string) *FieldError {
+	return &FieldError{File: p.file, Line: line, Err: err, Hint: hint}
+}
+
+// warn records a warning about the field at path.
+func (p *parser) warn(path, format string, args ...any) {
+	w := p.file
+	if p.index != nil {
+		if line := p.index.line(path); line > 0 {
+			w += ":" + strconv.Itoa(line)
+		}
+	}
+	if path != "" {
+		w += ": " + path
+	}
+	p.warnings = append(p.warnings, w+": "+oneLine(fmt.Sprintf(format, args...)))
+}
+
+// scalar checks that n is a single value, not a list or a mapping.
+func (p *parser) scalar(path string, n *yaml.Node, example string) error {
+	if n.Kind == yaml.ScalarNode {
+		return nil
+	}
+	return p.errAt(path, n, problemf("expected a single value such as %s, found %s", example, kindName(n)), "")
+}
+
+// quantity reads a value with its unit, such as "42.0 kcal/mol", into the
+// internal unit of d.
+func (p *parser) quantity(path string, n *yaml.Node, d units.Dimension) (float64, error) {
+	if err := p.scalar(path, n, strconv.Quote(example(d))); err != nil {
+		return 0, err
+	}
+	v, err := units.Parse(n.Value, d)
+	if err != nil {
+		return 0, p.unitError(path, n, n.Value, d, err)
+	}
+	return v, nil
+}
+
+// example is a value of dimension d for hints.
+func example(d units.Dimension) string {
+	switch d {
+	case units.Energy:
+		return "42.0 kcal/mol"
+	case units.Temperature:
+		return "300 K"
+	case units.Mass:
+		return "70.09 amu"
+	case units.Length:
+		return "5.0 angstrom"
+	case units.Pressure:
+		return "1 atm"
+	}
+	return "1 " + d.Internal()
+}
+
+// dimensions are those a unit may wrongly belong to, for "wrong dimension"
+// messages.
+var dimensions = []units.Dimension{units.Energy, units.Temperature, units.Mass,
+	units.Length, units.RotConst, units.Inertia, units.Pressure}
+
+// unitError explains why text, the value of the field at path (node n), is not
+// a valid value of dimension d; err is what units.Parse or units.Factor said.
+func (p *parser) unitError(path string, n *yaml.Node, text string, d units.Dimension, err error) error {
+	var ue *units.UnitError
+	if !errors.As(err, &ue) {
+		return p.errAt(path, n, &problem{msg: err.Error(), cause: err}, "")
+	}
+	list := fmt.Sprintf("%s units: %s", d, ue.Hint())
+	num, unit := splitNumber(strings.TrimSpace(text))
+	x, nerr := strconv.ParseFloat(num, 64)
+	switch {
+	case errors.Is(err, units.ErrNoUnit) && num == "":
+		return p.errAt(path, n, &problem{"no unit", err}, list)
+	case errors.Is(err, units.ErrNoUnit):
+		return p.errAt(path, n, &problem{"no unit", err},
+			fmt.Sprintf("write it with its unit, e.g. %q; %s", num+" "+d.Internal(), list))
+	case num == "" || nerr != nil:
+		return p.errAt(path, n, &problem{"not a number", err},
+			fmt.Sprintf("write a number and its unit, e.g. %q", example(d)))
+	case math.IsInf(x, 0) || math.IsNaN(x):
+		return p.errAt(path, n, &problem{"not a finite number", err}, "")
+	}
+	for _, other := range dimensions {
+		if other == d {
+			continue
+		}
+		if _, err2 := units.Factor(unit, other); err2 == nil {
+			return p.errAt(path, n, &problem{fmt.Sprintf("%q is a unit of %s, not of %s", unit, other, d), err}, list)
+		}
+	}
+	return p.errAt(path, n, &problem{fmt.Sprintf("unknown unit %q", unit), err}, list)
+}
+
+// splitNumber splits "38.4 kcal/mol" into "38.4" and "kcal/mol", as
+// units.Parse does.
+func splitNumber(s string) (num, unit string) {
+	for i := 0; i < len(s); i++ {
+		c := s[i]
+		switch {
+		case c >= '0' && c <= '9', c == '.', c == '+', c == '-':
+		case (c == 'e' || c == 'E') && i > 0 && i+1 < len(s) &&
+			(s[i+1] >= '0' && s[i+1] <= '9' || s[i+1] == '-' || s[i+1] == '+'):
+		default:
+			return s[:i], strings.TrimSpace(s[i:])
+		}
+	}
+	return s, ""
+}
+
+// errHasUnit marks a plain number written with a unit after it.
+var errHasUnit = errors.New("unit on a plain number")
+
+// number reads a plain number without a unit.
+func (p *parser) number(path string, n *yaml.Node) (float64, error) {
+	if err := p.scalar(path, n, "1"); err != nil {
+		return 0, err
+	}
+	text := strings.TrimSpace(n.Value)
+	switch strings.ToLower(strings.TrimLeft(text, "+-")) {
+	case ".inf", "inf", "infinity", ".nan", "nan":
+		return 0, p.errAt(path, n, problemf("not a finite number"), "")
+	}
+	x, err := strconv.ParseFloat(text, 64)
+	if err == nil && !math.IsInf(x, 0) {
+		return x, nil
+	}
+	if num, unit := splitNumber(text); num != "" && unit != "" {
+		if _, err := strconv.ParseFloat(num, 64); err == nil {
+			return 0, p.errAt(path, n, &problem{fmt.Sprintf("expected a plain number, found one with %q after it", unit), errHasUnit},
+				"this value takes no unit")
+		}
+	}
+	if math.IsInf(x, 0) {
+		return 0, p.errAt(path, n, problemf("not a finite number"), "")
+	}
+	return 0, p.errAt(path, n, problemf("not a number"), "")
+}
+
+// maxCount bounds integers that size arrays (grid points) and counts
+// (symmetry numbers, degeneracies), so that a typo cannot exhaust memory.
+const maxCount = 100_000
+
+// integer reads a whole number, such as a symmetry number or a count.
+func (p *parser) integer(path string, n *yaml.Node) (int, error) {
+	x, err := p.number(path, n)
+	if err != nil {
+		return 0, err
+	}
+	if x != math.Trunc(x) {
+		return 0, p.errAt(path, n, problemf("not a whole number"), "")
+	}
+	if math.Abs(x) > maxCount {
+		return 0, p.errAt(path, n, problemf("too large (at most %d)", maxCount), "")
+	}
+	return int(x), nil
+}
+
+// boolean reads true or false.
+func (p *parser) boolean(path string, n *yaml.Node) (bool, error) {
+	if err := p.scalar(path, n, "true"); err != nil {
+		return false, err
+	}
+	switch n.Value {
+	case "true":
+		return true, nil
+	case "false":
+		return false, nil
+	}
+	return false, p.errAt(path, n, problemf("expected true or false"), "")
+}
+
+// name reads a non-empty name without white space (a species or gas name).
+func (p *parser) name(path string, n *yaml.Node) (string, error) {
+	if err := p.scalar(path, n, "a name"); err != nil {
+		return "", err
+	}
+	s := n.Value
+	switch {
+	case strings.TrimSpace(s) == "":
+		return "", p.errAt(path, n, problemf("empty name"), "")
+	case strings.IndexFunc(s, isSpace) >= 0:
+		return "", p.errAt(path, n, problemf("a name may not contain white space"), "join the words with '-' or '_'")
+	}
+	return s, nil
+}
+
+func isSpace(r rune) bool { return r == ' ' || r == '\t' || r == '\n' || r == '\r' }
+
+// list reads a list of numbers with one unit, {unit: U, values: [...]}, into
+// the internal unit of d. It returns the value nodes for later messages.
+func (p *parser) list(path string, r *rawList, d units.Dimension) ([]float64, []*yaml.Node, error) {
+	unitHint := fmt.Sprintf("a list carries one unit: {unit: %s, values: [...]}; %s units: %s",
+		d.Internal(), d, strings.Join(unitNames(d), ", "))
+	if !given(&r.Unit) {
+		return nil, nil, p.missing(path+".unit", unitHint)
+	}
+	if err := p.scalar(path+".unit", &r.Unit, d.Internal()); err != nil {
+		return nil, nil, err
+	}
+	if strings.TrimSpace(r.Unit.Value) == "" {
+		return nil, nil, p.errAt(path+".unit", &r.Unit, problemf("empty unit"), unitHint)
+	}
+	f, err := units.Factor(r.Unit.Value, d)
+	if err != nil {
+		return nil, nil, p.unitError(path+".unit", &r.Unit, "1 "+r.Unit.Value, d, err)
+	}
+	if !given(&r.Values) {
+		return nil, nil, p.missing(path+".values", "write the numbers as values: [1, 2, 3]")
+	}
+	if r.Values.Kind != yaml.SequenceNode {
+		return nil, nil, p.errAt(path+".values", &r.Values,
+			problemf("expected a list of numbers such as [1, 2, 3], found %s", kindName(&r.Values)), "")
+	}
+	if len(r.Values.Content) == 0 {
+		return nil, nil, p.errAt(path+".values", &r.Values, problemf("empty list"), "give at least one number or delete the key")
+	}
+	xs := make([]float64, len(r.Values.Content))
+	for i, n := range r.Values.Content {
+		x, err := p.number(fmt.Sprintf("%s.values[%d]", path, i), n)
+		if err != nil {
+			var fe *FieldError
+			if errors.As(err, &fe) && errors.Is(err, errHasUnit) {
+				fe.Hint = "the unit is given once for the whole list, in unit:"
+			}
+			return nil, nil, err
+		}
+		xs[i] = x * f
+	}
+	return xs, r.Values.Content, nil
+}
+
+// unitNames lists the accepted units of d.
+func unitNames(d units.Dimension) []string {
+	_, err := units.Factor("", d)
+	var ue *units.UnitError
+	if errors.As(err, &ue) {
+		return strings.Split(ue.Hint(), ", ")
+	}
+	return []string{d.Internal()}
+}

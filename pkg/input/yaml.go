@@ -1,0 +1,472 @@
+package input
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"reflect"
+	"regexp"
+	"slices"
+	"strconv"
+	"strings"
+
+	"go.yaml.in/yaml/v3"
+)
+
+// The raw types mirror the file. Leaves stay yaml.Nodes, so that the text as
+// written and its line travel into error messages; mappings are structs, so
+// that the decoder, with KnownFields, rejects a key it does not know.
+
+type rawFile struct {
+	Title          yaml.Node               `yaml:"title"`
+	Molecules      map[string]*rawMolecule `yaml:"molecules"`
+	Reaction       *rawReaction            `yaml:"reaction"`
+	Bath           *rawBath                `yaml:"bath"`
+	EnergyTransfer *rawTransfer            `yaml:"energy-transfer"`
+	Grid           *rawGrid                `yaml:"grid"`
+	Fits           yaml.Node               `yaml:"fits"`
+	EnergyGrid     *rawEnergyGrid          `yaml:"energy-grid"`
+}
+
+type rawMolecule struct {
+	Mass           yaml.Node    `yaml:"mass"`
+	Energy         yaml.Node    `yaml:"energy"`
+	Imaginary      yaml.Node    `yaml:"imaginary-frequency"`
+	Vibrations     *rawList     `yaml:"vibrations"`
+	Rotation       *rawRotation `yaml:"rotation"`
+	OpticalIsomers yaml.Node    `yaml:"optical-isomers"`
+	Electronic     []*rawLevel  `yaml:"electronic"`
+	LennardJones   *rawLJ       `yaml:"lennard-jones"`
+}
+
+// rawList is a list of numbers with one unit: {unit: cm-1, values: [...]}.
+type rawList struct {
+	Unit   yaml.Node `yaml:"unit"`
+	Values yaml.Node `yaml:"values"`
+}
+
+type rawRotation struct {
+	Linear    yaml.Node `yaml:"linear"`
+	Constants *rawList  `yaml:"constants"`
+	Inertia   *rawList  `yaml:"inertia"`
+	Symmetry  yaml.Node `yaml:"symmetry"`
+}
+
+type rawLevel struct {
+	Energy     yaml.Node `yaml:"energy"`
+	Degeneracy yaml.Node `yaml:"degeneracy"`
+}
+
+type rawLJ struct {
+	Sigma   yaml.Node `yaml:"sigma"`
+	Epsilon yaml.Node `yaml:"epsilon"`
+}
+
+type rawReaction struct {
+	Reactant       yaml.Node `yaml:"reactant"`
+	Via            yaml.Node `yaml:"via"`
+	Products       yaml.Node `yaml:"products"`
+	PathDegeneracy yaml.Node `yaml:"path-degeneracy"`
+}
+
+type rawBath struct {
+	Gas           yaml.Node `yaml:"gas"`
+	Mass          yaml.Node `yaml:"mass"`
+	LennardJones  *rawLJ    `yaml:"lennard-jones"`
+	CollisionRate yaml.Node `yaml:"collision-rate"`
+}
+
+type rawTransfer struct {
+	Model         yaml.Node `yaml:"model"`
+	Alpha300      yaml.Node `yaml:"alpha-300"`
+	AlphaExponent yaml.Node `yaml:"alpha-exponent"`
+	Efficiency    yaml.Node `yaml:"efficiency"`
+}
+
+type rawGrid struct {
+	Temperatures *rawRange `yaml:"temperatures"`
+	Pressures    *rawRange `yaml:"pressures"`
+}
+
+// rawRange is either {from, to, points} or {unit, values}.
+type rawRange struct {
+	From   yaml.Node `yaml:"from"`
+	To     yaml.Node `yaml:"to"`
+	Points yaml.Node `yaml:"points"`
+	Unit   yaml.Node `yaml:"unit"`
+	Values yaml.Node `yaml:"values"`
+}
+
+type rawEnergyGrid struct {
+	FineGrain yaml.Node `yaml:"fine-grain"`
+	Grain     yaml.Node `yaml:"grain"`
+	Ceiling   yaml.Node `yaml:"ceiling"`
+}
+
+// shapes describes each raw type for messages about a value of the wrong
+// kind: what the field should look like.
+var shapes = map[reflect.Type]string{
+	reflect.TypeFor[rawFile]():                 "a mapping of top-level keys (title, molecules, reaction, ...)",
+	reflect.TypeFor[map[string]*rawMolecule](): "a mapping from molecule names to molecules",
+	reflect.TypeFor[rawMolecule]():             "a mapping of molecule keys such as mass, vibrations, rotation",
+	reflect.TypeFor[rawList]():                 "a unit and a list of numbers, {unit: cm-1, values: [3010, 1450]}",
+	reflect.TypeFor[rawRotation]():             "a mapping such as {constants: {unit: cm-1, values: [A, B, C]}, symmetry: 1}",
+	reflect.TypeFor[[]*rawLevel]():             "a list of levels such as [{energy: 0 cm-1, degeneracy: 1}]",
+	reflect.TypeFor[rawLevel]():                "a level such as {energy: 0 cm-1, degeneracy: 1}",
+	reflect.TypeFor[rawLJ]():                   "a mapping such as {sigma: 5.0 angstrom, epsilon: 400 K}",
+	reflect.TypeFor[rawReaction]():             "a mapping such as {reactant: NAME, via: TS-NAME, products: [A, B]}",
+	reflect.TypeFor[rawBath]():                 "a mapping such as {gas: Ar}",
+	reflect.TypeFor[rawTransfer]():             "a mapping such as {model: exponential-down, alpha-300: 250 cm-1}",
+	reflect.TypeFor[rawGrid]():                 "a mapping with temperatures and, optionally, pressures",
+	reflect.TypeFor[rawRange]():                "{from: 300 K, to: 2500 K, points: 12} or {unit: K, values: [300, 400]}",
+	reflect.TypeFor[rawEnergyGrid]():           "a mapping such as {fine-grain: 1 cm-1, grain: 10 cm-1}",
+}
+
+// shapeByName finds a raw type by the name the YAML decoder prints for it.
+func shapeByName(name string) (reflect.Type, string, bool) {
+	name = strings.TrimLeft(name, "*")
+	for t, s := range shapes {
+		if t.String() == name {
+			return t, s, true
+		}
+	}
+	return nil, "", false
+}
+
+// keysOf lists the YAML keys of a raw struct type in declaration order.
+func keysOf(t reflect.Type) []string {
+	var keys []string
+	for i := range t.NumField() {
+		if k, _, _ := strings.Cut(t.Field(i).Tag.Get("yaml"), ","); k != "" {
+			keys = append(keys, k)
+		}
+	}
+	return keys
+}
+
+// decode reads data as a single YAML document into the node tree and into the
+// raw types, mapping every YAML error onto a FieldError.
+func (p *parser) decode(data []byte) (*rawFile, error) {
+	var doc yaml.Node
+	dec := yaml.NewDecoder(bytes.NewReader(data))
+	if err := dec.Decode(&doc); err != nil {
+		if errors.Is(err, io.EOF) {
+			return nil, p.fileError(0, errEmpty, hintStart)
+		}
+		return nil, p.syntaxError(err)
+	}
+	if len(doc.Content) == 0 || isNull(doc.Content[0]) {
+		return nil, p.fileError(0, errEmpty, hintStart)
+	}
+	var next yaml.Node
+	if err := dec.Decode(&next); !errors.Is(err, io.EOF) {
+		line := next.Line
+		if err != nil {
+			return nil, p.syntaxError(err)
+		}
+		return nil, p.fileError(line, problemf("more than one YAML document"), "keep one input per file; remove the second ---")
+	}
+	root := doc.Content[0]
+	if root.Kind != yaml.MappingNode {
+		return nil, p.fileError(root.Line,
+			problemf("not a falloff input: the top level is %s, not a mapping of keys", kindName(root)), hintStart)
+	}
+	// Decode before indexing: the decoder refuses excessive aliasing, which
+	// the index, following aliases, would otherwise expand.
+	var raw rawFile
+	dec = yaml.NewDecoder(bytes.NewReader(data))
+	dec.KnownFields(true)
+	err := dec.Decode(&raw)
+	var te *yaml.TypeError
+	if err != nil && !(errors.As(err, &te) && len(te.Errors) > 0) {
+		return nil, p.syntaxError(err)
+	}
+	p.index = newIndex(root)
+	if te != nil {
+		return nil, p.typeError(te.Errors[0], len(te.Errors)-1)
+	}
+	// A key with nothing after it is almost always an unfinished edit; say so
+	// here rather than let it pass as "absent".
+	for _, v := range p.index.values {
+		if isNull(v.node) && v.node.Kind == yaml.ScalarNode {
+			return nil, p.errAt(v.path, v.node, problemf("no value"), "give a value or delete the key")
+		}
+	}
+	return &raw, nil
+}
+
+var (
+	errEmpty  = problemf("the file is empty")
+	hintStart = "start from the demo input (internal/demo/demo.yaml) and docs/input.md"
+)
+
+var syntaxLine = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
+
+// syntaxError turns a YAML parser error into a FieldError for the whole file.
+func (p *parser) syntaxError(err error) error {
+	msg := err.Error()
+	line := 0
+	if m := syntaxLine.FindStringSubmatch(msg); m != nil {
+		line, _ = strconv.Atoi(m[1])
+		msg = m[2]
+	} else {
+		msg = strings.TrimPrefix(msg, "yaml: ")
+	}
+	return p.fileError(line, &problem{msg: "not valid YAML: " + msg, cause: err},
+		"check the indentation and the brackets near this line")
+}
+
+var (
+	reUnknown   = regexp.MustCompile("^line (\\d+): field (.+) not found in type (.+)$")
+	reWrongKind = regexp.MustCompile("^line (\\d+): cannot unmarshal (\\S+)(?: `(.*)`)? into (.+)$")
+	reLine      = regexp.MustCompile(`^line (\d+): (.*)$`)
+	reDuplicate = regexp.MustCompile(`^line (\d+): mapping key "(.*)" already defined at line (\d+)$`)
+)
+
+// typeError maps one message of a yaml.TypeError onto a FieldError with the
+// path of the field it concerns; more says how many further problems the
+// decoder found.
+func (p *parser) typeError(msg string, more int) error {
+	var fe *FieldError
+	switch m := reUnknown.FindStringSubmatch(msg); {
+	case m != nil:
+		line, _ := strconv.Atoi(m[1])
+		key := m[2]
+		hint := ""
+		if t, _, ok := shapeByName(m[3]); ok {
+			keys := keysOf(t)
+			hint = "the keys here are: " + strings.Join(keys, ", ")
+			if s := closest(key, keys); s != "" {
+				hint = "did you mean " + s + "? " + hint
+			}
+		}
+		path := p.index.keyPath(line, key)
+		fe = &FieldError{Line: line, Path: path, Value: key, Err: problemf("unknown key"), Hint: hint}
+	case reWrongKind.MatchString(msg):
+		m := reWrongKind.FindStringSubmatch(msg)
+		line, _ := strconv.Atoi(m[1])
+		tag, text := m[2], m[3]
+		path, node := p.index.valueAt(line, tag, text)
+		found := "a " + strings.TrimPrefix(tag, "!!")
+		if node != nil {
+			found = kindName(node)
+		}
+		want := "another kind of value"
+		if _, s, ok := shapeByName(m[4]); ok {
+			want = s
+		}
+		fe = p.errAt(path, node, problemf("expected %s, found %s", want, found), "")
+		fe.Line = line
+		if strings.HasSuffix(m[4], "rawList") && node != nil && node.Kind == yaml.SequenceNode {
+			fe.Hint = "a list carries its unit: write {unit: cm-1, values: [...]}"
+		}
+	case reDuplicate.MatchString(msg):
+		m := reDuplicate.FindStringSubmatch(msg)
+		line, _ := strconv.Atoi(m[1])
+		fe = &FieldError{Line: line, Path: p.index.keyPath(line, m[2]), Value: m[2],
+			Err: problemf("key given twice (first at line %s)", m[3]), Hint: "keep one of them"}
+	default:
+		fe = &FieldError{Err: problemf("%s", msg)}
+		if m := reLine.FindStringSubmatch(msg); m != nil {
+			fe.Line, _ = strconv.Atoi(m[1])
+			fe.Err = problemf("%s", m[2])
+		}
+	}
+	if more > 0 {
+		fe.Err = problemf("%v (and %d more problem%s)", fe.Err, more, plural(more))
+	}
+	fe.File = p.file
+	return fe
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}
+
+// closest returns the key in keys nearest to k by edit distance, if it is
+// near enough to be a likely misspelling.
+func closest(k string, keys []string) string {
+	best, bestD := "", 3
+	for _, c := range keys {
+		if d := editDistance(strings.ToLower(k), c); d < bestD {
+			best, bestD = c, d
+		}
+	}
+	return best
+}
+
+// editDistance is the Levenshtein distance between a and b, in bytes.
+func editDistance(a, b string) int {
+	prev := make([]int, len(b)+1)
+	cur := make([]int, len(b)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(a); i++ {
+		cur[0] = i
+		for j := 1; j <= len(b); j++ {
+			cost := 1
+			if a[i-1] == b[j-1] {
+				cost = 0
+			}
+			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
+		}
+		prev, cur = cur, prev
+	}
+	return prev[len(b)]
+}
+
+func isNull(n *yaml.Node) bool {
+	return n.Kind == yaml.ScalarNode && n.Tag == "!!null"
+}
+
+// kindName says what a node is, for messages.
+func kindName(n *yaml.Node) string {
+	switch n.Kind {
+	case yaml.MappingNode:
+		return "a mapping"
+	case yaml.SequenceNode:
+		return "a list"
+	case yaml.AliasNode:
+		return "an alias"
+	case yaml.ScalarNode:
+		if isNull(n) {
+			return "nothing"
+		}
+		return strconv.Quote(n.Value)
+	}
+	return "nothing"
+}
+
+// located is a node with the dotted path of the field it is the key or the
+// value of.
+type located struct {
+	path string
+	node *yaml.Node
+}
+
+// nodeIndex records the path of every key and value in the file, to name the
+// field a YAML error (which gives only a line) is about, and the line of a
+// field a later check is about.
+type nodeIndex struct {
+	keys   []located // key nodes, in document order
+	values []located // value nodes, in document order
+	byPath map[string]*yaml.Node
+	depth  int // nesting depth of the walk
+}
+
+func newIndex(root *yaml.Node) *nodeIndex {
+	ix := &nodeIndex{byPath: map[string]*yaml.Node{}}
+	ix.walk(root, "")
+	return ix
+}
+
+func (ix *nodeIndex) walk(n *yaml.Node, path string) {
+	switch n.Kind {
+	case yaml.MappingNode:
+		for i := 0; i+1 < len(n.Content); i += 2 {
+			k, v := n.Content[i], n.Content[i+1]
+			kp := join(path, k.Value)
+			ix.keys = append(ix.keys, located{kp, k})
+			ix.add(kp, v)
+		}
+	case yaml.SequenceNode:
+		for i, c := range n.Content {
+			ix.add(fmt.Sprintf("%s[%d]", path, i), c)
+		}
+	}
+}
+
+// maxAliasDepth bounds how deeply aliases are followed, so that an alias to
+// its own ancestor cannot loop; the decoder reports such a file anyway.
+const maxAliasDepth = 32
+
+// maxIndexed bounds the number of indexed values; beyond it messages may
+// lack a path, but a pathological file cannot exhaust memory.
+const maxIndexed = 1_000_000
+
+func (ix *nodeIndex) add(path string, v *yaml.Node) {
+	ix.values = append(ix.values, located{path, v})
+	// An alias stands for its anchored node: index that under this path
+	// too, so that the checks see the aliased keys.
+	for depth := 0; v.Kind == yaml.AliasNode && v.Alias != nil && depth < maxAliasDepth; depth++ {
+		v = v.Alias
+	}
+	if v.Kind == yaml.AliasNode {
+		return
+	}
+	if _, dup := ix.byPath[path]; !dup {
+		ix.byPath[path] = v
+	}
+	if ix.depth++; ix.depth < maxAliasDepth*4 && len(ix.values) < maxIndexed {
+		ix.walk(v, path)
+	}
+	ix.depth--
+}
+
+func join(path, key string) string {
+	if path == "" {
+		return key
+	}
+	return path + "." + key
+}
+
+// keyPath returns the path of the first key called name on line.
+func (ix *nodeIndex) keyPath(line int, name string) string {
+	for _, k := range ix.keys {
+		if k.node.Line == line && k.node.Value == name {
+			return k.path
+		}
+	}
+	return ""
+}
+
+// valueAt finds the value node on line that the decoder described by its tag
+// and (possibly truncated) text.
+func (ix *nodeIndex) valueAt(line int, tag, text string) (string, *yaml.Node) {
+	prefix, truncated := strings.CutSuffix(text, "...")
+	for _, v := range ix.values {
+		n := v.node
+		if n.Line != line || n.ShortTag() != tag {
+			continue
+		}
+		if n.Kind == yaml.ScalarNode && !(n.Value == text || truncated && strings.HasPrefix(n.Value, prefix)) {
+			continue
+		}
+		return v.path, n
+	}
+	return "", nil
+}
+
+// line returns the line of the field at path, or of its nearest ancestor that
+// is in the file.
+func (ix *nodeIndex) line(path string) int {
+	for path != "" {
+		if n, ok := ix.byPath[path]; ok {
+			return n.Line
+		}
+		i := strings.LastIndexAny(path, ".[")
+		if i < 0 {
+			break
+		}
+		path = path[:i]
+	}
+	return 0
+}
+
+// mappingKeys returns the keys of the mapping at path in file order.
+func (ix *nodeIndex) mappingKeys(path string) []string {
+	n, ok := ix.byPath[path]
+	if !ok || n.Kind != yaml.MappingNode {
+		return nil
+	}
+	var keys []string
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		keys = append(keys, n.Content[i].Value)
+	}
+	return slices.Clip(keys)
+}
