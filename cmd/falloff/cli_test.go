@@ -1,0 +1,262 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"flag"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/falloff-kinetics/falloff/internal/demo"
+	"github.com/falloff-kinetics/falloff/pkg/input"
+)
+
+var update = flag.Bool("update", false, "update golden files")
+
+const hcnFile = "../../testdata/hcn-isomerization.yaml"
+
+// runCLI runs the command in-process and returns the exit code and streams.
+func runCLI(t *testing.T, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := run(args, strings.NewReader(""), &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+// golden compares got with testdata/name, or rewrites it under -update.
+// Goldens are reviewed by eye when they change.
+func golden(t *testing.T, name, got string) {
+	t.Helper()
+	path := filepath.Join("testdata", name)
+	if *update {
+		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	want, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatalf("%v (run go test ./cmd/falloff -update to create it)", err)
+	}
+	if got != string(want) {
+		t.Errorf("%s differs from the golden file; run with -update and review the diff\ngot:\n%s", name, got)
+	}
+}
+
+func TestTerminalReports(t *testing.T) {
+	cases := []struct {
+		name string
+		args []string
+	}{
+		{"check-demo.txt", []string{"check", "-q"}},
+		{"check-hcn.txt", []string{"check", hcnFile}},
+		{"states-hcn.txt", []string{"states", "-q", "--step", "4000 cm-1", "--ceiling", "30000 cm-1", hcnFile}},
+		{"micro-hcn.txt", []string{"micro", "-q", hcnFile}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			code, out, errs := runCLI(t, tc.args...)
+			if code != exitOK {
+				t.Fatalf("exit %d: %s", code, errs)
+			}
+			golden(t, tc.name, out)
+		})
+	}
+}
+
+// The demo runs without a file and says so on stderr; `example` prints the
+// same input, which parses.
+func TestDemoAndExample(t *testing.T) {
+	code, out, errs := runCLI(t, "example")
+	if code != exitOK || out != string(demo.Text) {
+		t.Fatalf("example: exit %d, output differs from the demo", code)
+	}
+	if _, err := input.Parse("example", []byte(out)); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errs = runCLI(t, "check")
+	if code != exitOK || !strings.Contains(errs, "built-in demo") {
+		t.Errorf("check with no file: exit %d, stderr %q", code, errs)
+	}
+}
+
+type microJSON struct {
+	Channels []struct {
+		Name           string    `json:"name"`
+		E0             float64   `json:"E0_cm-1"`
+		L              float64   `json:"path_degeneracy"`
+		Energies       []float64 `json:"energies_cm-1"`
+		K              []float64 `json:"k_per_s"`
+		Temperatures   []float64 `json:"temperatures_K"`
+		KInf           []float64 `json:"k_inf"`
+		KInfIntegrated []float64 `json:"k_inf_integrated"`
+	} `json:"channels"`
+}
+
+// `micro --json` on the demo prints one JSON object whose thermal average of
+// k(E) equals canonical TST at every temperature (the TST identity, Holbrook,
+// Pilling & Robertson 1996; 1e-3 covers the O((Δ/kT)²) grain error at 300 K).
+func TestMicroJSONDemo(t *testing.T) {
+	code, out, errs := runCLI(t, "micro", "--json")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if errs != "" {
+		t.Errorf("--json wrote to stderr: %q", errs)
+	}
+	var m microJSON
+	dec := json.NewDecoder(strings.NewReader(out))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&struct {
+		File     string `json:"file"`
+		Note     string `json:"note"`
+		Channels any    `json:"channels"`
+	}{}); err != nil {
+		t.Fatalf("not one JSON object with the contract's fields: %v", err)
+	}
+	if err := json.Unmarshal([]byte(out), &m); err != nil {
+		t.Fatal(err)
+	}
+	if len(m.Channels) != 1 {
+		t.Fatalf("%d channels", len(m.Channels))
+	}
+	c := m.Channels[0]
+	if len(c.Energies) != len(c.K) || len(c.Temperatures) != len(c.KInf) || len(c.KInf) != len(c.KInfIntegrated) {
+		t.Fatal("array lengths differ")
+	}
+	for i, tK := range c.Temperatures {
+		if r := c.KInfIntegrated[i] / c.KInf[i]; math.Abs(r-1) > 1e-3 {
+			t.Errorf("%v K: <k(E)>/k∞ = %v", tK, r)
+		}
+	}
+	for i, k := range c.K {
+		if c.Energies[i] < c.E0 && k != 0 {
+			t.Fatalf("k(%v cm-1) = %v below E0 = %v", c.Energies[i], k, c.E0)
+		}
+		if i > 0 && k < c.K[i-1] {
+			// RRKM k(E) of a single channel rises with energy (W‡ grows
+			// faster than ρ above threshold: a fact of the theory).
+			t.Fatalf("k(E) falls at %v cm-1", c.Energies[i])
+		}
+	}
+}
+
+// `states --json` follows design.md §8: species with partition functions,
+// grain, energies, densities and sums. The numbers are compared parsed with a
+// golden file to 1e-9 relative (floating-point summation order only).
+func TestStatesJSON(t *testing.T) {
+	code, out, errs := runCLI(t, "states", "--json", "--ceiling", "20000 cm-1", "--grain", "100 cm-1", hcnFile)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	goldenJSON(t, "states-hcn.json", out, 1e-9)
+}
+
+// goldenJSON compares a JSON document with testdata/name value by value,
+// numbers within rel relative tolerance.
+func goldenJSON(t *testing.T, name, got string, rel float64) {
+	t.Helper()
+	if *update {
+		golden(t, name, got)
+		return
+	}
+	want, err := os.ReadFile(filepath.Join("testdata", name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var g, w any
+	if err := json.Unmarshal([]byte(got), &g); err != nil {
+		t.Fatalf("output is not JSON: %v", err)
+	}
+	if err := json.Unmarshal(want, &w); err != nil {
+		t.Fatal(err)
+	}
+	if msg := jsonDiff("", g, w, rel); msg != "" {
+		t.Errorf("%s: %s (run with -update and review)", name, msg)
+	}
+}
+
+func jsonDiff(path string, g, w any, rel float64) string {
+	switch wv := w.(type) {
+	case float64:
+		gv, ok := g.(float64)
+		if !ok || math.Abs(gv-wv) > rel*math.Max(math.Abs(wv), 1e-300) {
+			return fmt.Sprintf("%s = %v, golden %v", path, g, wv)
+		}
+	case []any:
+		gv, ok := g.([]any)
+		if !ok || len(gv) != len(wv) {
+			return fmt.Sprintf("%s: length or type differs", path)
+		}
+		for i := range wv {
+			if m := jsonDiff(fmt.Sprintf("%s[%d]", path, i), gv[i], wv[i], rel); m != "" {
+				return m
+			}
+		}
+	case map[string]any:
+		gv, ok := g.(map[string]any)
+		if !ok || len(gv) != len(wv) {
+			return fmt.Sprintf("%s: fields differ", path)
+		}
+		for k := range wv {
+			if m := jsonDiff(path+"."+k, gv[k], wv[k], rel); m != "" {
+				return m
+			}
+		}
+	default:
+		if g != w {
+			return fmt.Sprintf("%s = %v, golden %v", path, g, w)
+		}
+	}
+	return ""
+}
+
+func TestExitCodes(t *testing.T) {
+	dir := t.TempDir()
+	bad := filepath.Join(dir, "bad.yaml")
+	if err := os.WriteFile(bad, []byte(strings.Replace(string(demo.Text), "energy: 42.0 kcal/mol", "energy: 42.0", 1)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		name string
+		args []string
+		code int
+		msg  string
+	}{
+		{"missing unit", []string{"check", bad}, exitInput, "energy"},
+		{"missing file", []string{"micro", filepath.Join(dir, "none.yaml")}, exitInput, "none.yaml"},
+		{"unknown verb", []string{"frobnicate"}, exitUsage, "unknown command"},
+		{"unknown flag", []string{"micro", "--frob"}, exitUsage, "--frob"},
+		{"grain without unit", []string{"micro", "--grain", "10"}, exitUsage, "no unit"},
+		{"two files", []string{"states", "a", "b"}, exitUsage, "at most one"},
+		{"help", []string{"micro", "--help"}, exitOK, ""},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			code, _, errs := runCLI(t, tc.args...)
+			if code != tc.code {
+				t.Errorf("exit %d, want %d (stderr %q)", code, tc.code, errs)
+			}
+			if !strings.Contains(errs, tc.msg) || strings.Count(strings.TrimSpace(errs), "\n") > 0 {
+				t.Errorf("stderr %q: want one line mentioning %q", errs, tc.msg)
+			}
+		})
+	}
+}
+
+// Every verb's --help shows a worked example.
+func TestHelp(t *testing.T) {
+	for _, v := range verbs() {
+		code, out, _ := runCLI(t, v.name, "--help")
+		if code != exitOK || !strings.Contains(out, "Example:") || !strings.Contains(out, "falloff "+v.name) {
+			t.Errorf("%s --help: exit %d, output %q", v.name, code, out)
+		}
+	}
+	if code, out, _ := runCLI(t, "help"); code != exitOK || !strings.Contains(out, "qualified review") {
+		t.Errorf("help: exit %d or no caution", code)
+	}
+}
