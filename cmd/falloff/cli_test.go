@@ -114,6 +114,7 @@ func TestMicroJSONDemo(t *testing.T) {
 	if err := dec.Decode(&struct {
 		File     string `json:"file"`
 		Note     string `json:"note"`
+		Caution  string `json:"caution"`
 		Channels any    `json:"channels"`
 	}{}); err != nil {
 		t.Fatalf("not one JSON object with the contract's fields: %v", err)

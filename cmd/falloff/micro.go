@@ -69,6 +69,7 @@ type microChannel struct {
 type microReport struct {
 	File     string         `json:"file"`
 	Note     string         `json:"note"`
+	Caution  string         `json:"caution"`
 	Channels []microChannel `json:"channels"`
 }
 
@@ -104,7 +105,7 @@ func runMicro(o microOptions, m *input.Model, s streams) error {
 		return err
 	}
 	if o.json {
-		return writeJSON(s.out, microReport{File: m.File, Note: microNote, Channels: []microChannel{mc}})
+		return writeJSON(s.out, microReport{File: m.File, Note: microNote, Caution: caution, Channels: []microChannel{mc}})
 	}
 	step, _ := units.Parse(o.step, units.Energy)
 	fmt.Fprintf(s.out, "%s: %s\nchannel %s: E0 = %s cm-1 (%s kcal/mol), L = %g, %s cm-1 grains\n\n",
@@ -123,5 +124,9 @@ func runMicro(o microOptions, m *input.Model, s streams) error {
 	for i, t := range mc.Temperatures {
 		rows = append(rows, []string{num(t), num(mc.KInf[i]), num(mc.KInfIntegrated[i]), num6(mc.KInfIntegrated[i] / mc.KInf[i])})
 	}
-	return renderTable(s.out, []string{"T / K", "k∞ TST / s-1", "<k(E)> / s-1", "ratio"}, rows)
+	if err := renderTable(s.out, []string{"T / K", "k∞ TST / s-1", "<k(E)> / s-1", "ratio"}, rows); err != nil {
+		return err
+	}
+	_, err = fmt.Fprintln(s.out, "\n"+caution)
+	return err
 }

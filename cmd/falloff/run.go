@@ -123,6 +123,10 @@ remain subject to local codes and qualified review.
 `)
 }
 
+// caution goes with every report of rate coefficients.
+const caution = "Caution: computed rate coefficients are model estimates; validate them against experiment " +
+	"before using them in safety, hazard or design decisions, which remain subject to local codes and qualified review."
+
 // version is the program version, written into output headers.
 const version = "0.1.0-dev"
 
