@@ -4,50 +4,19 @@ import (
 	"fmt"
 	"math"
 
-	"github.com/spf13/pflag"
-
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
-type microOptions struct {
-	json, quiet bool
-	step        string
-	energy      energyOptions
-}
-
-func (o *microOptions) addFlags(fs *pflag.FlagSet) {
-	fs.BoolVar(&o.json, "json", false, "print one JSON object (every grain) instead of tables")
-	fs.StringVar(&o.step, "step", "2000 cm-1", "energy spacing of the k(E) rows in the terminal table, with its unit")
-	o.energy.addFlags(fs)
-	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no chatter or warnings on stderr")
-}
-
-func (o *microOptions) validate(args []string) error {
-	if len(args) > 1 {
-		return usagef("micro takes at most one input file, got %d", len(args))
-	}
-	if _, err := units.Parse(o.step, units.Energy); err != nil {
-		return usagef("--step: %v", err)
-	}
-	return o.energy.check()
-}
+type microOptions struct{ reportOptions }
 
 func runMicroCmd(args []string, s streams) error {
-	var o microOptions
-	fs := newFlags("micro", "micro [flags] [FILE]",
+	o := microOptions{reportOptions{step: "2000 cm-1"}}
+	m, err := o.parse("micro", args, s,
 		"  falloff micro                          # the built-in demo\n"+
 			"  falloff micro ring.yaml --grain \"20 cm-1\"\n"+
-			"  falloff micro ring.yaml --json > micro.json", s)
-	o.addFlags(fs)
-	if err := parseFlags(fs, args); err != nil {
-		return err
-	}
-	if err := o.validate(fs.Args()); err != nil {
-		return err
-	}
-	m, err := loadModel(fs.Args(), o.quiet || o.json, s)
+			"  falloff micro ring.yaml --json > micro.json")
 	if err != nil {
 		return err
 	}
@@ -107,7 +76,7 @@ func runMicro(o microOptions, m *input.Model, s streams) error {
 	if o.json {
 		return writeJSON(s.out, microReport{File: m.File, Note: microNote, Caution: caution, Channels: []microChannel{mc}})
 	}
-	step, _ := units.Parse(o.step, units.Energy)
+	step := o.stepCm1()
 	fmt.Fprintf(s.out, "%s: %s\nchannel %s: E0 = %s cm-1 (%s kcal/mol), L = %g, %s cm-1 grains\n\n",
 		m.File, m.Title, mc.Name, numE(mc.E0), num(mc.E0/units.Cm1PerKcalPerMol), mc.L, num(mc.Grain))
 	var rows [][]string

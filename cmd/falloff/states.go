@@ -4,50 +4,18 @@ import (
 	"fmt"
 	"math"
 
-	"github.com/spf13/pflag"
-
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
-	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
-type statesOptions struct {
-	json, quiet bool
-	step        string
-	energy      energyOptions
-}
-
-func (o *statesOptions) addFlags(fs *pflag.FlagSet) {
-	fs.BoolVar(&o.json, "json", false, "print one JSON object (every grain) instead of tables")
-	fs.StringVar(&o.step, "step", "5000 cm-1", "energy spacing of the rows in the terminal table, with its unit")
-	o.energy.addFlags(fs)
-	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no chatter or warnings on stderr")
-}
-
-func (o *statesOptions) validate(args []string) error {
-	if len(args) > 1 {
-		return usagef("states takes at most one input file, got %d", len(args))
-	}
-	if _, err := units.Parse(o.step, units.Energy); err != nil {
-		return usagef("--step: %v", err)
-	}
-	return o.energy.check()
-}
+type statesOptions struct{ reportOptions }
 
 func runStatesCmd(args []string, s streams) error {
-	var o statesOptions
-	fs := newFlags("states", "states [flags] [FILE]",
+	o := statesOptions{reportOptions{step: "5000 cm-1"}}
+	m, err := o.parse("states", args, s,
 		"  falloff states                         # the built-in demo\n"+
 			"  falloff states ring.yaml --step \"2000 cm-1\"\n"+
-			"  falloff states ring.yaml --json > states.json", s)
-	o.addFlags(fs)
-	if err := parseFlags(fs, args); err != nil {
-		return err
-	}
-	if err := o.validate(fs.Args()); err != nil {
-		return err
-	}
-	m, err := loadModel(fs.Args(), o.quiet || o.json, s)
+			"  falloff states ring.yaml --json > states.json")
 	if err != nil {
 		return err
 	}
@@ -124,7 +92,7 @@ func runStates(o statesOptions, m *input.Model, s streams) error {
 	if o.json {
 		return writeJSON(s.out, rep)
 	}
-	step, _ := units.Parse(o.step, units.Energy)
+	step := o.stepCm1()
 	fmt.Fprintf(s.out, "%s: %s\n%s.\n", m.File, m.Title, statesNote)
 	for _, st := range rep.Species {
 		fmt.Fprintf(s.out, "\n%s: partition functions\n", st.Name)

@@ -162,7 +162,7 @@ func (p *parser) imaginary(path string, n *yaml.Node) (float64, error) {
 		return 0, err
 	}
 	text := strings.TrimSpace(n.Value)
-	if num, rest := splitNumber(text); num != "" && strings.HasPrefix(rest, "i") &&
+	if num, rest := units.SplitNumber(text); num != "" && strings.HasPrefix(rest, "i") &&
 		(len(rest) == 1 || isSpace(rune(rest[1]))) {
 		text = num + " " + strings.TrimSpace(rest[1:])
 	}

@@ -136,7 +136,7 @@ func (p *parser) collisionRate(path string, n *yaml.Node) (float64, error) {
 	if err := p.scalar(path, n, `"3.1e-10 cm3/molecule/s"`); err != nil {
 		return 0, err
 	}
-	num, unit := splitNumber(strings.TrimSpace(n.Value))
+	num, unit := units.SplitNumber(strings.TrimSpace(n.Value))
 	x, err := strconv.ParseFloat(num, 64)
 	switch {
 	case num == "" || err != nil:

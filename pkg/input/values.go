@@ -124,7 +124,7 @@ func (p *parser) unitError(path string, n *yaml.Node, text string, d units.Dimen
 		return p.errAt(path, n, &problem{msg: err.Error(), cause: err}, "")
 	}
 	list := fmt.Sprintf("%s units: %s", d, ue.Hint())
-	num, unit := splitNumber(strings.TrimSpace(text))
+	num, unit := units.SplitNumber(strings.TrimSpace(text))
 	x, nerr := strconv.ParseFloat(num, 64)
 	switch {
 	case errors.Is(err, units.ErrNoUnit) && num == "":
@@ -149,22 +149,6 @@ func (p *parser) unitError(path string, n *yaml.Node, text string, d units.Dimen
 	return p.errAt(path, n, &problem{fmt.Sprintf("unknown unit %q", unit), err}, list)
 }
 
-// splitNumber splits "38.4 kcal/mol" into "38.4" and "kcal/mol", as
-// units.Parse does.
-func splitNumber(s string) (num, unit string) {
-	for i := 0; i < len(s); i++ {
-		c := s[i]
-		switch {
-		case c >= '0' && c <= '9', c == '.', c == '+', c == '-':
-		case (c == 'e' || c == 'E') && i > 0 && i+1 < len(s) &&
-			(s[i+1] >= '0' && s[i+1] <= '9' || s[i+1] == '-' || s[i+1] == '+'):
-		default:
-			return s[:i], strings.TrimSpace(s[i:])
-		}
-	}
-	return s, ""
-}
-
 // errHasUnit marks a plain number written with a unit after it.
 var errHasUnit = errors.New("unit on a plain number")
 
@@ -182,7 +166,7 @@ func (p *parser) number(path string, n *yaml.Node) (float64, error) {
 	if err == nil && !math.IsInf(x, 0) {
 		return x, nil
 	}
-	if num, unit := splitNumber(text); num != "" && unit != "" {
+	if num, unit := units.SplitNumber(text); num != "" && unit != "" {
 		if _, err := strconv.ParseFloat(num, 64); err == nil {
 			return 0, p.errAt(path, n, &problem{fmt.Sprintf("expected a plain number, found one with %q after it", unit), errHasUnit},
 				"this value takes no unit")

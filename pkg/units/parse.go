@@ -133,7 +133,7 @@ func Factor(u string, d Dimension) (float64, error) {
 // as is an unknown unit or a number that is not finite.
 func Parse(s string, d Dimension) (float64, error) {
 	text := strings.TrimSpace(s)
-	num, unit := splitNumber(text)
+	num, unit := SplitNumber(text)
 	if num == "" {
 		return 0, &UnitError{Text: s, Dim: d, Err: errors.New("no number")}
 	}
@@ -155,9 +155,9 @@ func Parse(s string, d Dimension) (float64, error) {
 	return x * f, nil
 }
 
-// splitNumber splits "38.4 kcal/mol" into "38.4" and "kcal/mol". The number is
+// SplitNumber splits "38.4 kcal/mol" into "38.4" and "kcal/mol". The number is
 // the longest prefix that looks like a float (digits, sign, point, exponent).
-func splitNumber(s string) (num, unit string) {
+func SplitNumber(s string) (num, unit string) {
 	i := 0
 	for i < len(s) {
 		c := s[i]
