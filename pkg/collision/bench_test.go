@@ -1,0 +1,81 @@
+package collision
+
+import (
+	"math"
+	"testing"
+
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// benchGrid is the benchmark case: a 12-mode molecule (methyl
+// isocyanide's frequencies and rotation) with E0 = 40 kcal/mol,
+// exponential-down (α300 = 250 cm⁻¹, n = 0.85), 30 temperatures from 300 to
+// 2500 K evenly in 1/T and 20 pressures from 1e-3 to 1e3 bar evenly in log P.
+func benchGrid(b testing.TB) (Channel, Collider, Transfer, []float64, []float64) {
+	ch := rotorChannel(b, 40*units.Cm1PerKcalPerMol+CeilingKTMax*units.KT(2500))
+	ch.E0 = 40 * units.Cm1PerKcalPerMol
+	ch.TS = rotorChannel(b, ch.E0+CeilingKTMax*units.KT(2500)+13300).TS
+	temps := make([]float64, 30)
+	for i := range temps {
+		inv := 1/300.0 + (1/2500.0-1/300.0)*float64(i)/29
+		temps[i] = 1 / inv
+	}
+	ps := make([]float64, 20)
+	for i := range ps {
+		ps[i] = 1e2 * math.Pow(10, 6*float64(i)/19) // 1e-3 … 1e3 bar in Pa
+	}
+	col := Collider{LJ: Combine(LennardJones{4.5, 400}, LennardJones{3.542, 93.3}), Mu: ReducedMass(41, 39.948)}
+	return ch, col, Transfer{Alpha300: 250, Exponent: 0.85}, temps, ps
+}
+
+// BenchmarkGrid times the whole 30 × 20 grid on GOMAXPROCS workers (target
+// ≤ 1 s on 2 cores), with and without the convergence check.
+func BenchmarkGrid(b *testing.B) {
+	ch, col, tr, temps, ps := benchGrid(b)
+	for _, skip := range []bool{true, false} {
+		name := "with-convergence-check"
+		if skip {
+			name = "grid-only"
+		}
+		b.Run(name, func(b *testing.B) {
+			for b.Loop() {
+				if _, err := Run(ch, col, tr, temps, ps, Options{SkipConvergence: skip}); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkSolvePoint compares one (T, P) point by the banded solver with the
+// dense reference (gonum mat.EigenSym) on the same matrix; the ratio is
+// reported as dense-ns/banded-ns (target ≥ 50).
+func BenchmarkSolvePoint(b *testing.B) {
+	ch, col, tr, _, _ := benchGrid(b)
+	for _, tK := range []float64{300, 1000, 2500} {
+		p, err := prepare(ch, tr, tK, 0, 0)
+		if err != nil {
+			b.Fatal(err)
+		}
+		omega := col.Z(tK) * Concentration(1e5, tK)
+		var banded, dense float64
+		b.Run(units.Format(tK, "K", units.Temperature)+"/banded", func(b *testing.B) {
+			for b.Loop() {
+				if _, err := p.w.Solve(p.kernel, omega); err != nil {
+					b.Fatal(err)
+				}
+			}
+			banded = float64(b.Elapsed().Nanoseconds()) / float64(b.N)
+		})
+		b.Run(units.Format(tK, "K", units.Temperature)+"/dense", func(b *testing.B) {
+			for b.Loop() {
+				if _, _, err := p.w.DenseSolve(p.kernel.At, omega); err != nil {
+					b.Fatal(err)
+				}
+			}
+			dense = float64(b.Elapsed().Nanoseconds()) / float64(b.N)
+			b.ReportMetric(dense/banded, "dense/banded")
+			b.ReportMetric(float64(p.w.N()), "grains")
+		})
+	}
+}

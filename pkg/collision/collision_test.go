@@ -1,0 +1,248 @@
+package collision
+
+import (
+	"math"
+	"testing"
+
+	"gonum.org/v1/gonum/floats/scalar"
+
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// Ω(2,2)* from the Neufeld–Janzen–Aziz fit against the table of Monchick &
+// Mason (J. Chem. Phys. 35, 1676, 1961) as reprinted in Bird, Stewart &
+// Lightfoot, Transport Phenomena, Table E.2: T* = 0.3: 2.840, 1: 1.593 (1.5929
+// in the issue), 2: 1.1757, 5: 0.92676, 10: 0.82435 (issue), 100: 0.5887.
+func TestOmega22(t *testing.T) {
+	cases := []struct{ tStar, want, tol float64 }{
+		{1, 1.5929, 0.003},
+		{2, 1.1757, 0.003},
+		{5, 0.92676, 0.003},
+		{10, 0.82435, 0.003},
+		{0.3, 2.840, 0.005},
+		{100, 0.5887, 0.005},
+	}
+	for _, tc := range cases {
+		if got := Omega22(tc.tStar); !scalar.EqualWithinRel(got, tc.want, tc.tol) {
+			t.Errorf("Ω(2,2)*(%v) = %.5f, table %.5f (tol %g)", tc.tStar, got, tc.want, tc.tol)
+		}
+	}
+}
+
+// The collision rate constant is the hard-sphere rate πσ²·sqrt(8kT/πμ) times
+// Ω(2,2)*, worked by hand here for Ar + Ar at 300 K (σ = 3.542 Å,
+// μ = 19.974 amu): πσ² = 3.9413e-15 cm², mean relative speed 5.6392e4 cm/s
+// (5 significant figures, so the tolerance is 1e-4).
+func TestLJRateConstant(t *testing.T) {
+	ar, _ := LookupBath("Ar")
+	pair := Combine(ar.LJ, ar.LJ)
+	if pair != ar.LJ {
+		t.Errorf("combining like parameters changed them: %v", pair)
+	}
+	mu := ReducedMass(ar.Mass, ar.Mass)
+	got := LJRateConstant(pair, mu, 300)
+	want := 3.9413e-15 * 5.6392e4 * Omega22(300/93.3)
+	if !scalar.EqualWithinRel(got, want, 1e-4) {
+		t.Errorf("Z(Ar+Ar, 300 K) = %.5g, hand value %.5g", got, want)
+	}
+	// Combining rules (Hirschfelder, Curtiss & Bird 1954).
+	c := Combine(LennardJones{3, 100}, LennardJones{5, 400})
+	if c.Sigma != 4 || c.Epsilon != 200 {
+		t.Errorf("Combine = %+v, want {4 200}", c)
+	}
+	// [M] at 1 atm and 273.15 K is the Loschmidt constant, 2.686780111e25 m⁻³
+	// (CODATA 2018, exact to the digits shown).
+	if n := Concentration(units.AtmPa, 273.15); !scalar.EqualWithinRel(n, 2.686780111e19, 1e-9) {
+		t.Errorf("[M] = %.8g", n)
+	}
+	for _, name := range []string{"He", "Ne", "Ar", "Kr", "H2", "N2", "O2", "CO2", "H2O", "CH4"} {
+		if g, ok := LookupBath(name); !ok || g.Source == "" || !(g.Mass > 0) {
+			t.Errorf("bath gas %s missing or without source", name)
+		}
+	}
+}
+
+// testChannel is methyl isocyanide with harmonic vibrations and no rotors
+// (fundamentals after Shimanouchi, NSRDS-NBS 39, 1972, from memory) and an
+// illustrative transition state: a case where Troe's F_rot = F_anh = 1.
+func testChannel(t testing.TB, ceiling float64) (Channel, *rrkm.Species) {
+	r := &rrkm.Species{Name: "CH3NC", Vibrations: []float64{3014, 2966, 2966, 2166, 1467, 1467, 1429, 1129, 1129, 945, 263, 263}}
+	ts := &rrkm.Species{Name: "TS", E0: 13300, Vibrations: []float64{3050, 2990, 2990, 2100, 1450, 1450, 1400, 1100, 1100, 600, 280}}
+	rc, err := rrkm.NewCounter(r, 1, ceiling)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tc, err := rrkm.NewCounter(ts, 1, ceiling-ts.E0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return Channel{Reactant: rc, TS: tc, L: 1, E0: ts.E0}, r
+}
+
+func testWell(t testing.TB, ch Channel, tr Transfer, tK, grain float64) *prepared {
+	p, err := prepare(ch, tr, tK, grain, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// The strong-collider master equation through the matrix (gonum's dense
+// symmetric eigensolver on ω(P − I) − K with P(i←j) = F_i) equals the
+// analytic Σ F·k·ω/(ω+k) to 1e-6, k_uni taken from the dense eigenvector by
+// the flux identity. The analytic sum is the steady-state result, exact to
+// O(k_uni/ω), so the test keeps k_uni/ω ≤ 1e-8.
+func TestStrongColliderMatrixPath(t *testing.T) {
+	ch, _ := testChannel(t, 60000)
+	tr := Transfer{Strong: true}
+	for _, tK := range []float64{800, 1200} {
+		p := testWell(t, ch, tr, tK, 0)
+		for _, omega := range []float64{1e6, 1e8, 1e10, 1e12} {
+			want := p.w.StrongCollider(omega)
+			if want/omega > 1e-8 {
+				continue
+			}
+			ev, flux, err := p.w.DenseSolve(p.w.StrongKernel(), omega)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !scalar.EqualWithinRel(flux, want, 1e-6) {
+				t.Errorf("%v K, ω = %g: matrix flux %.9g, analytic %.9g", tK, omega, flux, want)
+			}
+			_ = ev // its absolute error, ~1e-16·ω·n, is too large here (see DenseSolve)
+		}
+	}
+}
+
+// High-pressure limit: k(T,P→∞) → canonical k∞(T) (exact limit of the master
+// equation; the remaining difference is the grain error of kT/5 grains,
+// about (1/5)²/24 ≈ 0.17 %), within 0.5 % for both models.
+func TestHighPressureLimit(t *testing.T) {
+	ch, r := testChannel(t, 90000)
+	ts := &rrkm.Species{E0: 13300, Vibrations: []float64{3050, 2990, 2990, 2100, 1450, 1450, 1400, 1100, 1100, 600, 280}}
+	for _, tr := range []Transfer{{Strong: true}, {Alpha300: 300, Exponent: 0.8}} {
+		for _, tK := range []float64{400, 1000, 1600} {
+			p := testWell(t, ch, tr, tK, 0)
+			k, err := p.rate(1e8 * p.w.K[p.w.N()-1])
+			if err != nil {
+				t.Fatal(err)
+			}
+			want := rrkm.KInf(r, ts, 1, tK)
+			if !scalar.EqualWithinRel(k, want, 0.005) {
+				t.Errorf("%v, %v K: k(P→∞) = %.6g, canonical k∞ = %.6g", tr, tK, k, want)
+			}
+		}
+	}
+}
+
+// troeFactors returns Troe's ρ_vib,h(E0) (Whitten–Rabinovitch form without
+// the derivative term) and F_E (Troe, J. Chem. Phys. 66, 4745, 1977, eqs. 9
+// and 13): F_E = Σ_{ν=0}^{s−1} (s−1)!/(s−1−ν)!·(kT/(E0 + a(E0)E_z))^ν.
+func troeFactors(freqs []float64, e0, tK float64) (rho, fe float64) {
+	s := float64(len(freqs))
+	var ez, m1, m2, lp float64
+	for _, v := range freqs {
+		ez += v / 2
+		m1 += v
+		m2 += v * v
+		lp += math.Log(v)
+	}
+	m1, m2 = m1/s, m2/s
+	beta := (s - 1) / s * m2 / (m1 * m1)
+	x := e0 / ez
+	var w float64
+	if x < 1 {
+		w = 1 / (5*x + 2.73*math.Sqrt(x) + 3.51)
+	} else {
+		w = math.Exp(-2.4191 * math.Pow(x, 0.25))
+	}
+	u := e0 + (1-beta*w)*ez
+	lg, _ := math.Lgamma(s)
+	rho = math.Exp((s-1)*math.Log(u) - lg - lp)
+	term := 1.0
+	for nu := 0; nu < int(s); nu++ {
+		fe += term
+		term *= (s - 1 - float64(nu)) * units.KT(tK) / u
+	}
+	return rho, fe
+}
+
+// Strong-collider k0 agrees with Troe's factorised formula (J. Chem. Phys.
+// 66, 4745, 1977) k0^SC/Z = ρ(E0)·kT·e^(−E0/kT)·F_E/Q_vib with F_rot = F_anh = 1
+// (no rotors, harmonic) and F_E from the same paper. The issue asks for 10 %;
+// design.md §10 expects well under 1 % from F_E alone, to which the
+// Whitten–Rabinovitch density adds its own ~1 %.
+func TestStrongColliderK0Troe(t *testing.T) {
+	ch, r := testChannel(t, 90000)
+	for _, tK := range []float64{500, 1000, 1500} {
+		p := testWell(t, ch, Transfer{Strong: true}, tK, 0)
+		got := p.w.StrongColliderK0()
+		_, fe := troeFactors(r.Vibrations, ch.E0, tK)
+		// ρ(E0) = dW/dE of the Whitten–Rabinovitch sum of states, which
+		// the master equation's exact density should be compared with.
+		_, rho := rrkm.WhittenRabinovitch(r.Vibrations, ch.E0)
+		kt := units.KT(tK)
+		want := rho * kt * math.Exp(-ch.E0/kt) * fe / r.VibrationalQ(tK)
+		if !scalar.EqualWithinRel(got, want, 0.10) {
+			t.Errorf("%v K: k0^SC/Z = %.5g, Troe %.5g (ratio %.3f)", tK, got, want, got/want)
+		}
+		t.Logf("%v K: ME/Troe k0^SC = %.4f", tK, got/want)
+	}
+}
+
+// Low-pressure exponential-down against strong collider: k0(ED)/k0(SC) ≈ βc
+// from Troe's βc/(1−βc^½) = −⟨ΔE⟩/(F_E·kT), ⟨ΔE⟩ = −α²/(α + F_E·kT) (Troe, J.
+// Chem. Phys. 66, 4758, 1977), within 15 %.
+func TestLowPressureCollisionEfficiency(t *testing.T) {
+	ch, r := testChannel(t, 90000)
+	cases := []struct{ tK, alpha float64 }{
+		{600, 200}, {1000, 300}, {1000, 800}, {1500, 500},
+	}
+	for _, tc := range cases {
+		tr := Transfer{Alpha300: tc.alpha}
+		ed := testWell(t, ch, tr, tc.tK, 0)
+		k0, err := ed.k0PerOmega()
+		if err != nil {
+			t.Fatal(err)
+		}
+		sc := ed.w.StrongColliderK0() // same grains
+		_, fe := troeFactors(r.Vibrations, ch.E0, tc.tK)
+		kt := units.KT(tc.tK)
+		de := tc.alpha * tc.alpha / (tc.alpha + fe*kt)
+		q := de / (fe * kt)
+		x := (-q + math.Sqrt(q*q+4*q)) / 2 // x = sqrt(βc): x²/(1−x) = q
+		betaC := x * x
+		if got := k0 / sc; !scalar.EqualWithinRel(got, betaC, 0.15) {
+			t.Errorf("T = %v K, α = %v: k0(ED)/k0(SC) = %.4f, Troe βc = %.4f", tc.tK, tc.alpha, got, betaC)
+		} else {
+			t.Logf("T = %v K, α = %v: k0(ED)/k0(SC) = %.4f, Troe βc = %.4f", tc.tK, tc.alpha, got, betaC)
+		}
+	}
+}
+
+// The banded solver agrees with the dense reference (gonum mat.EigenSym) to
+// 1e-6 wherever the dense eigenvalue is accurate: its rounding error is about
+// 1e-16·ω·n, so the test takes points with k_uni/ω > 1e-9.
+func TestBandedMatchesDense(t *testing.T) {
+	ch, _ := testChannel(t, 90000)
+	for _, tK := range []float64{900, 1400} {
+		p := testWell(t, ch, Transfer{Alpha300: 250, Exponent: 0.7}, tK, 0)
+		for _, omega := range []float64{1e4, 1e6, 1e8, 1e10, 1e12} {
+			s, err := p.w.Solve(p.kernel, omega)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if s.K/omega < 1e-9 {
+				continue
+			}
+			ev, _, err := p.w.DenseSolve(p.kernel.At, omega)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !scalar.EqualWithinRel(s.K, ev, 1e-6) {
+				t.Errorf("%v K, ω = %g: banded %.10g, dense %.10g", tK, omega, s.K, ev)
+			}
+		}
+	}
+}

@@ -1,0 +1,371 @@
+package collision
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+	"sync"
+
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// Channel is a reactant and the transition state of its one channel, with
+// their state counters; the counters must reach CeilingFor's energy at the
+// highest temperature of a grid.
+type Channel struct {
+	Reactant, TS *rrkm.Counter
+	L            float64 // reaction-path degeneracy
+	E0           float64 // threshold, cm⁻¹
+}
+
+// Options override the automatic energy grid of the master equation.
+type Options struct {
+	Grain   float64 // grain width in cm⁻¹; 0 = min(α/5, kT/5)
+	Ceiling float64 // top of the grid in cm⁻¹; 0 = automatic (CeilingFor)
+	Jobs    int     // worker goroutines over temperatures; 0 = GOMAXPROCS
+	// SkipConvergence turns off the grain and ceiling convergence check.
+	SkipConvergence bool
+}
+
+// MaxMatrixEntries bounds the banded matrix (8 bytes an entry, 400 MB).
+const MaxMatrixEntries = 50_000_000
+
+// ErrTooLarge reports a master-equation grid that would not fit in memory.
+var ErrTooLarge = errors.New("collision: master-equation grid too large for memory")
+
+// tailTol is the relative size below which the Boltzmann tails of the
+// reactant and of the transition-state flux W‡(E−E0)e^(−E/kT) are cut.
+const tailTol = 1e-10
+
+// CeilingKTMax is the most kT above the threshold an automatic ceiling takes;
+// counters built to E0 + CeilingKTMax·kT at the highest temperature suffice.
+const CeilingKTMax = 60
+
+// CeilingFor returns the automatic energy ceiling at tK: E0 plus the least
+// whole number of kT (at least 10, at most CeilingKTMax) beyond which both
+// the reactant's Boltzmann distribution ρ(E)e^(−E/kT) and the transition-state
+// flux W‡(E−E0)e^(−E/kT) have fallen below tailTol of their maxima.
+func CeilingFor(ch Channel, tK float64) float64 {
+	kt := units.KT(tK)
+	gR, gT := math.Inf(-1), math.Inf(-1)
+	lnTol := math.Log(tailTol)
+	for m := 1; m <= CeilingKTMax; m++ {
+		x := float64(m) * kt
+		e := ch.E0 + x
+		lr := math.Log(math.Max(ch.Reactant.Sum(e+kt/2)-ch.Reactant.Sum(e-kt/2), 1e-300)) - e/kt
+		lt := math.Log(math.Max(ch.TS.Sum(x), 1e-300)) - x/kt
+		gR, gT = math.Max(gR, lr), math.Max(gT, lt)
+		if m >= 10 && lr < gR+lnTol && lt < gT+lnTol {
+			return e
+		}
+	}
+	return ch.E0 + CeilingKTMax*kt
+}
+
+// GrainFor returns the automatic grain at tK: min(α/5, kT/5) for the
+// exponential-down model (fine enough to resolve one collision's transfer
+// and the Boltzmann factor), kT/5 for the strong collider.
+func GrainFor(tr Transfer, tK float64) float64 {
+	g := units.KT(tK) / 5
+	if !tr.Strong {
+		g = math.Min(g, tr.Alpha(tK)/5)
+	}
+	return g
+}
+
+// TemperatureResult is the master-equation result at one temperature.
+type TemperatureResult struct {
+	T       float64
+	K       []float64 // k(T,P) in s⁻¹, one per pressure
+	KInf    float64   // canonical TST k∞, s⁻¹
+	KInfME  float64   // Σ F·k on the master-equation grains (the P → ∞ limit)
+	K0      float64   // low-pressure limit k0 in cm³ molecule⁻¹ s⁻¹
+	Z       float64   // collision rate constant, cm³ molecule⁻¹ s⁻¹
+	Centre  float64   // pressure in Pa where k = KInfME/2
+	Grain   float64   // cm⁻¹
+	Ceiling float64   // cm⁻¹
+	Grains  int
+	Band    int
+	// Rescaled counts the grains where the kernel's upward probabilities
+	// were scaled to keep detailed balance (see ExponentialDown).
+	Rescaled int
+}
+
+// Result is a k(T,P) grid.
+type Result struct {
+	Temperatures []float64 // K
+	Pressures    []float64 // Pa
+	Rows         []TemperatureResult
+	// Convergence is the largest relative change of k found when the grain
+	// was halved or the ceiling raised by 10 kT at the check points (the
+	// lowest and highest temperature, lowest and highest pressure); NaN if
+	// not checked.
+	Convergence float64
+}
+
+// K returns k[iT][iP] in s⁻¹.
+func (r *Result) K() [][]float64 {
+	out := make([][]float64, len(r.Rows))
+	for i := range r.Rows {
+		out[i] = r.Rows[i].K
+	}
+	return out
+}
+
+// Run solves the master equation at every temperature and pressure. Work is
+// spread over Options.Jobs goroutines by temperature; results do not depend
+// on their number.
+func Run(ch Channel, col Collider, tr Transfer, temps, pressures []float64, opt Options) (*Result, error) {
+	if err := tr.validate(); err != nil {
+		return nil, err
+	}
+	res := &Result{Temperatures: temps, Pressures: pressures, Rows: make([]TemperatureResult, len(temps)), Convergence: math.NaN()}
+	jobs := opt.Jobs
+	if jobs <= 0 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
+	errs := make([]error, len(temps))
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for range min(jobs, len(temps)) {
+		wg.Go(func() {
+			for i := range next {
+				res.Rows[i], errs[i] = solveTemperature(ch, col, tr, temps[i], pressures, opt.Grain, opt.Ceiling, true)
+			}
+		})
+	}
+	for i := range temps {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	for i, err := range errs {
+		if err != nil {
+			return nil, fmt.Errorf("T = %g K: %w", temps[i], err)
+		}
+	}
+	if !opt.SkipConvergence && len(pressures) > 0 {
+		c, err := convergence(ch, col, tr, res, opt)
+		if err != nil {
+			return nil, err
+		}
+		res.Convergence = c
+	}
+	return res, nil
+}
+
+// convergence re-solves the corner points with half the grain and with the
+// ceiling 10 kT higher and returns the largest relative change of k.
+func convergence(ch Channel, col Collider, tr Transfer, res *Result, opt Options) (float64, error) {
+	worst := 0.0
+	nT, nP := len(res.Temperatures), len(res.Pressures)
+	ps := []float64{res.Pressures[0], res.Pressures[nP-1]}
+	for _, it := range []int{0, nT - 1} {
+		row := res.Rows[it]
+		t := row.T
+		for _, v := range []struct{ grain, ceiling float64 }{
+			{row.Grain / 2, row.Ceiling},
+			{row.Grain, row.Ceiling + 10*units.KT(t)},
+		} {
+			if v.ceiling > math.Min(ch.Reactant.Ceiling(), ch.TS.Ceiling()+ch.E0) {
+				continue // counters do not reach; the automatic ceiling has headroom
+			}
+			alt, err := solveTemperature(ch, col, tr, t, ps, v.grain, v.ceiling, false)
+			if err != nil {
+				return 0, fmt.Errorf("convergence check at %g K: %w", t, err)
+			}
+			for j, k := range alt.K {
+				base := row.K[0]
+				if j == 1 {
+					base = row.K[nP-1]
+				}
+				worst = math.Max(worst, math.Abs(k/base-1))
+			}
+		}
+	}
+	return worst, nil
+}
+
+// prepared is one temperature's well with its energy-transfer operator.
+type prepared struct {
+	w      *Well
+	kernel *Kernel // nil for the strong collider
+	eff    float64
+}
+
+func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, error) {
+	if grain == 0 {
+		grain = GrainFor(tr, tK)
+	}
+	if ceiling == 0 {
+		ceiling = CeilingFor(ch, tK)
+	}
+	// Put a grain edge on the threshold, so that every grain is wholly
+	// below or wholly above it: otherwise the grain across E0 reacts as a
+	// whole in the low-pressure limit, a first-order grain error.
+	if n := math.Round(ch.E0/grain - 0.5); n >= 1 {
+		grain = ch.E0 / (n + 0.5)
+	}
+	if grain < ch.Reactant.Fine() {
+		return nil, fmt.Errorf("collision: grain %.3g cm-1 is below the fine counting grain %g cm-1 (hint: a smaller fine-grain, or a larger grain)", grain, ch.Reactant.Fine())
+	}
+	g := rrkm.GrainsTo(grain, ceiling)
+	if top := g.Top(); top > ch.Reactant.Ceiling() || top-ch.E0 > ch.TS.Ceiling() {
+		return nil, fmt.Errorf("collision: ceiling %.0f cm-1 above the counted states (%.0f cm-1)", top, ch.Reactant.Ceiling())
+	}
+	if tr.Strong {
+		if float64(g.N) > MaxMatrixEntries {
+			return nil, fmt.Errorf("%w: %d grains", ErrTooLarge, g.N)
+		}
+	} else if a := tr.Alpha(tK); float64(g.N)*math.Ceil(a*-math.Log(BandTolerance)/grain+1) > MaxMatrixEntries {
+		return nil, fmt.Errorf("%w: %d grains of %.3g cm-1 with α = %.3g cm-1 (hint: a larger grain or a lower ceiling)", ErrTooLarge, g.N, grain, a)
+	}
+	m := rrkm.RRKM(ch.Reactant, ch.TS, ch.L, g)
+	p := &prepared{w: NewWell(m, ch.Reactant, tK), eff: tr.efficiency()}
+	if p.w.N() < 2 || p.w.K[0] > 0 {
+		return nil, fmt.Errorf("collision: the grid (%d grains of %.3g cm-1) has no grain below the threshold", p.w.N(), grain)
+	}
+	if !tr.Strong {
+		k, err := ExponentialDown(p.w, tr.Alpha(tK))
+		if err != nil {
+			return nil, err
+		}
+		p.kernel = k
+	}
+	return p, nil
+}
+
+// rate returns k_uni at collision frequency omega (s⁻¹, before efficiency).
+func (p *prepared) rate(omega float64) (float64, error) {
+	if p.kernel == nil {
+		return p.w.StrongCollider(p.eff * omega), nil
+	}
+	s, err := p.w.Solve(p.kernel, omega)
+	return s.K, err
+}
+
+// k0PerOmega returns the low-pressure limit of k_uni/ω.
+func (p *prepared) k0PerOmega() (float64, error) {
+	if p.kernel == nil {
+		return p.eff * p.w.StrongColliderK0(), nil
+	}
+	s, err := p.w.LowPressure(p.kernel)
+	return s.K, err
+}
+
+// solveTemperature solves the grid pressures at tK and, with limits, k0
+// and the falloff centre.
+func solveTemperature(ch Channel, col Collider, tr Transfer, tK float64, pressures []float64, grain, ceiling float64, limits bool) (TemperatureResult, error) {
+	p, err := prepare(ch, tr, tK, grain, ceiling)
+	if err != nil {
+		return TemperatureResult{}, err
+	}
+	w := p.w
+	z := col.Z(tK)
+	r := TemperatureResult{T: tK, K: make([]float64, len(pressures)), Z: z,
+		KInfME: w.KInf(), Grain: w.Grain, Ceiling: w.E[w.N()-1] + w.Grain/2, Grains: w.N()}
+	if p.kernel != nil {
+		r.Band, r.Rescaled = p.kernel.Band, p.kernel.Rescaled
+	}
+	if !(z > 0) || math.IsInf(z, 0) {
+		return r, fmt.Errorf("collision: collision rate constant %v cm3/molecule/s", z)
+	}
+	omegas := make([]float64, len(pressures))
+	for j, pr := range pressures {
+		omegas[j] = z * Concentration(pr, tK)
+		if r.K[j], err = p.rate(omegas[j]); err != nil {
+			return r, fmt.Errorf("P = %g Pa: %w", pr, err)
+		}
+	}
+	if !limits {
+		return r, nil
+	}
+	k0, err := p.k0PerOmega()
+	if err != nil {
+		return r, fmt.Errorf("low-pressure limit: %w", err)
+	}
+	r.K0 = k0 * z
+	omegaC, err := p.centre(r.KInfME, k0, omegas, r.K)
+	if err != nil {
+		return r, err
+	}
+	r.Centre = omegaC / z * units.Boltzmann * tK * 1e6
+	return r, nil
+}
+
+// centre returns the collision frequency where k = kInf/2, by false position
+// (Illinois variant) in ln ω. The bracket comes from the grid points when
+// they straddle the centre, otherwise from the Lindemann estimate
+// ω = k∞/(k0/ω), widened until it holds.
+func (p *prepared) centre(kInf, k0PerOmega float64, omegas, ks []float64) (float64, error) {
+	g := func(lnw float64) (float64, error) {
+		k, err := p.rate(math.Exp(lnw))
+		return math.Log(k/kInf) + math.Ln2, err
+	}
+	var a, b, ga, gb float64
+	found := false
+	for j := 1; j < len(ks); j++ {
+		lo, hi := math.Log(ks[j-1]/kInf)+math.Ln2, math.Log(ks[j]/kInf)+math.Ln2
+		if lo <= 0 && hi >= 0 {
+			a, b, ga, gb, found = math.Log(omegas[j-1]), math.Log(omegas[j]), lo, hi, true
+			break
+		}
+	}
+	if !found {
+		guess := math.Log(kInf / k0PerOmega)
+		a, b = guess-math.Log(10), guess+math.Log(1e4)
+		var err error
+		if ga, err = g(a); err != nil {
+			return 0, err
+		}
+		if gb, err = g(b); err != nil {
+			return 0, err
+		}
+		for n := 0; ga > 0 || gb < 0; n++ {
+			if n > 20 {
+				return 0, errors.New("collision: falloff centre not bracketed")
+			}
+			if ga > 0 {
+				a -= math.Log(100)
+				if ga, err = g(a); err != nil {
+					return 0, err
+				}
+			} else {
+				b += math.Log(100)
+				if gb, err = g(b); err != nil {
+					return 0, err
+				}
+			}
+		}
+	}
+	side := 0
+	for range 100 {
+		if ga == 0 {
+			return math.Exp(a), nil
+		}
+		c := b - gb*(b-a)/(gb-ga)
+		gc, err := g(c)
+		if err != nil {
+			return 0, err
+		}
+		if math.Abs(gc) < 1e-9 || b-a < 1e-9 {
+			return math.Exp(c), nil
+		}
+		if gc > 0 {
+			b, gb = c, gc
+			if side == 1 {
+				ga /= 2
+			}
+			side = 1
+		} else {
+			a, ga = c, gc
+			if side == -1 {
+				gb /= 2
+			}
+			side = -1
+		}
+	}
+	return 0, errors.New("collision: falloff centre did not converge")
+}

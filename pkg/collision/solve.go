@@ -1,0 +1,173 @@
+package collision
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// ErrNoConvergence reports an inverse iteration that did not settle.
+var ErrNoConvergence = errors.New("collision: master equation: no convergence")
+
+// Solution is the slowest eigenmode of a master equation.
+type Solution struct {
+	K          float64   // k_uni = λ0 in s⁻¹ (or per unit ω for LowPressure)
+	Population []float64 // the eigenvector n(E) on the well's grains, Σ n = 1
+	Iterations int
+	Lifted     int // pivots lifted to the floor (see ldl)
+}
+
+const (
+	maxIterations = 1000
+	iterationTol  = 1e-13
+)
+
+// system is A = −(symmetrised M), positive definite, in descending-energy
+// order (position p ↔ grain n−1−p), with the per-grain loss rates that enter
+// the flux identity.
+type system struct {
+	a    *bandedSym
+	loss []float64 // ascending-energy order
+	sqf  []float64 // sqrt(F), ascending
+}
+
+// collisionOperator is I − P_sym on grains 0..nk−1 in descending order, with
+// the diagonal 1 − P(i←i) summed from the off-diagonal column entries (over
+// all grains), so the collision operator conserves population to rounding;
+// and, per grain, the probability of a transition to grains ≥ nk.
+type collisionOperator struct {
+	c      *bandedSym
+	escape []float64
+}
+
+func newCollisionOperator(w *Well, k *Kernel, nk int) collisionOperator {
+	n := w.N()
+	op := collisionOperator{c: newBandedSym(nk, min(k.Band, max(nk-1, 0))), escape: make([]float64, nk)}
+	b := op.c.b
+	for i := range nk {
+		p := nk - 1 - i
+		out := 0.0
+		for d := 1; d <= k.Band; d++ {
+			if i-d >= 0 {
+				out += k.At(i-d, i)
+			}
+			if i+d < n {
+				pu := k.At(i+d, i)
+				out += pu
+				if i+d >= nk {
+					op.escape[i] += pu
+				}
+			}
+		}
+		*op.c.at(p, 0) = out
+		for d := 1; d <= b && i+d < nk; d++ {
+			// Row p, column p−d is grain i+d (higher in energy).
+			*op.c.at(p, d) = -k.symmetric(i, i+d)
+		}
+	}
+	return op
+}
+
+// operator returns the kernel's collision operator on all grains, built once.
+func (k *Kernel) operator(w *Well) collisionOperator {
+	k.once.Do(func() { k.op = newCollisionOperator(w, k, w.N()) })
+	return k.op
+}
+
+func sqrtF(w *Well, nk int) []float64 {
+	s := make([]float64, nk)
+	for i := range s {
+		s[i] = math.Sqrt(w.F[i])
+	}
+	return s
+}
+
+// build assembles A = ω(I − P_sym) + diag(k) with loss_i = k_i.
+func build(w *Well, k *Kernel, omega float64) *system {
+	op := k.operator(w)
+	n := w.N()
+	s := &system{a: newBandedSym(n, op.c.b), loss: w.K, sqf: sqrtF(w, n)}
+	for i, v := range op.c.a {
+		s.a.a[i] = omega * v
+	}
+	for i := range n {
+		*s.a.at(n-1-i, 0) += w.K[i]
+	}
+	return s
+}
+
+// buildLowPressure assembles the low-pressure problem: the grains below
+// threshold with ω = 1, every grain with k > 0 absorbing, and loss_i the
+// probability of a collision from i into an absorbing grain.
+func buildLowPressure(w *Well, k *Kernel) *system {
+	nk := 0
+	for nk < w.N() && w.K[nk] == 0 {
+		nk++
+	}
+	op := newCollisionOperator(w, k, nk)
+	return &system{a: op.c, loss: op.escape, sqf: sqrtF(w, nk)}
+}
+
+// eigen finds the slowest mode by inverse iteration started from the
+// equilibrium distribution, and λ0 from the flux identity.
+func (s *system) eigen() (Solution, error) {
+	n := len(s.loss)
+	if n == 0 {
+		return Solution{}, errors.New("collision: no grains")
+	}
+	f, err := factor(s.a)
+	if err != nil {
+		return Solution{}, err
+	}
+	x := make([]float64, n) // descending order
+	for p := range x {
+		x[p] = s.sqf[n-1-p]
+	}
+	pop := make([]float64, n)
+	prev := math.Inf(1)
+	for it := 1; it <= maxIterations; it++ {
+		f.solve(x)
+		scale := 0.0
+		for _, v := range x {
+			scale = math.Max(scale, math.Abs(v))
+		}
+		if !(scale > 0) || math.IsInf(scale, 0) {
+			return Solution{}, fmt.Errorf("%w: iterate is %v", ErrNoConvergence, scale)
+		}
+		num, den := 0.0, 0.0
+		for p := range x {
+			x[p] /= scale
+			i := n - 1 - p
+			pop[i] = x[p] * s.sqf[i]
+			num += s.loss[i] * pop[i]
+			den += pop[i]
+		}
+		lambda := num / den
+		if math.Abs(lambda-prev) <= iterationTol*math.Abs(lambda) {
+			for i := range pop {
+				pop[i] /= den
+			}
+			return Solution{K: lambda, Population: pop, Iterations: it, Lifted: f.Lifted}, nil
+		}
+		prev = lambda
+	}
+	return Solution{}, fmt.Errorf("%w after %d inverse iterations", ErrNoConvergence, maxIterations)
+}
+
+// Solve returns k_uni for collision frequency omega (s⁻¹) with kernel k.
+func (w *Well) Solve(k *Kernel, omega float64) (Solution, error) {
+	if !(omega > 0) || math.IsInf(omega, 0) {
+		return Solution{}, fmt.Errorf("collision: collision frequency %v s-1 must be positive and finite", omega)
+	}
+	return build(w, k, omega).eigen()
+}
+
+// LowPressure returns the low-pressure limit of k_uni/ω: in that limit every
+// grain with k > 0 is absorbing, and the rate is the collisional flux into
+// them from the grains below threshold in their slowest mode.
+func (w *Well) LowPressure(k *Kernel) (Solution, error) {
+	if w.N() == 0 || w.K[0] > 0 {
+		return Solution{}, errors.New("collision: no grain below threshold")
+	}
+	return buildLowPressure(w, k).eigen()
+}

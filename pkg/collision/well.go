@@ -1,0 +1,95 @@
+package collision
+
+import (
+	"math"
+
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// Well is the reactant's energy grid at one temperature: the grains that hold
+// states, their Boltzmann populations and their microcanonical rates.
+// Grains are in ascending energy.
+type Well struct {
+	T      float64   // K
+	E      []float64 // grain energies, cm⁻¹
+	F      []float64 // Boltzmann distribution over grains, Σ F = 1
+	K      []float64 // k(E), s⁻¹
+	E0     float64   // reaction threshold, cm⁻¹
+	Grain  float64   // grain width, cm⁻¹
+	Counts []float64 // states per grain
+}
+
+// NewWell builds the well at tK from RRKM rates on a grain grid, with the
+// grains' Boltzmann weights from the reactant's counter (exact for sparse
+// low-energy levels; rrkm.Counter.BoltzmannCounts). Grains with no state are
+// left out: they carry no population and would make detailed balance
+// singular.
+func NewWell(m *rrkm.Micro, reactant *rrkm.Counter, tK float64) *Well {
+	w := &Well{T: tK, E0: m.E0, Grain: m.Grains.Width}
+	beta := 1 / units.KT(tK)
+	lmax := math.Inf(-1)
+	var logf []float64
+	bc := reactant.BoltzmannCounts(m.Grains, tK)
+	for i, n := range m.Counts {
+		if n <= 0 || bc[i] <= 0 {
+			continue
+		}
+		e := m.Grains.Energy(i)
+		w.E = append(w.E, e)
+		w.K = append(w.K, m.K[i])
+		w.Counts = append(w.Counts, n)
+		lf := math.Log(bc[i]) - beta*e
+		logf = append(logf, lf)
+		lmax = math.Max(lmax, lf)
+	}
+	w.F = make([]float64, len(logf))
+	sum := 0.0
+	for i, lf := range logf {
+		w.F[i] = math.Exp(lf - lmax)
+		sum += w.F[i]
+	}
+	for i := range w.F {
+		w.F[i] /= sum
+	}
+	return w
+}
+
+// N returns the number of grains.
+func (w *Well) N() int { return len(w.E) }
+
+// KInf returns the high-pressure limit on this grid, Σ F·k: the thermal
+// average of k(E), which canonical TST reproduces to the grain error.
+func (w *Well) KInf() float64 {
+	s := 0.0
+	for i, f := range w.F {
+		s += f * w.K[i]
+	}
+	return s
+}
+
+// StrongCollider returns k_uni for the strong collider with collision
+// frequency omega (s⁻¹, already multiplied by any efficiency βc):
+// Σ F·k·ω/(ω+k) (Lindemann–Hinshelwood with RRKM k(E); Holbrook, Pilling &
+// Robertson 1996, eq. 4.12).
+func (w *Well) StrongCollider(omega float64) float64 {
+	s := 0.0
+	for i, f := range w.F {
+		if k := w.K[i]; k > 0 {
+			s += f * k * omega / (omega + k)
+		}
+	}
+	return s
+}
+
+// StrongColliderK0 returns the strong-collider low-pressure limit divided by
+// the collision frequency: the thermal population of the reactive grains.
+func (w *Well) StrongColliderK0() float64 {
+	s := 0.0
+	for i, f := range w.F {
+		if w.K[i] > 0 {
+			s += f
+		}
+	}
+	return s
+}
