@@ -120,14 +120,20 @@ func newChannel(m *input.Model, eo *energyOptions) (*channel, error) {
 		ch.l = rrkm.PathDegeneracy(&r.Species, &ts.Species)
 	}
 	ch.grains = rrkm.GrainsTo(grain, ceiling)
-	top := ch.grains.Top()
-	if ch.rc, err = rrkm.NewCounter(&r.Species, m.EnergyGrid.Fine, top); err != nil {
-		return nil, fmt.Errorf("%s: %w", m.File, err)
+	return ch, ch.count(m, ch.grains.Top())
+}
+
+// count builds the state counters of the reactant and transition state up to
+// top cm⁻¹ above the reactant's zero-point level.
+func (ch *channel) count(m *input.Model, top float64) error {
+	var err error
+	if ch.rc, err = rrkm.NewCounter(&ch.reactant.Species, m.EnergyGrid.Fine, top); err != nil {
+		return fmt.Errorf("%s: %w", m.File, err)
 	}
-	if ch.tc, err = rrkm.NewCounter(&ts.Species, m.EnergyGrid.Fine, math.Max(top-ts.E0, m.EnergyGrid.Fine)); err != nil {
-		return nil, fmt.Errorf("%s: %w", m.File, err)
+	if ch.tc, err = rrkm.NewCounter(&ch.ts.Species, m.EnergyGrid.Fine, math.Max(top-ch.ts.E0, m.EnergyGrid.Fine)); err != nil {
+		return fmt.Errorf("%s: %w", m.File, err)
 	}
-	return ch, nil
+	return nil
 }
 
 // finite reports a numerical failure if any value is NaN or infinite.

@@ -203,6 +203,14 @@ func (p *parser) energyGrid(r *rawEnergyGrid) (EnergyGrid, error) {
 	if err := read("grain", &r.Grain, &g.Grain); err != nil {
 		return g, err
 	}
+	if err := read("master-equation-grain", &r.MEGrain, &g.MEGrain); err != nil {
+		return g, err
+	}
+	if given(&r.MEGrain) && g.MEGrain < g.Fine {
+		return g, p.errAt("energy-grid.master-equation-grain", &r.MEGrain,
+			problemf("grain %s cm-1 is smaller than fine-grain %s cm-1", fmtCm1(g.MEGrain), fmtCm1(g.Fine)),
+			"the master-equation grain must be at least the fine counting grain")
+	}
 	if err := read("ceiling", &r.Ceiling, &g.Ceiling); err != nil {
 		return g, err
 	}
@@ -213,7 +221,7 @@ func (p *parser) energyGrid(r *rawEnergyGrid) (EnergyGrid, error) {
 			n, path = &r.FineGrain, "energy-grid.fine-grain"
 		}
 		return g, p.errAt(path, n, problemf("grain %s cm-1 is smaller than fine-grain %s cm-1", fmtCm1(g.Grain), fmtCm1(g.Fine)),
-			"the master-equation grain must be at least the fine counting grain")
+			"the reporting grain must be at least the fine counting grain")
 	}
 	return g, nil
 }

@@ -333,6 +333,7 @@ func TestBadInput(t *testing.T) {
 		{"collision rate in wrong unit", "gas: Ar", "gas: Ar\n  collision-rate: 3.1e-10 cm3/s", "bath.collision-rate", "3.1e-10 cm3/s", "cm3/molecule/s"},
 		{"fine grain zero", "fine-grain: 1 cm-1", "fine-grain: 0 cm-1", "energy-grid.fine-grain", "0 cm-1", ""},
 		{"grain below fine grain", "grain: 10 cm-1", "grain: 0.5 cm-1", "energy-grid.grain", "0.5 cm-1", ""},
+		{"master-equation grain below fine grain", "grain: 10 cm-1", "grain: 10 cm-1\n  master-equation-grain: 0.5 cm-1", "energy-grid.master-equation-grain", "0.5 cm-1", ""},
 		{"fine grain above lowest frequency", "  fine-grain: 1 cm-1\n  grain: 10 cm-1\n", "  fine-grain: 1100 cm-1\n  grain: 2000 cm-1\n", "energy-grid.fine-grain", "1100 cm-1", "finer fine-grain"},
 		{"ceiling below barrier", "grain: 10 cm-1", "grain: 10 cm-1\n  ceiling: 10 kcal/mol", "energy-grid.ceiling", "10 kcal/mol", ""},
 		{"title missing", "title: minimal test input\n", "", "title", "", ""},

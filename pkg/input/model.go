@@ -84,8 +84,11 @@ const (
 
 // EnergyGrid sets the grains of state counting and of the master equation.
 type EnergyGrid struct {
-	Fine    float64 // fine counting grain δ in cm⁻¹ (default 1)
-	Grain   float64 // master-equation grain Δ in cm⁻¹ (default 10)
+	Fine  float64 // fine counting grain δ in cm⁻¹ (default 1)
+	Grain float64 // reporting grain of states and micro in cm⁻¹ (default 10)
+	// MEGrain is the master-equation grain in cm⁻¹; 0 means automatic,
+	// min(α, kT)/5 at each temperature.
+	MEGrain float64
 	Ceiling float64 // top of the grid in cm⁻¹; 0 means choose automatically
 }
 

@@ -101,6 +101,7 @@ type rawRange struct {
 type rawEnergyGrid struct {
 	FineGrain yaml.Node `yaml:"fine-grain"`
 	Grain     yaml.Node `yaml:"grain"`
+	MEGrain   yaml.Node `yaml:"master-equation-grain"`
 	Ceiling   yaml.Node `yaml:"ceiling"`
 }
 

@@ -158,3 +158,26 @@ func TestCounterRejects(t *testing.T) {
 		}
 	}
 }
+
+// BoltzmannCounts weights each state by its exact Boltzmann factor, so
+// Σ_i B_i·e^(−E_i/kT) is the harmonic Q exactly (integer frequencies, a grain
+// whose edges fall on levels, and one whose edges do not).
+func TestBoltzmannCounts(t *testing.T) {
+	s := &Species{Name: "x", Vibrations: []float64{263, 263, 945, 1129, 2166}}
+	const tK = 400
+	c, err := NewCounter(s, 1, 30000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, w := range []float64{10, 55.5, 263} {
+		g := GrainsTo(w, 29000)
+		b := c.BoltzmannCounts(g, tK)
+		q := 0.0
+		for i, x := range b {
+			q += x * math.Exp(-g.Energy(i)/kT(tK))
+		}
+		if want := s.VibrationalQ(tK); !scalar.EqualWithinRel(q, want, 1e-9) {
+			t.Errorf("grain %v: Σ B e^(−E/kT) = %.12g, Q = %.12g", w, q, want)
+		}
+	}
+}

@@ -1,0 +1,260 @@
+package main
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"github.com/falloff-kinetics/falloff/pkg/collision"
+	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+type ratesOptions struct {
+	json, csv, quiet, skipCheck bool
+	jobs                        int
+	grain, ceiling              string
+}
+
+func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
+	fs.BoolVar(&o.json, "json", false, "print one JSON object instead of tables")
+	fs.BoolVar(&o.csv, "csv", false, "print the k(T,P) grid as CSV (T/K,P/Pa,k/s-1)")
+	fs.IntVarP(&o.jobs, "jobs", "j", 0, "worker goroutines over temperatures (default: GOMAXPROCS)")
+	fs.StringVar(&o.grain, "grain", "", `master-equation grain with its unit, e.g. "50 cm-1", at every temperature (default: automatic, min(α, kT)/5)`)
+	fs.StringVar(&o.ceiling, "ceiling", "", `top of the master-equation grid with its unit (default: automatic per temperature)`)
+	fs.BoolVar(&o.skipCheck, "skip-check", false, "skip the grain and ceiling convergence check")
+	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no chatter or warnings on stderr")
+}
+
+func (o *ratesOptions) validate(args []string) error {
+	if len(args) > 1 {
+		return usagef("rates takes at most one input file, got %d", len(args))
+	}
+	if o.json && o.csv {
+		return usagef("--json and --csv exclude each other")
+	}
+	if o.jobs < 0 {
+		return usagef("--jobs %d: must be 0 (automatic) or positive", o.jobs)
+	}
+	return (&energyOptions{grain: o.grain, ceiling: o.ceiling}).check()
+}
+
+func runRatesCmd(args []string, s streams) error {
+	var o ratesOptions
+	fs := newFlags("rates", "rates [flags] [FILE]",
+		"  falloff rates                          # the built-in demo\n"+
+			"  falloff rates ring.yaml --jobs 2\n"+
+			"  falloff rates ring.yaml --csv > grid.csv\n"+
+			"  falloff rates ring.yaml --json > rates.json", s)
+	o.addFlags(fs)
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if err := o.validate(fs.Args()); err != nil {
+		return err
+	}
+	m, err := loadModel(fs.Args(), o.quiet || o.json || o.csv, s)
+	if err != nil {
+		return err
+	}
+	return runRates(o, m, s)
+}
+
+// ratesReport is the JSON of `rates` (design.md §8).
+type ratesReport struct {
+	File           string      `json:"file"`
+	Reaction       string      `json:"reaction"`
+	Direction      string      `json:"direction"`
+	KUnits         string      `json:"k_units"`
+	Temperatures   []float64   `json:"temperatures_K"`
+	Pressures      []float64   `json:"pressures_Pa"`
+	K              [][]float64 `json:"k"`
+	KInf           []float64   `json:"k_inf"`
+	KInfIntegrated []float64   `json:"k_inf_integrated"`
+	K0             []float64   `json:"k0"`
+	K0Units        string      `json:"k0_units"`
+	CollisionFreq  []float64   `json:"collision_frequency_per_s_per_Pa"`
+	CollisionRate  []float64   `json:"collision_rate_constant_cm3_per_molecule_per_s"`
+	Centre         []float64   `json:"falloff_centre_Pa"`
+	Grain          []float64   `json:"grain_cm-1"`
+	Ceiling        []float64   `json:"ceiling_cm-1"`
+	Convergence    *float64    `json:"convergence_max_change,omitempty"`
+	Transfer       string      `json:"energy_transfer"`
+	Bath           bathInfo    `json:"bath"`
+	PathDegeneracy float64     `json:"path_degeneracy"`
+	Warnings       []string    `json:"warnings"`
+	Caution        string      `json:"caution"`
+}
+
+// convergenceLimit is the change on halving the grain or raising the
+// ceiling above which rates warns.
+const convergenceLimit = 0.005
+
+func computeRates(o ratesOptions, m *input.Model) (*ratesReport, error) {
+	if len(m.Pressures) == 0 {
+		return nil, &input.FieldError{File: m.File, Path: "grid.pressures", Err: fmt.Errorf("missing: rates needs a pressure grid"),
+			Hint: "add pressures: {from: 0.001 bar, to: 1000 bar, points: 13}"}
+	}
+	col, bath, err := newCollider(m)
+	if err != nil {
+		return nil, err
+	}
+	tr := newTransfer(m)
+	r, ts := m.ReactantAndTS()
+	ch := &channel{name: r.Name + " -> " + ts.Name, reactant: r, ts: ts, l: m.Reaction.PathDegeneracy}
+	if ch.l == 0 {
+		ch.l = rrkm.PathDegeneracy(&r.Species, &ts.Species)
+	}
+	var grain, ceiling float64
+	if o.grain != "" {
+		grain, _ = units.Parse(o.grain, units.Energy)
+	} else {
+		grain = m.EnergyGrid.MEGrain
+	}
+	if o.ceiling != "" {
+		ceiling, _ = units.Parse(o.ceiling, units.Energy)
+	} else {
+		ceiling = m.EnergyGrid.Ceiling
+	}
+	if ceiling > 0 && ceiling <= ts.E0 {
+		return nil, usagef("--ceiling %q: not above the threshold %.0f cm-1", o.ceiling, ts.E0)
+	}
+	ktMax := units.KT(m.Temperatures[len(m.Temperatures)-1])
+	// Counters reach the automatic ceiling at the highest temperature plus
+	// the 10 kT the convergence check adds.
+	top := ts.E0 + (collision.CeilingKTMax+10)*ktMax
+	if ceiling > 0 {
+		top = ceiling + 10*ktMax
+	}
+	if err := ch.count(m, top); err != nil {
+		return nil, err
+	}
+	res, err := collision.Run(collision.Channel{Reactant: ch.rc, TS: ch.tc, L: ch.l, E0: ts.E0}, col, tr,
+		m.Temperatures, m.Pressures, collision.Options{Grain: grain, Ceiling: ceiling, Jobs: o.jobs, SkipConvergence: o.skipCheck})
+	if errors.Is(err, collision.ErrTooLarge) {
+		return nil, fmt.Errorf("%s: master equation: %w", m.File, err) // a request too large: bad input
+	} else if err != nil {
+		return nil, &numericalError{fmt.Errorf("%s: master equation: %w", m.File, err)}
+	}
+	rep := &ratesReport{File: m.File, Direction: direction(m), KUnits: "s-1", K0Units: "cm3 molecule-1 s-1",
+		Reaction:     r.Name + " -> " + strings.Join(m.Reaction.Products, " + "),
+		Temperatures: m.Temperatures, Pressures: m.Pressures, K: res.K(), Transfer: tr.String(), Bath: bath,
+		PathDegeneracy: ch.l, Warnings: append([]string{}, m.Warnings...), Caution: caution}
+	for _, row := range res.Rows {
+		rep.KInf = append(rep.KInf, rrkm.KInf(&r.Species, &ts.Species, ch.l, row.T))
+		rep.KInfIntegrated = append(rep.KInfIntegrated, row.KInfME)
+		rep.K0 = append(rep.K0, row.K0)
+		rep.CollisionRate = append(rep.CollisionRate, row.Z)
+		rep.CollisionFreq = append(rep.CollisionFreq, row.Z*collision.Concentration(1, row.T))
+		rep.Centre = append(rep.Centre, row.Centre)
+		rep.Grain = append(rep.Grain, row.Grain)
+		rep.Ceiling = append(rep.Ceiling, row.Ceiling)
+		if row.Rescaled > 0 {
+			_ = row // reported in docs: a few sparse low grains are normal
+		}
+	}
+	if c := res.Convergence; !math.IsNaN(c) {
+		rep.Convergence = &c
+		if c > convergenceLimit {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: halving the grain or raising the ceiling by 10 kT changes k by %.2g %% (more than %.2g %%); set energy-grid.master-equation-grain or --grain smaller",
+				m.File, 100*c, 100*convergenceLimit))
+		}
+	}
+	for _, xs := range [][]float64{rep.KInf, rep.KInfIntegrated, rep.K0, rep.Centre} {
+		if err := finite("rates", xs...); err != nil {
+			return nil, err
+		}
+	}
+	for _, xs := range rep.K {
+		if err := finite("k", xs...); err != nil {
+			return nil, err
+		}
+	}
+	return rep, nil
+}
+
+func direction(m *input.Model) string {
+	if len(m.Reaction.Products) == 1 {
+		return "isomerization"
+	}
+	return "dissociation"
+}
+
+func runRates(o ratesOptions, m *input.Model, s streams) error {
+	rep, err := computeRates(o, m)
+	if err != nil {
+		return err
+	}
+	if !o.quiet && !o.json && !o.csv {
+		for _, w := range rep.Warnings[len(m.Warnings):] {
+			fmt.Fprintln(s.err, "warning:", w)
+		}
+	}
+	switch {
+	case o.json:
+		return writeJSON(s.out, rep)
+	case o.csv:
+		return writeGridCSV(s, rep)
+	}
+	return printRates(s, m, rep)
+}
+
+// writeGridCSV writes one row per grid point with units in the header.
+func writeGridCSV(s streams, rep *ratesReport) error {
+	w := csv.NewWriter(s.out)
+	if err := w.Write([]string{"T/K", "P/Pa", "k/s-1"}); err != nil {
+		return err
+	}
+	for i, t := range rep.Temperatures {
+		for j, p := range rep.Pressures {
+			row := []string{strconv.FormatFloat(t, 'g', -1, 64), strconv.FormatFloat(p, 'g', -1, 64),
+				strconv.FormatFloat(rep.K[i][j], 'g', -1, 64)}
+			if err := w.Write(row); err != nil {
+				return err
+			}
+		}
+	}
+	w.Flush()
+	return w.Error()
+}
+
+func printRates(s streams, m *input.Model, rep *ratesReport) error {
+	fmt.Fprintf(s.out, "%s: %s\nreaction %s (%s), L = %g\nbath %s (%s); %s\n\n",
+		m.File, m.Title, rep.Reaction, rep.Direction, rep.PathDegeneracy, rep.Bath.Gas, rep.Bath.Source, rep.Transfer)
+	var rows [][]string
+	for i, t := range rep.Temperatures {
+		rows = append(rows, []string{num(t), num(rep.KInf[i]), num6(rep.KInfIntegrated[i] / rep.KInf[i]),
+			num(rep.K0[i] * units.Avogadro), num(rep.Centre[i] / units.BarPa), num(rep.Grain[i]), numE(rep.Ceiling[i])})
+	}
+	if err := renderTable(s.out, []string{"T / K", "k∞ TST / s-1", "k∞(ME)/k∞", "k0 / cm3 mol-1 s-1",
+		"P(k=k∞/2) / bar", "grain / cm-1", "ceiling / cm-1"}, rows); err != nil {
+		return err
+	}
+	fmt.Fprintln(s.out, "\nk(T,P) / s-1; columns are pressures in bar:")
+	header := []string{"T / K"}
+	for _, p := range rep.Pressures {
+		header = append(header, num(p/units.BarPa))
+	}
+	rows = rows[:0]
+	for i, t := range rep.Temperatures {
+		row := []string{num(t)}
+		for _, k := range rep.K[i] {
+			row = append(row, num(k))
+		}
+		rows = append(rows, row)
+	}
+	if err := renderTable(s.out, header, rows); err != nil {
+		return err
+	}
+	if rep.Convergence != nil {
+		fmt.Fprintf(s.out, "\nconvergence: halving the grain or raising the ceiling by 10 kT changes k by at most %.2g %%\n", 100**rep.Convergence)
+	}
+	_, err := fmt.Fprintln(s.out, "\n"+caution)
+	return err
+}

@@ -1,0 +1,118 @@
+package main
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+const ch3ncFile = "../../testdata/ch3nc-falloff.yaml"
+
+func TestRatesTerminal(t *testing.T) {
+	code, out, errs := runCLI(t, "rates", "-q", ch3ncFile)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	golden(t, "rates-ch3nc.txt", out)
+}
+
+// `rates --json` carries the fields of design.md §8 with consistent shapes,
+// and physics the grid must obey: k rises with pressure and stays below the
+// high-pressure limit; the thermal average of k(E) matches canonical TST to
+// 0.5 % (Holbrook, Pilling & Robertson 1996, eq. 4.26). The output does not
+// depend on the number of workers.
+func TestRatesJSON(t *testing.T) {
+	code, out, errs := runCLI(t, "rates", "--json", "--jobs", "1", ch3ncFile)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var r ratesReport
+	dec := json.NewDecoder(strings.NewReader(out))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&r); err != nil {
+		t.Fatal(err)
+	}
+	nT, nP := len(r.Temperatures), len(r.Pressures)
+	if nT != 3 || nP != 5 || len(r.K) != nT || len(r.K0) != nT || len(r.KInf) != nT || len(r.CollisionFreq) != nT {
+		t.Fatalf("shapes: %d T, %d P, k %d rows", nT, nP, len(r.K))
+	}
+	if r.KUnits != "s-1" || r.K0Units == "" || r.Direction != "isomerization" {
+		t.Errorf("units or direction: %q %q %q", r.KUnits, r.K0Units, r.Direction)
+	}
+	for i := range r.K {
+		if len(r.K[i]) != nP {
+			t.Fatalf("row %d has %d pressures", i, len(r.K[i]))
+		}
+		for j, k := range r.K[i] {
+			if k > r.KInfIntegrated[i]*(1+1e-9) || (j > 0 && k < r.K[i][j-1]) {
+				t.Errorf("T = %v, P = %v: k = %v breaks monotonicity or exceeds k∞ %v", r.Temperatures[i], r.Pressures[j], k, r.KInfIntegrated[i])
+			}
+		}
+		if d := r.KInfIntegrated[i]/r.KInf[i] - 1; d > 0.005 || d < -0.005 {
+			t.Errorf("T = %v: k∞(ME)/k∞(TST) − 1 = %.3g", r.Temperatures[i], d)
+		}
+	}
+	_, out2, _ := runCLI(t, "rates", "--json", "--jobs", "3", ch3ncFile)
+	if out2 != out {
+		t.Error("--jobs 3 output differs from --jobs 1")
+	}
+}
+
+// `rates --csv` writes one row per grid point, units in the header.
+func TestRatesCSV(t *testing.T) {
+	code, out, errs := runCLI(t, "rates", "--csv", "--skip-check", ch3ncFile)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	rows, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Join(rows[0], ",") != "T/K,P/Pa,k/s-1" || len(rows) != 1+3*5 {
+		t.Fatalf("header %v, %d rows", rows[0], len(rows))
+	}
+	// 760 Torr is exactly 101325 Pa.
+	if p, _ := strconv.ParseFloat(rows[4][1], 64); p != 101325 {
+		t.Errorf("fourth pressure %v Pa, want 101325", p)
+	}
+}
+
+func TestRatesErrors(t *testing.T) {
+	dir := t.TempDir()
+	text, err := os.ReadFile(ch3ncFile)
+	if err != nil {
+		t.Fatal(err)
+	}
+	write := func(name, old, repl string) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(strings.Replace(string(text), old, repl, 1)), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	cases := []struct {
+		name string
+		args []string
+		code int
+		msg  string
+	}{
+		{"no pressures", []string{"rates", hcnFile}, exitInput, "grid.pressures"},
+		{"unknown gas", []string{"rates", write("gas.yaml", "gas: Ar", "gas: SF6")}, exitInput, "bath.gas"},
+		{"no reactant LJ", []string{"rates", write("lj.yaml", "    lennard-jones: {sigma: 4.47 angstrom, epsilon: 380 K}\n", "")}, exitInput, "lennard-jones"},
+		{"json and csv", []string{"rates", "--json", "--csv", ch3ncFile}, exitUsage, "exclude"},
+		{"grain without unit", []string{"rates", "--grain", "50", ch3ncFile}, exitUsage, "no unit"},
+		{"grid too large", []string{"rates", "--grain", "1 cm-1", ch3ncFile}, exitInput, "memory"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			code, _, errs := runCLI(t, tc.args...)
+			if code != tc.code || !strings.Contains(errs, tc.msg) || strings.Count(strings.TrimSpace(errs), "\n") > 0 {
+				t.Errorf("exit %d (want %d), stderr %q (want one line with %q)", code, tc.code, errs, tc.msg)
+			}
+		})
+	}
+}
