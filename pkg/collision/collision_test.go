@@ -69,6 +69,11 @@ func TestLJRateConstant(t *testing.T) {
 func testChannel(t testing.TB, ceiling float64) (Channel, *rrkm.Species) {
 	r := &rrkm.Species{Name: "CH3NC", Vibrations: []float64{3014, 2966, 2966, 2166, 1467, 1467, 1429, 1129, 1129, 945, 263, 263}}
 	ts := &rrkm.Species{Name: "TS", E0: 13300, Vibrations: []float64{3050, 2990, 2990, 2100, 1450, 1450, 1400, 1100, 1100, 600, 280}}
+	return channelOf(t, r, ts, ceiling), r
+}
+
+// channelOf counts reactant and transition state up to ceiling cm⁻¹.
+func channelOf(t testing.TB, r, ts *rrkm.Species, ceiling float64) Channel {
 	rc, err := rrkm.NewCounter(r, 1, ceiling)
 	if err != nil {
 		t.Fatal(err)
@@ -77,7 +82,7 @@ func testChannel(t testing.TB, ceiling float64) (Channel, *rrkm.Species) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return Channel{Reactant: rc, TS: tc, L: 1, E0: ts.E0}, r
+	return Channel{Reactant: rc, TS: tc, L: 1, E0: ts.E0}
 }
 
 func testWell(t testing.TB, ch Channel, tr Transfer, tK, grain float64) *prepared {

@@ -170,15 +170,7 @@ func rotorChannel(t testing.TB, ceiling float64) Channel {
 		Rotors: []rrkm.Rotor{{Dim: 3, Consts: []float64{5.25, 0.3357, 0.3357}, Symmetry: 1}}}
 	ts := &rrkm.Species{Name: "TS", E0: 13300, Vibrations: []float64{3050, 2990, 2990, 2100, 1450, 1450, 1400, 1100, 1100, 600, 280},
 		Rotors: []rrkm.Rotor{{Dim: 3, Consts: []float64{1.9, 0.42, 0.38}, Symmetry: 1}}}
-	rc, err := rrkm.NewCounter(r, 1, ceiling)
-	if err != nil {
-		t.Fatal(err)
-	}
-	tc, err := rrkm.NewCounter(ts, 1, ceiling-ts.E0)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return Channel{Reactant: rc, TS: tc, L: 1, E0: ts.E0}
+	return channelOf(t, r, ts, ceiling)
 }
 
 // Halving the automatic grain changes k by < 0.5 % (issue requirement), for
