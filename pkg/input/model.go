@@ -52,6 +52,12 @@ type Reaction struct {
 	// PathDegeneracy is the reaction-path degeneracy L given by the user;
 	// 0 means auto, to be computed by rrkm.PathDegeneracy.
 	PathDegeneracy float64
+	// ReactionEnergy is ΔE0 of the products above the reactant (zero-point
+	// corrected, cm⁻¹); needed with the products' molecular data to write
+	// the reverse (recombination) direction. HasReactionEnergy says whether
+	// the file gave it.
+	ReactionEnergy    float64
+	HasReactionEnergy bool
 }
 
 // Bath describes the bath gas.

@@ -73,6 +73,14 @@ func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
 		}
 	}
 
+	if given(&r.ReactionEnergy) {
+		e, err := p.quantity("reaction.reaction-energy", &r.ReactionEnergy, units.Energy)
+		if err != nil {
+			return rx, err
+		}
+		rx.ReactionEnergy, rx.HasReactionEnergy = e, true
+	}
+
 	if given(&r.PathDegeneracy) {
 		dp := "reaction.path-degeneracy"
 		if r.PathDegeneracy.Kind == yaml.ScalarNode && strings.EqualFold(strings.TrimSpace(r.PathDegeneracy.Value), "auto") {

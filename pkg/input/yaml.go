@@ -68,6 +68,7 @@ type rawReaction struct {
 	Via            yaml.Node `yaml:"via"`
 	Products       yaml.Node `yaml:"products"`
 	PathDegeneracy yaml.Node `yaml:"path-degeneracy"`
+	ReactionEnergy yaml.Node `yaml:"reaction-energy"`
 }
 
 type rawBath struct {
