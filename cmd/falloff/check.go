@@ -88,11 +88,7 @@ func rotationLabel(s *rrkm.Species) string {
 
 func checkSummary(m *input.Model) checkReport {
 	r, ts := m.ReactantAndTS()
-	l := m.Reaction.PathDegeneracy
-	if l == 0 {
-		l = rrkm.PathDegeneracy(&r.Species, &ts.Species)
-	}
-	rep := checkReport{File: m.File, Title: m.Title, PathDegeneracy: l,
+	rep := checkReport{File: m.File, Title: m.Title, PathDegeneracy: pathDegeneracy(m),
 		Reaction:     fmt.Sprintf("%s -> %s (via %s)", r.Name, strings.Join(m.Reaction.Products, " + "), ts.Name),
 		Temperatures: m.Temperatures, Pressures: m.Pressures, Warnings: m.Warnings}
 	if rep.Warnings == nil {

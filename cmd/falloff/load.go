@@ -114,13 +114,19 @@ func newChannel(m *input.Model, eo *energyOptions) (*channel, error) {
 	if err != nil {
 		return nil, err
 	}
-	ch := &channel{name: r.Name + " -> " + ts.Name, reactant: r, ts: ts,
-		l: m.Reaction.PathDegeneracy}
-	if ch.l == 0 {
-		ch.l = rrkm.PathDegeneracy(&r.Species, &ts.Species)
-	}
+	ch := &channel{name: r.Name + " -> " + ts.Name, reactant: r, ts: ts, l: pathDegeneracy(m)}
 	ch.grains = rrkm.GrainsTo(grain, ceiling)
 	return ch, ch.count(m, ch.grains.Top())
+}
+
+// pathDegeneracy returns the file's L, or L from the symmetry numbers and
+// optical isomers when it says auto.
+func pathDegeneracy(m *input.Model) float64 {
+	if l := m.Reaction.PathDegeneracy; l > 0 {
+		return l
+	}
+	r, ts := m.ReactantAndTS()
+	return rrkm.PathDegeneracy(&r.Species, &ts.Species)
 }
 
 // count builds the state counters of the reactant and transition state up to

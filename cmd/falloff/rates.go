@@ -107,10 +107,6 @@ func computeRates(o ratesOptions, m *input.Model) (*ratesReport, error) {
 	}
 	tr := newTransfer(m)
 	r, ts := m.ReactantAndTS()
-	ch := &channel{name: r.Name + " -> " + ts.Name, reactant: r, ts: ts, l: m.Reaction.PathDegeneracy}
-	if ch.l == 0 {
-		ch.l = rrkm.PathDegeneracy(&r.Species, &ts.Species)
-	}
 	var grain, ceiling float64
 	if o.grain != "" {
 		grain, _ = units.Parse(o.grain, units.Energy)
@@ -125,17 +121,11 @@ func computeRates(o ratesOptions, m *input.Model) (*ratesReport, error) {
 	if ceiling > 0 && ceiling <= ts.E0 {
 		return nil, usagef("--ceiling %q: not above the threshold %.0f cm-1", o.ceiling, ts.E0)
 	}
-	ktMax := units.KT(m.Temperatures[len(m.Temperatures)-1])
-	// Counters reach the automatic ceiling at the highest temperature plus
-	// the 10 kT the convergence check adds.
-	top := ts.E0 + (collision.CeilingKTMax+10)*ktMax
-	if ceiling > 0 {
-		top = ceiling + 10*ktMax
-	}
-	if err := ch.count(m, top); err != nil {
+	ch, err := newMasterChannel(m, ceiling)
+	if err != nil {
 		return nil, err
 	}
-	res, err := collision.Run(collision.Channel{Reactant: ch.rc, TS: ch.tc, L: ch.l, E0: ts.E0}, col, tr,
+	res, err := collision.Run(ch, col, tr,
 		m.Temperatures, m.Pressures, collision.Options{Grain: grain, Ceiling: ceiling, Jobs: o.jobs, SkipConvergence: o.skipCheck})
 	if errors.Is(err, collision.ErrTooLarge) {
 		return nil, fmt.Errorf("%s: master equation: %w", m.File, err) // a request too large: bad input
@@ -145,9 +135,9 @@ func computeRates(o ratesOptions, m *input.Model) (*ratesReport, error) {
 	rep := &ratesReport{File: m.File, Direction: direction(m), KUnits: "s-1", K0Units: "cm3 molecule-1 s-1",
 		Reaction:     r.Name + " -> " + strings.Join(m.Reaction.Products, " + "),
 		Temperatures: m.Temperatures, Pressures: m.Pressures, K: res.K(), Transfer: tr.String(), Bath: bath,
-		PathDegeneracy: ch.l, Warnings: append([]string{}, m.Warnings...), Caution: caution}
+		PathDegeneracy: ch.L, Warnings: append([]string{}, m.Warnings...), Caution: caution}
 	for _, row := range res.Rows {
-		rep.KInf = append(rep.KInf, rrkm.KInf(&r.Species, &ts.Species, ch.l, row.T))
+		rep.KInf = append(rep.KInf, rrkm.KInf(&r.Species, &ts.Species, ch.L, row.T))
 		rep.KInfIntegrated = append(rep.KInfIntegrated, row.KInfME)
 		rep.K0 = append(rep.K0, row.K0)
 		rep.CollisionRate = append(rep.CollisionRate, row.Z)

@@ -51,6 +51,7 @@ func verbs() []verb {
 		{"states", "partition functions, sums and densities of states", runStatesCmd},
 		{"micro", "RRKM k(E) and its thermal average beside canonical k∞(T)", runMicroCmd},
 		{"rates", "master-equation k(T,P) on the temperature and pressure grid", runRatesCmd},
+		{"compare", "the grid under strong-collider and exponential-down models side by side", runCompareCmd},
 		{"example", "print the built-in demo input (edit it to make your own)", runExampleCmd},
 	}
 }
@@ -113,7 +114,7 @@ Commands:
 		fmt.Fprintf(w, "  %-9s %s\n", v.name, v.summary)
 	}
 	fmt.Fprint(w, `
-With no FILE, states, micro and rates run the built-in demo (an invented molecule).
+With no FILE, states, micro, rates and compare run the built-in demo (an invented molecule).
 Run 'falloff <command> --help' for its flags and a worked example.
 
 Exit codes: 0 ok, 1 bad input, 2 usage, 3 numerical failure.

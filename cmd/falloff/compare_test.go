@@ -1,0 +1,79 @@
+package main
+
+import (
+	"encoding/json"
+	"encoding/xml"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// `compare` orders the models as physics requires (Troe, J. Chem. Phys. 66,
+// 4758, 1977: the strong collider is the upper bound of collisional
+// activation; a larger ⟨ΔE⟩down transfers more energy per collision): at the
+// same collision rate exponential-down k ≤ strong-collider k, and k grows with
+// ⟨ΔE⟩down, at every grid point and in k0. Its plot is well-formed SVG with
+// one curve per model and plotted temperature.
+func TestCompareOrdering(t *testing.T) {
+	svg := filepath.Join(t.TempDir(), "compare.svg")
+	code, out, errs := runCLI(t, "compare", "--json", "--plot", svg,
+		"--alpha", "100 cm-1", "--alpha", "200 cm-1", "--alpha", "400 cm-1", "--alpha", "800 cm-1", ch3ncFile)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var r compareReport
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Models) != 5 || r.Models[0].Name != "strong collider" {
+		t.Fatalf("models %+v", r.Models)
+	}
+	for i := range r.Temperatures {
+		for j := range r.Pressures {
+			for m := 1; m < len(r.Models); m++ {
+				k, prev := r.Models[m].K[i][j], r.Models[m-1].K[i][j]
+				if m == 1 && k > prev*(1+1e-9) {
+					t.Errorf("T %v P %v: exp-down %v > strong collider %v", r.Temperatures[i], r.Pressures[j], k, prev)
+				}
+				if m > 1 && k < prev*(1-1e-9) {
+					t.Errorf("T %v P %v: k falls from %v to %v as ⟨ΔE⟩down grows", r.Temperatures[i], r.Pressures[j], prev, k)
+				}
+			}
+		}
+		for m := 2; m < len(r.Models); m++ {
+			if r.Models[m].K0[i] < r.Models[m-1].K0[i] || r.Models[m].K0[i] > r.Models[0].K0[i] {
+				t.Errorf("T %v: k0 out of order", r.Temperatures[i])
+			}
+		}
+	}
+	f, err := os.Open(svg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	dec := xml.NewDecoder(f)
+	legend := 0
+	inText := false
+	for {
+		tok, err := dec.Token()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatalf("SVG is not well-formed XML: %v", err)
+		}
+		switch v := tok.(type) {
+		case xml.StartElement:
+			inText = v.Name.Local == "text"
+		case xml.CharData:
+			if inText && strings.Contains(string(v), " K, ") {
+				legend++
+			}
+		}
+	}
+	if want := 3 * 5; legend != want { // 3 temperatures × 5 models
+		t.Errorf("%d curves in the legend, want %d", legend, want)
+	}
+}

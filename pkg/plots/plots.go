@@ -1,0 +1,104 @@
+package plots
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/plotutil"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// Series is one curve or set of points.
+type Series struct {
+	Name   string
+	X, Y   []float64
+	Points bool // markers only (computed points); otherwise a line (a fit)
+	// Group ties a fitted line to its points so they share a colour; series
+	// with the same Group get the same colour.
+	Group int
+}
+
+// Figure is a two-axis plot.
+type Figure struct {
+	Title, XLabel, YLabel string
+	LogX, LogY            bool
+	Series                []Series
+}
+
+// SVG renders the figure as an SVG document of 16 cm × 11 cm. Non-positive
+// values on a logarithmic axis and non-finite values are dropped from the
+// series (and reported as an error if a series is left empty).
+func (f Figure) SVG() ([]byte, error) {
+	p := plot.New()
+	p.Title.Text = f.Title
+	p.X.Label.Text = f.XLabel
+	p.Y.Label.Text = f.YLabel
+	if f.LogX {
+		p.X.Scale = plot.LogScale{}
+		p.X.Tick.Marker = plot.LogTicks{Prec: -1}
+	}
+	if f.LogY {
+		p.Y.Scale = plot.LogScale{}
+		p.Y.Tick.Marker = plot.LogTicks{Prec: -1}
+	}
+	p.Legend.Top = true
+	p.Add(plotter.NewGrid())
+	if len(f.Series) == 0 {
+		return nil, errors.New("plots: no series")
+	}
+	for i, s := range f.Series {
+		if len(s.X) != len(s.Y) {
+			panic("plots: X and Y differ in length")
+		}
+		var xy plotter.XYs
+		for j := range s.X {
+			x, y := s.X[j], s.Y[j]
+			if math.IsNaN(x) || math.IsNaN(y) || math.IsInf(x, 0) || math.IsInf(y, 0) ||
+				(f.LogX && x <= 0) || (f.LogY && y <= 0) {
+				continue
+			}
+			xy = append(xy, plotter.XY{X: x, Y: y})
+		}
+		if len(xy) == 0 {
+			return nil, fmt.Errorf("plots: series %q has no plottable point", s.Name)
+		}
+		c := plotutil.Color(s.Group)
+		if s.Group == 0 {
+			c = plotutil.Color(i)
+		}
+		if s.Points {
+			sc, err := plotter.NewScatter(xy)
+			if err != nil {
+				return nil, err
+			}
+			sc.GlyphStyle.Color = c
+			sc.GlyphStyle.Shape = draw.CircleGlyph{}
+			sc.GlyphStyle.Radius = vg.Points(2.5)
+			p.Add(sc)
+			p.Legend.Add(s.Name, sc)
+			continue
+		}
+		l, err := plotter.NewLine(xy)
+		if err != nil {
+			return nil, err
+		}
+		l.LineStyle.Color = c
+		l.LineStyle.Width = vg.Points(1.2)
+		p.Add(l)
+		p.Legend.Add(s.Name, l)
+	}
+	w, err := p.WriterTo(16*vg.Centimeter, 11*vg.Centimeter, "svg")
+	if err != nil {
+		return nil, err
+	}
+	var b bytes.Buffer
+	if _, err := w.WriteTo(&b); err != nil {
+		return nil, err
+	}
+	return b.Bytes(), nil
+}
