@@ -82,7 +82,9 @@ func TestTextMatchesGRIMech(t *testing.T) {
 // quantity per cm³.
 type parsedArr struct{ A, b, Ea float64 }
 
-func (a parsedArr) k(t, eaPerK float64) float64 { return a.A * math.Pow(t, a.b) * math.Exp(-a.Ea/eaPerK/t) }
+func (a parsedArr) k(t, eaPerK float64) float64 {
+	return a.A * math.Pow(t, a.b) * math.Exp(-a.Ea/eaPerK/t)
+}
 
 type parsedEntry struct {
 	kind       string
