@@ -211,15 +211,14 @@ func writeComparePlot(path string, rep *compareReport) error {
 	for _, p := range rep.Pressures {
 		ps = append(ps, p/units.BarPa)
 	}
-	g := 0
-	for _, it := range plotTemperatures(len(rep.Temperatures)) {
-		for _, md := range rep.Models {
-			g++
+	for g, it := range plotTemperatures(len(rep.Temperatures)) {
+		for d, md := range rep.Models {
 			y := make([]float64, len(ps))
 			for j := range ps {
 				y[j] = md.K[it][j] / rep.KInf[it]
 			}
-			f.Series = append(f.Series, plots.Series{Name: fmt.Sprintf("%s K, %s", num(rep.Temperatures[it]), md.Name), X: ps, Y: y, Group: g})
+			f.Series = append(f.Series, plots.Series{Name: fmt.Sprintf("%s K, %s", num(rep.Temperatures[it]), md.Name),
+				X: ps, Y: y, Group: g + 1, Dash: d})
 		}
 	}
 	b, err := f.SVG()

@@ -21,6 +21,9 @@ type Series struct {
 	// Group ties a fitted line to its points so they share a colour; series
 	// with the same Group get the same colour.
 	Group int
+	// Dash picks a dash pattern for a line (0 solid), to tell models apart
+	// when colours stand for temperatures.
+	Dash int
 }
 
 // Figure is a two-axis plot.
@@ -46,7 +49,12 @@ func (f Figure) SVG() ([]byte, error) {
 		p.Y.Scale = plot.LogScale{}
 		p.Y.Tick.Marker = plot.LogTicks{Prec: -1}
 	}
-	p.Legend.Top = true
+	// Rising curves (falloff, Arrhenius in 1/T decreasing) leave the lower
+	// right corner free for the legend.
+	p.Legend.Top = false
+	p.Legend.TextStyle.Font.Size = vg.Points(8)
+	p.Legend.XOffs = -4 * vg.Millimeter
+	p.Legend.YOffs = 2 * vg.Millimeter
 	p.Add(plotter.NewGrid())
 	if len(f.Series) == 0 {
 		return nil, errors.New("plots: no series")
@@ -89,6 +97,9 @@ func (f Figure) SVG() ([]byte, error) {
 		}
 		l.LineStyle.Color = c
 		l.LineStyle.Width = vg.Points(1.2)
+		if s.Dash > 0 {
+			l.LineStyle.Dashes = plotutil.Dashes(s.Dash)
+		}
 		p.Add(l)
 		p.Legend.Add(s.Name, l)
 	}
