@@ -88,7 +88,7 @@ const defaultAlpha300 = 250
 
 // compareModels solves the grid under the strong collider and each
 // exponential-down α300, at the same collision rate.
-func compareModels(o compareOptions, m *input.Model) (*compareReport, error) {
+func compareModels(o compareOptions, m *input.Model, s streams) (*compareReport, error) {
 	if len(m.Pressures) == 0 {
 		return nil, &input.FieldError{File: m.File, Path: "grid.pressures", Err: fmt.Errorf("missing: compare needs a pressure grid"),
 			Hint: "add pressures: {from: 0.001 bar, to: 1000 bar, points: 13}"}
@@ -121,9 +121,11 @@ func compareModels(o compareOptions, m *input.Model) (*compareReport, error) {
 	for _, a := range alphas {
 		models = append(models, collision.Transfer{Alpha300: a, Exponent: exponent})
 	}
+	bar := newProgress(s, "master equation", len(models)*len(m.Temperatures), o.quiet)
+	defer bar.finish()
 	for _, tr := range models {
 		res, err := collision.Run(ch, col, tr, m.Temperatures, m.Pressures, collision.Options{Jobs: o.jobs, SkipConvergence: true,
-			Grain: m.EnergyGrid.MEGrain, Ceiling: m.EnergyGrid.Ceiling})
+			Grain: m.EnergyGrid.MEGrain, Ceiling: m.EnergyGrid.Ceiling, Progress: bar.step})
 		if err != nil {
 			return nil, &numericalError{fmt.Errorf("%s: %s: %w", m.File, tr, err)}
 		}
@@ -143,7 +145,7 @@ func compareModels(o compareOptions, m *input.Model) (*compareReport, error) {
 }
 
 func runCompare(o compareOptions, m *input.Model, s streams) error {
-	rep, err := compareModels(o, m)
+	rep, err := compareModels(o, m, s)
 	if err != nil {
 		return err
 	}

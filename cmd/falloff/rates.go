@@ -2,24 +2,31 @@ package main
 
 import (
 	"encoding/csv"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
+	"path/filepath"
 	"strconv"
 	"strings"
 
 	"github.com/spf13/pflag"
 
 	"github.com/falloff-kinetics/falloff/pkg/collision"
+	"github.com/falloff-kinetics/falloff/pkg/export"
+	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
 type ratesOptions struct {
-	json, csv, quiet, skipCheck bool
-	jobs                        int
-	grain, ceiling              string
+	json, csv, quiet, skipCheck, skeleton bool
+	jobs                                  int
+	grain, ceiling                        string
+	out, plots, direction                 string
+	energyUnit, quantity                  string
+	tolerancePct                          float64
 }
 
 func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
@@ -29,6 +36,13 @@ func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.grain, "grain", "", `master-equation grain with its unit, e.g. "50 cm-1", at every temperature (default: automatic, min(α, kT)/5)`)
 	fs.StringVar(&o.ceiling, "ceiling", "", `top of the master-equation grid with its unit (default: automatic per temperature)`)
 	fs.BoolVar(&o.skipCheck, "skip-check", false, "skip the grain and ceiling convergence check")
+	fs.StringVar(&o.direction, "direction", forward, "write the reaction forward (as computed) or as the reverse recombination")
+	fs.Float64Var(&o.tolerancePct, "tolerance", 1, "largest acceptable fit error in per cent: decides extra fit terms and the recommended form")
+	fs.StringVarP(&o.out, "out", "o", "", "write reactions.yaml, reactions.txt, a file per fitted form, grid.csv and summary.json to this directory")
+	fs.StringVar(&o.energyUnit, "energy-unit", "cal/mol", "activation-energy unit of the mechanism files: cal/mol, kcal/mol, J/mol, kJ/mol or K")
+	fs.StringVar(&o.quantity, "quantity", "mol", "quantity unit of the mechanism files: mol or molecule")
+	fs.BoolVar(&o.skeleton, "skeleton", false, "with --out, also write phase-example.yaml: how a Cantera phase uses the reactions")
+	fs.StringVar(&o.plots, "plots", "", "write SVG plots (falloff curves, Arrhenius plot of k0 and k∞, k(E), ρ(E)) to this directory")
 	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no chatter or warnings on stderr")
 }
 
@@ -42,7 +56,20 @@ func (o *ratesOptions) validate(args []string) error {
 	if o.jobs < 0 {
 		return usagef("--jobs %d: must be 0 (automatic) or positive", o.jobs)
 	}
+	if o.direction != forward && o.direction != recombination {
+		return usagef("--direction %q: use forward or recombination", o.direction)
+	}
+	if !(o.tolerancePct > 0) || o.tolerancePct > 100 {
+		return usagef("--tolerance %v: give a percentage between 0 and 100", o.tolerancePct)
+	}
+	if err := o.units().Check(); err != nil {
+		return usagef("%v", err)
+	}
 	return (&energyOptions{grain: o.grain, ceiling: o.ceiling}).check()
+}
+
+func (o *ratesOptions) units() export.Units {
+	return export.Units{Energy: o.energyUnit, Quantity: o.quantity}
 }
 
 func runRatesCmd(args []string, s streams) error {
@@ -68,35 +95,37 @@ func runRatesCmd(args []string, s streams) error {
 
 // ratesReport is the JSON of `rates` (design.md §8).
 type ratesReport struct {
-	File           string      `json:"file"`
-	Reaction       string      `json:"reaction"`
-	Direction      string      `json:"direction"`
-	KUnits         string      `json:"k_units"`
-	Temperatures   []float64   `json:"temperatures_K"`
-	Pressures      []float64   `json:"pressures_Pa"`
-	K              [][]float64 `json:"k"`
-	KInf           []float64   `json:"k_inf"`
-	KInfIntegrated []float64   `json:"k_inf_integrated"`
-	K0             []float64   `json:"k0"`
-	K0Units        string      `json:"k0_units"`
-	CollisionFreq  []float64   `json:"collision_frequency_per_s_per_Pa"`
-	CollisionRate  []float64   `json:"collision_rate_constant_cm3_per_molecule_per_s"`
-	Centre         []float64   `json:"falloff_centre_Pa"`
-	Grain          []float64   `json:"grain_cm-1"`
-	Ceiling        []float64   `json:"ceiling_cm-1"`
-	Convergence    *float64    `json:"convergence_max_change,omitempty"`
-	Transfer       string      `json:"energy_transfer"`
-	Bath           bathInfo    `json:"bath"`
-	PathDegeneracy float64     `json:"path_degeneracy"`
-	Warnings       []string    `json:"warnings"`
-	Caution        string      `json:"caution"`
+	File           string       `json:"file"`
+	Reaction       string       `json:"reaction"`
+	Direction      string       `json:"direction"`
+	KUnits         string       `json:"k_units"`
+	Temperatures   []float64    `json:"temperatures_K"`
+	Pressures      []float64    `json:"pressures_Pa"`
+	K              [][]float64  `json:"k"`
+	KInf           []float64    `json:"k_inf"`
+	KInfIntegrated []float64    `json:"k_inf_integrated"`
+	K0             []float64    `json:"k0"`
+	K0Units        string       `json:"k0_units"`
+	CollisionFreq  []float64    `json:"collision_frequency_per_s_per_Pa"`
+	CollisionRate  []float64    `json:"collision_rate_constant_cm3_per_molecule_per_s"`
+	Centre         []float64    `json:"falloff_centre_Pa"`
+	Grain          []float64    `json:"grain_cm-1"`
+	Ceiling        []float64    `json:"ceiling_cm-1"`
+	Convergence    *float64     `json:"convergence_max_change,omitempty"`
+	Transfer       string       `json:"energy_transfer"`
+	Bath           bathInfo     `json:"bath"`
+	PathDegeneracy float64      `json:"path_degeneracy"`
+	Fits           *fit.Results `json:"fits,omitempty"`
+	Files          []string     `json:"files_written,omitempty"`
+	Warnings       []string     `json:"warnings"`
+	Caution        string       `json:"caution"`
 }
 
 // convergenceLimit is the change on halving the grain or raising the
 // ceiling above which rates warns.
 const convergenceLimit = 0.005
 
-func computeRates(o ratesOptions, m *input.Model) (*ratesReport, error) {
+func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, error) {
 	if len(m.Pressures) == 0 {
 		return nil, &input.FieldError{File: m.File, Path: "grid.pressures", Err: fmt.Errorf("missing: rates needs a pressure grid"),
 			Hint: "add pressures: {from: 0.001 bar, to: 1000 bar, points: 13}"}
@@ -125,8 +154,10 @@ func computeRates(o ratesOptions, m *input.Model) (*ratesReport, error) {
 	if err != nil {
 		return nil, err
 	}
-	res, err := collision.Run(ch, col, tr,
-		m.Temperatures, m.Pressures, collision.Options{Grain: grain, Ceiling: ceiling, Jobs: o.jobs, SkipConvergence: o.skipCheck})
+	bar := newProgress(s, "master equation", len(m.Temperatures), o.quiet)
+	res, err := collision.Run(ch, col, tr, m.Temperatures, m.Pressures,
+		collision.Options{Grain: grain, Ceiling: ceiling, Jobs: o.jobs, SkipConvergence: o.skipCheck, Progress: bar.step})
+	bar.finish()
 	if errors.Is(err, collision.ErrTooLarge) {
 		return nil, fmt.Errorf("%s: master equation: %w", m.File, err) // a request too large: bad input
 	} else if err != nil {
@@ -169,6 +200,54 @@ func computeRates(o ratesOptions, m *input.Model) (*ratesReport, error) {
 	return rep, nil
 }
 
+// finishRates turns the computed grid into the requested direction, fits it
+// and writes the files asked for.
+func finishRates(o ratesOptions, m *input.Model, rep *ratesReport, s streams) (*directed, error) {
+	d, err := orient(m, rep, o.direction)
+	if err != nil {
+		return nil, err
+	}
+	if d.direction == recombination {
+		rep.Direction, rep.KUnits, rep.K0Units = recombination, d.kUnits, d.k0Units
+		rep.Reaction = strings.Join(d.reactants, " + ") + " -> " + strings.Join(d.products, " + ")
+		rep.K, rep.K0 = d.k, d.k0
+		for i := range rep.KInf {
+			rep.KInf[i] /= d.kc[i]
+		}
+		rep.KInfIntegrated = d.kInf
+	}
+	res, err := fitGrid(m, rep, d, o.tolerancePct/100)
+	if err != nil {
+		return nil, err
+	}
+	rep.Fits = res
+	if res.Recommended == "" {
+		rep.Warnings = append(rep.Warnings, m.File+": no fitted form meets the tolerance: "+res.Reason)
+	}
+	if o.out != "" {
+		mf, err := writeMechanism(o.out, m, m.Source, rep, d, res, o.units(), o.skeleton)
+		if err != nil {
+			return nil, err
+		}
+		rep.Files = append(mf.written, filepath.Join(o.out, "summary.json"))
+		b, err := json.MarshalIndent(rep, "", "  ")
+		if err != nil {
+			return nil, &numericalError{err}
+		}
+		if err := export.WriteFileAtomic(filepath.Join(o.out, "summary.json"), append(b, '\n')); err != nil {
+			return nil, err
+		}
+	}
+	if o.plots != "" {
+		files, err := writeRatePlots(o.plots, m, rep, d, res)
+		if err != nil {
+			return nil, err
+		}
+		rep.Files = append(rep.Files, files...)
+	}
+	return d, nil
+}
+
 func direction(m *input.Model) string {
 	if len(m.Reaction.Products) == 1 {
 		return "isomerization"
@@ -177,8 +256,11 @@ func direction(m *input.Model) string {
 }
 
 func runRates(o ratesOptions, m *input.Model, s streams) error {
-	rep, err := computeRates(o, m)
+	rep, err := computeRates(o, m, s)
 	if err != nil {
+		return err
+	}
+	if _, err := finishRates(o, m, rep, s); err != nil {
 		return err
 	}
 	if !o.quiet && !o.json && !o.csv {
@@ -244,6 +326,23 @@ func printRates(s streams, m *input.Model, rep *ratesReport) error {
 	}
 	if rep.Convergence != nil {
 		fmt.Fprintf(s.out, "\nconvergence: halving the grain or raising the ceiling by 10 kT changes k by at most %.2g %%\n", 100**rep.Convergence)
+	}
+	if rep.Fits != nil {
+		fmt.Fprintf(s.out, "\nfits to the grid (%s direction, k in %s):\n", rep.Direction, rep.KUnits)
+		if err := renderTable(s.out, []string{"form", "max error / %", "rms error / %", "worst point", "parameters", ""}, fitRows(rep.Fits)); err != nil {
+			return err
+		}
+		if rep.Fits.Recommended != "" {
+			fmt.Fprintf(s.out, "recommended: %s (%s)\n", rep.Fits.Recommended, rep.Fits.Reason)
+		} else {
+			fmt.Fprintf(s.out, "no form meets the tolerance: %s\n", rep.Fits.Reason)
+		}
+	}
+	if len(rep.Files) > 0 {
+		fmt.Fprintln(s.out, "\nwrote:")
+		for _, f := range rep.Files {
+			fmt.Fprintln(s.out, "  "+f)
+		}
 	}
 	_, err := fmt.Fprintln(s.out, "\n"+caution)
 	return err

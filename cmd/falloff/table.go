@@ -53,3 +53,6 @@ func writeJSON(w io.Writer, v any) error {
 	_, err = fmt.Fprintf(w, "%s\n", b)
 	return err
 }
+
+// fullNum formats a number with full precision, for machine-readable files.
+func fullNum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }

@@ -27,6 +27,9 @@ type Options struct {
 	Jobs    int     // worker goroutines over temperatures; 0 = GOMAXPROCS
 	// SkipConvergence turns off the grain and ceiling convergence check.
 	SkipConvergence bool
+	// Progress, if set, is called (from worker goroutines) after each
+	// temperature is done.
+	Progress func()
 }
 
 // MaxMatrixEntries bounds the banded matrix (8 bytes an entry, 400 MB).
@@ -133,6 +136,9 @@ func Run(ch Channel, col Collider, tr Transfer, temps, pressures []float64, opt 
 		wg.Go(func() {
 			for i := range next {
 				res.Rows[i], errs[i] = solveTemperature(ch, col, tr, temps[i], pressures, opt.Grain, opt.Ceiling, true)
+				if opt.Progress != nil {
+					opt.Progress()
+				}
 			}
 		})
 	}

@@ -28,7 +28,7 @@ func tf(x float64) string { return fmt.Sprintf("%.6E", x) }
 
 // tn formats a temperature exponent or an activation energy: 8 significant
 // digits, enough for kcal/mol and kJ/mol to keep exp(−Ea/RT) to 1e-7.
-func tn(x float64) string { return fmt.Sprintf("%12s", strconv.FormatFloat(x, 'g', 8, 64)) }
+func tn(x float64) string { return fmt.Sprintf("%9s", strconv.FormatFloat(x, 'g', 8, 64)) }
 
 // Text returns the reactions rs in the keyword-style text of open mechanisms:
 // a REACTIONS line with unit words, each reaction line (equation, A, n, Ea)
@@ -36,7 +36,7 @@ func tn(x float64) string { return fmt.Sprintf("%12s", strconv.FormatFloat(x, 'g
 // END; comments start with '!'. Pressures on auxiliary lines are in atm.
 // No line exceeds MaxLine characters and no auxiliary line contains '='.
 func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
-	if err := u.check(); err != nil {
+	if err := u.Check(); err != nil {
 		return nil, err
 	}
 	u = u.withDefaults()

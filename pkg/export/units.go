@@ -47,7 +47,8 @@ func (u Units) withDefaults() Units {
 	return u
 }
 
-func (u Units) check() error {
+// Check reports an unknown energy or quantity unit.
+func (u Units) Check() error {
 	u = u.withDefaults()
 	if _, err := energyPerK(u.Energy); err != nil {
 		return err

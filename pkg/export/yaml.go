@@ -17,7 +17,7 @@ func yf(x float64) string { return strconv.FormatFloat(x, 'g', 10, 64) }
 // list) for the reactions rs. Reference it from a phase with
 // `reactions: [FILE/reactions]` (see PhaseSkeleton).
 func YAML(h Header, u Units, rs []Reaction) ([]byte, error) {
-	if err := u.check(); err != nil {
+	if err := u.Check(); err != nil {
 		return nil, err
 	}
 	u = u.withDefaults()

@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"encoding/json"
 	"math"
 
 	"github.com/falloff-kinetics/falloff/pkg/units"
@@ -17,9 +18,9 @@ func Concentration(p, t float64) float64 { return p / (units.Boltzmann * t) * 1e
 
 // Arrhenius is the modified Arrhenius form k = A·T^N·exp(−Ta/T).
 type Arrhenius struct {
-	A  float64 // k units · K^−N
-	N  float64
-	Ta float64 // Ea/R in K
+	A  float64 `json:"A"`    // k units · K^−N
+	N  float64 `json:"n"`    // temperature exponent
+	Ta float64 `json:"Ea_K"` // Ea/R in K
 }
 
 // Eval returns k at t K.
@@ -29,8 +30,40 @@ func (a Arrhenius) Eval(t float64) float64 { return a.A * math.Pow(t, a.N) * mat
 // Bunsenges. Phys. Chem. 87, 169, 1983): Fcent = (1−A)exp(−T/T3) +
 // A·exp(−T/T1) + exp(−T2/T), the last term only if HasT2.
 type Troe struct {
-	A, T3, T1, T2 float64
+	A, T3, T1, T2 float64 // T3 = T***, T1 = T*, T2 = T** in K
 	HasT2         bool
+}
+
+// troeJSON is the JSON form of Troe: T2_K is present only with HasT2.
+type troeJSON struct {
+	A  float64  `json:"A"`
+	T3 float64  `json:"T3_K"`
+	T1 float64  `json:"T1_K"`
+	T2 *float64 `json:"T2_K,omitempty"`
+}
+
+// MarshalJSON writes {"A", "T3_K", "T1_K"} and "T2_K" only if HasT2.
+func (tr Troe) MarshalJSON() ([]byte, error) {
+	j := troeJSON{A: tr.A, T3: tr.T3, T1: tr.T1}
+	if tr.HasT2 {
+		t2 := tr.T2
+		j.T2 = &t2
+	}
+	return json.Marshal(j)
+}
+
+// UnmarshalJSON reads the form written by MarshalJSON; HasT2 is set when
+// "T2_K" is present.
+func (tr *Troe) UnmarshalJSON(b []byte) error {
+	var j troeJSON
+	if err := json.Unmarshal(b, &j); err != nil {
+		return err
+	}
+	*tr = Troe{A: j.A, T3: j.T3, T1: j.T1}
+	if j.T2 != nil {
+		tr.T2, tr.HasT2 = *j.T2, true
+	}
+	return nil
 }
 
 // Fcent returns the centre broadening factor at t K.
@@ -58,7 +91,11 @@ func (tr Troe) F(t, pr float64) float64 {
 // Golden, Combust. Flame 75, 25, 1989): F = D·(A·exp(−B/T) + exp(−T/C))^X·T^E,
 // X = 1/(1 + (log Pr)²). D = 1 and E = 0 in the three-parameter form.
 type SRI struct {
-	A, B, C, D, E float64
+	A float64 `json:"a"`
+	B float64 `json:"b_K"` // K
+	C float64 `json:"c_K"` // K
+	D float64 `json:"d,omitempty"`
+	E float64 `json:"e,omitempty"`
 }
 
 // F returns the broadening factor at t K and reduced pressure pr.
@@ -75,10 +112,10 @@ func (s SRI) F(t, pr float64) float64 {
 // Falloff is a Lindemann (no broadening), Troe or SRI falloff form:
 // k = k∞·Pr/(1+Pr)·F with Pr = k0[M]/k∞.
 type Falloff struct {
-	Low  Arrhenius // k0, k units × cm³ molecule⁻¹
-	High Arrhenius // k∞, k units
-	Troe *Troe     // nil unless Troe
-	SRI  *SRI      // nil unless SRI
+	Low  Arrhenius `json:"low"`            // k0, k units × cm³ molecule⁻¹
+	High Arrhenius `json:"high"`           // k∞, k units
+	Troe *Troe     `json:"troe,omitempty"` // nil unless Troe
+	SRI  *SRI      `json:"sri,omitempty"`  // nil unless SRI
 }
 
 // Kind names the form: "lindemann", "troe" or "sri".
@@ -108,15 +145,15 @@ func (f Falloff) Eval(t, p float64) float64 {
 
 // PlogEntry is one pressure of a PLOG form: the sum of its Arrhenius terms.
 type PlogEntry struct {
-	P     float64 // Pa
-	Terms []Arrhenius
+	P     float64     `json:"P_Pa"`
+	Terms []Arrhenius `json:"terms"`
 }
 
 // PLOG is k(T) tabulated against pressure, interpolated linearly in log k
 // against log P and held at the end values outside the table (the
 // convention of Cantera's pressure-dependent-Arrhenius reactions).
 type PLOG struct {
-	Entries []PlogEntry // ascending P
+	Entries []PlogEntry `json:"entries"` // ascending P
 }
 
 func (e PlogEntry) eval(t float64) float64 {
@@ -152,16 +189,25 @@ func (pl PLOG) Eval(t, p float64) float64 {
 // (the convention of Cantera's Chebyshev reactions: rows are the
 // temperature index). Coefficients are for k in the table's units.
 type Chebyshev struct {
-	Tmin, Tmax float64     // K
-	Pmin, Pmax float64     // Pa
-	Coef       [][]float64 // [N_T][N_P]
+	Tmin float64     `json:"T_min_K"`
+	Tmax float64     `json:"T_max_K"`
+	Pmin float64     `json:"P_min_Pa"`
+	Pmax float64     `json:"P_max_Pa"`
+	Coef [][]float64 `json:"coef_log10k"` // [N_T][N_P], log10 of k in k units
 }
 
-// reduced returns T̃ and P̃.
+// reduced returns T̃ and P̃; a range of one value (Tmin = Tmax or Pmin =
+// Pmax, a form with one coefficient in that variable) reduces to 0.
 func (c Chebyshev) reduced(t, p float64) (float64, float64) {
-	tr := (2/t - 1/c.Tmin - 1/c.Tmax) / (1/c.Tmax - 1/c.Tmin)
-	lp, l0, l1 := math.Log10(p), math.Log10(c.Pmin), math.Log10(c.Pmax)
-	return tr, (2*lp - l0 - l1) / (l1 - l0)
+	tr, pr := 0.0, 0.0
+	if c.Tmax != c.Tmin {
+		tr = (2/t - 1/c.Tmin - 1/c.Tmax) / (1/c.Tmax - 1/c.Tmin)
+	}
+	if c.Pmax != c.Pmin {
+		lp, l0, l1 := math.Log10(p), math.Log10(c.Pmin), math.Log10(c.Pmax)
+		pr = (2*lp - l0 - l1) / (l1 - l0)
+	}
+	return tr, pr
 }
 
 // chebyshevT returns T_0(x)..T_{n−1}(x) into out.

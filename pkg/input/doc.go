@@ -11,7 +11,7 @@
 //
 // Parse checks as well as converts. A problem with the data is a *FieldError
 // whose one-line message names the file, the line, the dotted path of the field
-// (molecules.demo-ring.vibrations.values[3]), the value as written and a hint;
+// (molecules.ring.vibrations.values[3]), the value as written and a hint;
 // an unknown or misspelt key is such an error too. Input that is accepted but
 // physically odd (a transition state without an imaginary frequency, a barrier
 // above 150 kcal/mol, ...) is reported in Model.Warnings instead.

@@ -12,7 +12,7 @@ import (
 //	FILE:LINE: PATH: "VALUE": problem (hint: HINT)
 //
 // where PATH is the dotted path of the field, such as
-// molecules.demo-ring.vibrations.values[3]. LINE is left out when unknown, PATH
+// molecules.ring.vibrations.values[3]. LINE is left out when unknown, PATH
 // for a problem with the whole file, VALUE when the field is missing and the
 // hint when there is none.
 type FieldError struct {

@@ -20,7 +20,7 @@ func ExampleParse() {
 		len(m.Pressures), m.Pressures[0], m.Pressures[len(m.Pressures)-1])
 	fmt.Println(m.Transfer.Model, m.Transfer.Alpha300, "cm-1; fits", m.Fits)
 	// Output:
-	// demo-ring -> demo-ring-ts, E0 = 14689.7 cm-1, ν‡ = 650i cm-1
+	// ring -> ring-TS, E0 = 14689.7 cm-1, ν‡ = 650i cm-1
 	// 12 temperatures from 300 to 2500 K, 13 pressures from 100 to 1e+08 Pa
 	// exponential-down 250 cm-1; fits [troe plog chebyshev]
 }

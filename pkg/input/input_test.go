@@ -127,13 +127,13 @@ func TestDemo(t *testing.T) {
 	if got := strings.Join(m.Fits, ","); got != "troe,plog,chebyshev" {
 		t.Errorf("fits = %s", got)
 	}
-	if got := strings.Join(m.Reaction.Products, ","); got != "demo-fragment-a,demo-fragment-b" {
+	if got := strings.Join(m.Reaction.Products, ","); got != "frag-a,frag-b" {
 		t.Errorf("products = %s", got)
 	}
 	if m.Bath.Gas != "Ar" || m.Transfer.Model != ExponentialDown {
 		t.Errorf("bath %q, model %q", m.Bath.Gas, m.Transfer.Model)
 	}
-	if m.Molecule("demo-ring") != reactant || m.Molecule("absent") != nil {
+	if m.Molecule("ring") != reactant || m.Molecule("absent") != nil {
 		t.Error("Molecule lookup")
 	}
 

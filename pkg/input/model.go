@@ -28,6 +28,8 @@ type Model struct {
 	// Warnings are physically odd but accepted inputs, one line each,
 	// naming the file and the field.
 	Warnings []string
+	// Source is the file's content as read (for provenance checksums).
+	Source []byte
 }
 
 // Molecule is a stable species or a transition state.
@@ -117,6 +119,7 @@ func Parse(name string, data []byte) (*Model, error) {
 		return nil, err
 	}
 	m.Warnings = p.warnings
+	m.Source = data
 	return m, nil
 }
 

@@ -1,0 +1,246 @@
+package main
+
+import (
+	"crypto/sha256"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"github.com/falloff-kinetics/falloff/pkg/export"
+	"github.com/falloff-kinetics/falloff/pkg/fit"
+	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// Directions a mechanism entry may be written in.
+const (
+	forward       = "forward"       // the unimolecular step as computed
+	recombination = "recombination" // the reverse A + B (+M) -> AB (+M)
+)
+
+// defaultFits are fitted when the input file names none.
+var defaultFits = []string{"troe", "plog", "chebyshev"}
+
+// directed is the k(T,P) table in the direction to be written, with its
+// limits, units and order.
+type directed struct {
+	direction string
+	order     int // molecularity of the written direction
+	k         [][]float64
+	kInf, k0  []float64
+	kUnits    string
+	k0Units   string
+	kc        []float64 // K_c(T) in cm⁻³ (recombination only)
+	reactants []string
+	products  []string
+}
+
+// orient turns the computed unimolecular grid into the direction asked for.
+// For a recombination it divides by K_c(T) from the partition functions of
+// the reactant and products (rrkm.EquilibriumConstant), so that k_f/k_r = K_c
+// holds exactly at every grid point.
+func orient(m *input.Model, rep *ratesReport, dir string) (*directed, error) {
+	r, _ := m.ReactantAndTS()
+	d := &directed{direction: dir, order: 1, k: rep.K, kInf: rep.KInfIntegrated, k0: rep.K0,
+		kUnits: "s-1", k0Units: "cm3 molecule-1 s-1", reactants: []string{r.Name}, products: m.Reaction.Products}
+	if len(d.products) == 0 {
+		d.products = []string{r.Name + "-products"}
+	}
+	if dir == forward {
+		return d, nil
+	}
+	if dir != recombination {
+		return nil, usagef("--direction %q: use forward or recombination", dir)
+	}
+	if len(m.Reaction.Products) != 2 {
+		return nil, &input.FieldError{File: m.File, Path: "reaction.products", Value: strings.Join(m.Reaction.Products, ", "),
+			Err: errors.New("a recombination needs exactly two products"), Hint: "write products: [A, B], or use --direction forward"}
+	}
+	if !m.Reaction.HasReactionEnergy {
+		return nil, &input.FieldError{File: m.File, Path: "reaction.reaction-energy",
+			Err:  errors.New("missing: the recombination direction needs the reaction energy"),
+			Hint: "add reaction-energy: (ΔE0 of the products above the reactant, zero-point corrected), e.g. 85 kcal/mol"}
+	}
+	var prods []*rrkm.Species
+	for i, name := range m.Reaction.Products {
+		p := m.Molecule(name)
+		path := fmt.Sprintf("reaction.products[%d]", i)
+		if p == nil {
+			return nil, &input.FieldError{File: m.File, Path: path, Value: name,
+				Err:  errors.New("not described in molecules: K_c needs its partition function"),
+				Hint: "add the product to molecules with mass, vibrations, rotation (with symmetry) and electronic levels"}
+		}
+		if p.IsTS || !(p.Mass > 0) {
+			return nil, &input.FieldError{File: m.File, Path: "molecules." + name, Value: name,
+				Err: errors.New("a product must be a stable molecule with a mass"), Hint: "give mass: and no energy:"}
+		}
+		prods = append(prods, &p.Species)
+	}
+	d.order, d.reactants, d.products = 2, m.Reaction.Products, []string{r.Name}
+	d.kUnits, d.k0Units = "cm3 molecule-1 s-1", "cm6 molecule-2 s-1"
+	d.k = make([][]float64, len(rep.K))
+	d.kInf = make([]float64, len(rep.K))
+	d.k0 = make([]float64, len(rep.K))
+	for i, t := range rep.Temperatures {
+		kc := rrkm.EquilibriumConstant(&r.Species, prods, m.Reaction.ReactionEnergy, t)
+		if !(kc > 0) || math.IsInf(kc, 0) {
+			return nil, &numericalError{fmt.Errorf("K_c(%g K) = %v: not a finite positive number (hint: check reaction-energy)", t, kc)}
+		}
+		d.kc = append(d.kc, kc)
+		d.k[i] = make([]float64, len(rep.K[i]))
+		for j, k := range rep.K[i] {
+			d.k[i][j] = k / kc
+		}
+		d.kInf[i], d.k0[i] = rep.KInfIntegrated[i]/kc, rep.K0[i]/kc
+	}
+	return d, nil
+}
+
+// fitGrid fits the requested forms to the directed grid, with the computed
+// limits given to the falloff fits.
+func fitGrid(m *input.Model, rep *ratesReport, d *directed, tol float64) (*fit.Results, error) {
+	forms := m.Fits
+	if len(forms) == 0 {
+		forms = defaultFits
+	}
+	t := fit.FromGrid(rep.Temperatures, rep.Pressures, d.k, d.kUnits)
+	res, err := fit.FitAll(t, forms, fit.Options{Tolerance: tol, Limits: &fit.Limits{K0: d.k0, KInf: d.kInf}})
+	if res == nil {
+		return nil, &numericalError{fmt.Errorf("%s: fitting: %w", m.File, err)}
+	}
+	return res, nil
+}
+
+// fitRows returns the fit report as table rows, forms sorted by name.
+func fitRows(res *fit.Results) [][]string {
+	reps := res.Reports()
+	var names []string
+	for n := range reps {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	var rows [][]string
+	for _, n := range names {
+		r := reps[n]
+		mark := ""
+		if n == res.Recommended {
+			mark = "recommended"
+		}
+		rows = append(rows, []string{n, num(r.MaxErrorPct), num(r.RMSErrorPct),
+			fmt.Sprintf("%s K, %s bar", num(r.WorstT), num(r.WorstP/units.BarPa)), fmt.Sprint(r.NParams), mark})
+	}
+	for n, e := range res.Errors {
+		rows = append(rows, []string{n, "-", "-", "failed: " + e, "-", ""})
+	}
+	return rows
+}
+
+// mechanismFiles are the files `rates --out DIR` writes (docs/output.md).
+// They are all rendered in memory first and written only when every one of
+// them rendered, each atomically, so a failure leaves no partial set.
+type mechanismFiles struct {
+	dir     string
+	names   []string
+	data    [][]byte
+	written []string
+}
+
+func (mf *mechanismFiles) write(name string, data []byte) error {
+	mf.names = append(mf.names, name)
+	mf.data = append(mf.data, data)
+	return nil
+}
+
+func (mf *mechanismFiles) flush() error {
+	for i, name := range mf.names {
+		p := filepath.Join(mf.dir, name)
+		if err := export.WriteFileAtomic(p, mf.data[i]); err != nil {
+			return err
+		}
+		mf.written = append(mf.written, p)
+	}
+	return nil
+}
+
+// writeMechanism writes the recommended form as reactions.yaml and
+// reactions.txt, every fitted form as reactions-FORM.yaml/.txt, the grid as
+// grid.csv and the whole report as summary.json, each atomically.
+func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d *directed, res *fit.Results, u export.Units, skeleton bool) (*mechanismFiles, error) {
+	mf := &mechanismFiles{dir: dir}
+	sum := sha256.Sum256(src)
+	h := export.Header{Title: m.Title, Input: m.File, Checksum: fmt.Sprintf("sha256:%x", sum), Program: "falloff " + version,
+		TMin: rep.Temperatures[0], TMax: rep.Temperatures[len(rep.Temperatures)-1],
+		PMin: rep.Pressures[0], PMax: rep.Pressures[len(rep.Pressures)-1],
+		Lines: []string{
+			"Direction: " + d.direction + fmt.Sprintf(" (molecularity %d)", d.order),
+			"Collision model: " + rep.Transfer,
+			fmt.Sprintf("Bath gas: %s (%s)", rep.Bath.Gas, rep.Bath.Source),
+		}}
+	reps := res.Reports()
+	var forms []string
+	for n := range reps {
+		forms = append(forms, n)
+	}
+	sort.Strings(forms)
+	for _, n := range forms {
+		r := reps[n]
+		h.Lines = append(h.Lines, fmt.Sprintf("Fit %s: max error %.3g %%, rms %.3g %% over the grid", n, r.MaxErrorPct, r.RMSErrorPct))
+	}
+	if res.Recommended != "" {
+		h.Lines = append(h.Lines, "Recommended form: "+res.Recommended+" ("+res.Reason+")")
+	}
+	entry := func(name string) export.Reaction {
+		r := reps[name]
+		return export.Reaction{Reactants: d.reactants, Products: d.products, Order: d.order, Form: res.Form(name),
+			Note: fmt.Sprintf("%s fit, max error %.3g %% (worst at %s K, %s bar)", name, r.MaxErrorPct, num(r.WorstT), num(r.WorstP/units.BarPa))}
+	}
+	emit := func(base string, rs []export.Reaction) error {
+		y, err := export.YAML(h, u, rs)
+		if err != nil {
+			return err
+		}
+		t, err := export.Text(h, u, rs)
+		if err != nil {
+			return err
+		}
+		if err := mf.write(base+".yaml", y); err != nil {
+			return err
+		}
+		return mf.write(base+".txt", t)
+	}
+	if res.Recommended != "" {
+		if err := emit("reactions", []export.Reaction{entry(res.Recommended)}); err != nil {
+			return nil, err
+		}
+	}
+	for _, n := range forms {
+		if err := emit("reactions-"+n, []export.Reaction{entry(n)}); err != nil {
+			return nil, err
+		}
+	}
+	var csv strings.Builder
+	fmt.Fprintf(&csv, "T/K,P/Pa,k/%s\n", d.kUnits)
+	for i, t := range rep.Temperatures {
+		for j, p := range rep.Pressures {
+			fmt.Fprintf(&csv, "%s,%s,%s\n", fullNum(t), fullNum(p), fullNum(d.k[i][j]))
+		}
+	}
+	if err := mf.write("grid.csv", []byte(csv.String())); err != nil {
+		return nil, err
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, fmt.Errorf("--out %s: %w", dir, err)
+	}
+	if skeleton {
+		species := append(append([]string{}, d.reactants...), d.products...)
+		if err := mf.write("phase-example.yaml", export.PhaseSkeleton("reactions.yaml", species)); err != nil {
+			return nil, err
+		}
+	}
+	return mf, mf.flush()
+}

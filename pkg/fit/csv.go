@@ -1,0 +1,242 @@
+package fit
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"regexp"
+	"strconv"
+	"strings"
+
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// CSVError reports a problem in a rate table read by ReadCSV, with the
+// place and the value that caused it. Line and Column are 1-based; zero
+// means the problem has no single place (e.g. too few rows).
+type CSVError struct {
+	File   string
+	Line   int
+	Column int    // field number, 1-based
+	Header string // the column's header, e.g. "P/atm"
+	Value  string // the offending text
+	Err    error  // what is wrong
+	Hint   string // how to fix it
+}
+
+func (e *CSVError) Error() string {
+	var b strings.Builder
+	b.WriteString(e.File)
+	if e.Line > 0 {
+		fmt.Fprintf(&b, ":%d", e.Line)
+	}
+	if e.Column > 0 {
+		fmt.Fprintf(&b, ": column %d", e.Column)
+		if e.Header != "" {
+			fmt.Fprintf(&b, " (%s)", e.Header)
+		}
+	}
+	if e.Value != "" {
+		fmt.Fprintf(&b, ": %q", e.Value)
+	}
+	fmt.Fprintf(&b, ": %v", e.Err)
+	if e.Hint != "" {
+		b.WriteString("; ")
+		b.WriteString(e.Hint)
+	}
+	return b.String()
+}
+
+func (e *CSVError) Unwrap() error { return e.Err }
+
+// minCSVRows is the fewest data rows ReadCSV accepts: no form can be fitted
+// to fewer than three rate constants.
+const minCSVRows = 3
+
+const headerExample = "T/K,P/atm,k/s-1"
+
+// headerRE splits "name/unit", "name [unit]" and "name (unit)".
+var headerRE = regexp.MustCompile(`^\s*([A-Za-z_]+)\s*(?:/\s*(.*?)|\[\s*(.*?)\s*\]|\(\s*(.*?)\s*\))?\s*$`)
+
+// column kinds of a rate table.
+const (
+	colT = iota
+	colP
+	colK
+	colSigma
+)
+
+// ReadCSV reads a rate table from comma-separated text: a header naming
+// the columns with their units, then one row per rate constant. Lines
+// starting with '#' are comments. The columns, in any order:
+//
+//	T/K        temperature; kelvin only
+//	P/<unit>   pressure in Pa, kPa, MPa, hPa, bar, mbar, atm or Torr
+//	k/<unit>   rate constant; the unit is kept as text, e.g. s-1, cm3/mol/s
+//	sigma      optional relative uncertainty of k as a fraction (0.05), or
+//	sigma/%, uncertainty/%  the same in per cent (5)
+//
+// "name [unit]" and "name (unit)" are accepted too. name is used in error
+// messages. Every error is a *CSVError naming the line and column.
+func ReadCSV(name string, r io.Reader) (*Table, error) {
+	cr := csv.NewReader(r)
+	cr.Comment = '#'
+	cr.FieldsPerRecord = -1
+	cr.TrimLeadingSpace = true
+
+	fail := func(line, col int, header, value string, err error, hint string) error {
+		return &CSVError{File: name, Line: line, Column: col, Header: header, Value: value, Err: err, Hint: hint}
+	}
+	readErr := func(err error) error {
+		var pe *csv.ParseError
+		if errors.As(err, &pe) {
+			return fail(pe.Line, 0, "", "", pe.Err, "check the quoting of that line")
+		}
+		return fail(0, 0, "", "", err, "")
+	}
+
+	head, err := cr.Read()
+	if err == io.EOF {
+		return nil, fail(0, 0, "", "", errors.New("empty file: no header and no data"), "start with a header such as "+headerExample)
+	}
+	if err != nil {
+		return nil, readErr(err)
+	}
+	headLine, _ := cr.FieldPos(0)
+
+	kind := make([]int, len(head))
+	have := map[int]int{} // column kind → field index
+	t := &Table{Name: name}
+	pFactor, sigmaFactor := 0.0, 1.0
+	for i, h := range head {
+		h = strings.TrimSpace(h)
+		head[i] = h
+		if _, err := strconv.ParseFloat(h, 64); err == nil {
+			return nil, fail(headLine, i+1, "", h, errors.New("missing header: the first line holds numbers"),
+				"start with a header naming the columns and their units, e.g. "+headerExample)
+		}
+		m := headerRE.FindStringSubmatch(h)
+		if m == nil {
+			return nil, fail(headLine, i+1, "", h, errors.New("cannot read column header"), "write name/unit, e.g. "+headerExample)
+		}
+		col, unit := strings.ToLower(m[1]), m[2]+m[3]+m[4]
+		switch col {
+		case "t":
+			kind[i] = colT
+			if strings.TrimSpace(unit) != "K" {
+				return nil, fail(headLine, i+1, "", h, fmt.Errorf("temperature unit %q", unit), "write temperatures in kelvin: T/K")
+			}
+		case "p":
+			kind[i] = colP
+			f, err := units.Factor(unit, units.Pressure)
+			if err != nil {
+				return nil, fail(headLine, i+1, "", h, fmt.Errorf("pressure unit %q unknown", unit),
+					"write P/<unit> with one of Pa, kPa, MPa, hPa, bar, mbar, atm, Torr")
+			}
+			pFactor = f
+		case "k":
+			kind[i] = colK
+			if strings.TrimSpace(unit) == "" {
+				return nil, fail(headLine, i+1, "", h, errors.New("rate constant without units"), "write the units in the header, e.g. k/s-1 or k/cm3/mol/s")
+			}
+			t.KUnits = strings.TrimSpace(unit)
+		case "sigma", "uncertainty":
+			kind[i] = colSigma
+			switch strings.TrimSpace(unit) {
+			case "%":
+				sigmaFactor = 0.01
+			case "":
+				if col == "uncertainty" {
+					return nil, fail(headLine, i+1, "", h, errors.New("uncertainty without unit"), "write uncertainty/% (per cent) or sigma (a fraction)")
+				}
+			default:
+				return nil, fail(headLine, i+1, "", h, fmt.Errorf("uncertainty unit %q", unit), "write sigma (a fraction) or sigma/% (per cent)")
+			}
+		default:
+			return nil, fail(headLine, i+1, "", h, errors.New("unknown column"), "the columns are T/K, P/<unit>, k/<unit> and optionally sigma or uncertainty/%")
+		}
+		if j, dup := have[kind[i]]; dup {
+			return nil, fail(headLine, i+1, "", h, fmt.Errorf("same quantity as column %d (%s)", j+1, head[j]), "give each of T, P, k once")
+		}
+		have[kind[i]] = i
+	}
+	for _, need := range []struct {
+		kind int
+		what string
+	}{{colT, "T/K"}, {colP, "P/<unit>"}, {colK, "k/<unit>"}} {
+		if _, ok := have[need.kind]; !ok {
+			return nil, fail(headLine, 0, "", strings.Join(head, ","), fmt.Errorf("no %s column", need.what), "the header needs T, P and k with units, e.g. "+headerExample)
+		}
+	}
+
+	type key struct{ T, P float64 }
+	seen := map[key]int{}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, readErr(err)
+		}
+		line, _ := cr.FieldPos(0)
+		if len(rec) == 1 && strings.TrimSpace(rec[0]) == "" {
+			continue
+		}
+		if len(rec) != len(head) {
+			col := min(len(rec), len(head)) + 1
+			return nil, fail(line, col, "", strings.Join(rec, ","), fmt.Errorf("%d fields, the header has %d", len(rec), len(head)),
+				"every row needs one value per header column, in the header's units (no units in the rows, no decimal commas)")
+		}
+		var pt Point
+		for i, s := range rec {
+			s = strings.TrimSpace(s)
+			v, err := strconv.ParseFloat(s, 64)
+			if err != nil {
+				hint := "write a plain number such as 1.5e-12"
+				if strings.ContainsAny(s, "abcdfghijklmnopqrstuvwxyzABCDFGHIJKLMNOPQRSTUVWXYZ/") {
+					hint = "units belong in the header only (" + headerExample + "), not in the rows"
+				}
+				return nil, fail(line, i+1, head[i], s, errors.New("not a number"), hint)
+			}
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return nil, fail(line, i+1, head[i], s, errors.New("not a finite number"), "remove the row or give a finite value")
+			}
+			switch kind[i] {
+			case colT:
+				if v <= 0 {
+					return nil, fail(line, i+1, head[i], s, errors.New("temperature must be positive"), "temperatures are in K")
+				}
+				pt.T = v
+			case colP:
+				if v <= 0 {
+					return nil, fail(line, i+1, head[i], s, errors.New("pressure must be positive"), "the fits work in log P")
+				}
+				pt.P = v * pFactor
+			case colK:
+				if v <= 0 {
+					return nil, fail(line, i+1, head[i], s, errors.New("non-positive k"), "the fits work in log k; drop the row or fix its sign")
+				}
+				pt.K = v
+			case colSigma:
+				if v <= 0 {
+					return nil, fail(line, i+1, head[i], s, errors.New("uncertainty must be positive"), "give every row an uncertainty, or drop the column")
+				}
+				pt.Sigma = v * sigmaFactor
+			}
+		}
+		k := key{pt.T, pt.P}
+		if l, dup := seen[k]; dup {
+			return nil, fail(line, 0, "", strings.Join(rec, ","), fmt.Errorf("same T and P as line %d", l), "give each (T, P) point once")
+		}
+		seen[k] = line
+		t.Points = append(t.Points, pt)
+	}
+	if len(t.Points) < minCSVRows {
+		return nil, fail(0, 0, "", "", fmt.Errorf("%w: %d data rows", ErrTooFewData, len(t.Points)),
+			fmt.Sprintf("at least %d are needed, and a falloff fit wants several pressures at each of several temperatures", minCSVRows))
+	}
+	return t, nil
+}

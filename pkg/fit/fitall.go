@@ -1,0 +1,232 @@
+package fit
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+)
+
+// Forms are the names FitAll accepts, in the order of preference of
+// Recommend: the simplest, most widely read and safest to extrapolate first.
+var Forms = []string{"arrhenius", "lindemann", "troe", "sri", "chebyshev", "plog"}
+
+// DefaultTolerance is the default maximum relative error of a fit (1 %).
+const DefaultTolerance = 0.01
+
+// Options control FitAll and the per-form fits.
+type Options struct {
+	// Tolerance is the largest relative error in k, as a fraction, that
+	// makes a fit acceptable (0 means DefaultTolerance). It decides the
+	// extra Troe/SRI parameters, PLOG's second terms, the automatic
+	// Chebyshev order and the recommendation.
+	Tolerance float64
+	// ChebyshevNT and ChebyshevNP fix the Chebyshev order; 0 and 0 choose
+	// it automatically.
+	ChebyshevNT, ChebyshevNP int
+	// Limits, if not nil, are known k0 and k∞ for the falloff fits.
+	Limits *Limits
+}
+
+func (o Options) withDefaults() Options {
+	if o.Tolerance <= 0 || math.IsNaN(o.Tolerance) {
+		o.Tolerance = DefaultTolerance
+	}
+	return o
+}
+
+// ArrheniusResult is a pressure-independent modified Arrhenius fit to the
+// whole table.
+type ArrheniusResult struct {
+	Rate Arrhenius `json:"rate"`
+	Report
+}
+
+// Results holds every form FitAll was asked for: a nil field is a form not
+// asked for or one that failed, with its error text in Errors.
+type Results struct {
+	KUnits       string            `json:"k_units"`
+	TolerancePct float64           `json:"tolerance_pct"`
+	Arrhenius    *ArrheniusResult  `json:"arrhenius,omitempty"`
+	Lindemann    *FalloffResult    `json:"lindemann,omitempty"`
+	Troe         *FalloffResult    `json:"troe,omitempty"`
+	SRI          *FalloffResult    `json:"sri,omitempty"`
+	PLOG         *PLOGResult       `json:"plog,omitempty"`
+	Chebyshev    *ChebyshevResult  `json:"chebyshev,omitempty"`
+	Errors       map[string]string `json:"errors,omitempty"` // form → why it failed
+	Recommended  string            `json:"recommended"`      // a name from Forms, or "" if none fitted
+	Reason       string            `json:"reason"`
+}
+
+// Reports returns the report of each fitted form by name.
+func (r *Results) Reports() map[string]Report {
+	m := map[string]Report{}
+	if r.Arrhenius != nil {
+		m["arrhenius"] = r.Arrhenius.Report
+	}
+	for name, f := range map[string]*FalloffResult{"lindemann": r.Lindemann, "troe": r.Troe, "sri": r.SRI} {
+		if f != nil {
+			m[name] = f.Report
+		}
+	}
+	if r.PLOG != nil {
+		m["plog"] = r.PLOG.Report
+	}
+	if r.Chebyshev != nil {
+		m["chebyshev"] = r.Chebyshev.Report
+	}
+	return m
+}
+
+// Form returns the fitted form of the given name (*Arrhenius, *Falloff,
+// *PLOG or *Chebyshev), or nil if it was not fitted.
+func (r *Results) Form(name string) any {
+	switch name {
+	case "arrhenius":
+		if r.Arrhenius != nil {
+			return &r.Arrhenius.Rate
+		}
+	case "lindemann", "troe", "sri":
+		f := map[string]*FalloffResult{"lindemann": r.Lindemann, "troe": r.Troe, "sri": r.SRI}[name]
+		if f != nil {
+			return &f.Falloff
+		}
+	case "plog":
+		if r.PLOG != nil {
+			return &r.PLOG.PLOG
+		}
+	case "chebyshev":
+		if r.Chebyshev != nil {
+			return &r.Chebyshev.Chebyshev
+		}
+	}
+	return nil
+}
+
+// FitAll fits each of forms (names from Forms; nil means all) to the
+// table and recommends one. A form that cannot be fitted is recorded in
+// Results.Errors and does not stop the others. FitAll returns an error for
+// an unknown form name or a table with bad values (wrapping ErrBadData),
+// and, together with the Results, an error wrapping ErrNoForm if no form
+// could be fitted.
+func FitAll(t *Table, forms []string, opt Options) (*Results, error) {
+	opt = opt.withDefaults()
+	if forms == nil {
+		forms = Forms
+	}
+	for _, f := range forms {
+		if !slices.Contains(Forms, f) {
+			return nil, fmt.Errorf("fit: unknown form %q (known: %s)", f, strings.Join(Forms, ", "))
+		}
+	}
+	if err := t.Validate(); err != nil {
+		return nil, err
+	}
+	res := &Results{KUnits: t.KUnits, TolerancePct: 100 * opt.Tolerance, Errors: map[string]string{}}
+	for _, f := range Forms {
+		if !slices.Contains(forms, f) {
+			continue
+		}
+		var err error
+		switch f {
+		case "arrhenius":
+			res.Arrhenius, err = fitArrheniusTable(t)
+		case "lindemann":
+			res.Lindemann, err = FitFalloff(t, f, opt)
+		case "troe":
+			res.Troe, err = FitFalloff(t, f, opt)
+		case "sri":
+			res.SRI, err = FitFalloff(t, f, opt)
+		case "plog":
+			res.PLOG, err = FitPLOG(t, opt)
+		case "chebyshev":
+			res.Chebyshev, err = FitChebyshev(t, opt)
+		}
+		if err != nil {
+			res.Errors[f] = err.Error()
+		}
+	}
+	if len(res.Errors) == 0 {
+		res.Errors = nil
+	}
+	res.Recommended, res.Reason = Recommend(res.Reports(), opt.Tolerance)
+	if res.Recommended == "" {
+		var errs []error
+		for _, f := range forms {
+			errs = append(errs, fmt.Errorf("%s: %s", f, res.Errors[f]))
+		}
+		return res, fmt.Errorf("%w: %w", ErrNoForm, errors.Join(errs...))
+	}
+	return res, nil
+}
+
+// fitArrheniusTable fits one Arrhenius expression to every point.
+func fitArrheniusTable(t *Table) (*ArrheniusResult, error) {
+	ts, ks, sig := make([]float64, len(t.Points)), make([]float64, len(t.Points)), []float64(nil)
+	if t.Weighted() {
+		sig = make([]float64, len(t.Points))
+	}
+	for i, p := range t.Points {
+		ts[i], ks[i] = p.T, p.K
+		if sig != nil {
+			sig[i] = p.Sigma
+		}
+	}
+	a, err := FitArrhenius(ts, ks, sig)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", t.name(), err)
+	}
+	np := 3
+	if len(t.Temperatures()) == 2 {
+		np = 2
+	}
+	rep, err := NewReport(t, arrheniusEval{a}, np)
+	if err != nil {
+		return nil, err
+	}
+	return &ArrheniusResult{Rate: a, Report: rep}, nil
+}
+
+// Recommend picks a form from reports (by name from Forms) for the
+// maximum relative error tol (a fraction; 0 means DefaultTolerance). Rule:
+// the first form in the order of Forms — arrhenius, lindemann, troe, sri,
+// chebyshev, plog — whose maximum error is within tol. The falloff forms
+// come first because every simulator reads them and they extrapolate to
+// the right limits; Chebyshev before PLOG because its error over the table
+// measures the fit everywhere, while PLOG is exact in P at the table's
+// pressures, so its figure says nothing of the interpolation between them.
+// If no form is within tol, the one with the smallest maximum error. It
+// returns "" if reports is empty. reason says why, in one sentence.
+func Recommend(reports map[string]Report, tol float64) (form, reason string) {
+	if tol <= 0 || math.IsNaN(tol) {
+		tol = DefaultTolerance
+	}
+	var failed []string
+	for _, f := range Forms {
+		r, ok := reports[f]
+		if !ok {
+			continue
+		}
+		if r.MaxError() <= tol {
+			why := fmt.Sprintf("%s is the simplest form within the %.3g %% tolerance (max error %.3g %%, rms %.3g %%, worst at %.4g K, %.4g Pa)",
+				f, 100*tol, r.MaxErrorPct, r.RMSErrorPct, r.WorstT, r.WorstP)
+			if len(failed) > 0 {
+				why += "; " + strings.Join(failed, ", ") + " exceeded it"
+			}
+			return f, why
+		}
+		failed = append(failed, fmt.Sprintf("%s (%.3g %%)", f, r.MaxErrorPct))
+	}
+	best := ""
+	for _, f := range Forms {
+		if r, ok := reports[f]; ok && (best == "" || r.MaxErrorPct < reports[best].MaxErrorPct) {
+			best = f
+		}
+	}
+	if best == "" {
+		return "", "no form could be fitted"
+	}
+	return best, fmt.Sprintf("no form is within the %.3g %% tolerance (%s); %s has the smallest max error",
+		100*tol, strings.Join(failed, ", "), best)
+}

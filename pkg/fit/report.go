@@ -1,0 +1,59 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+)
+
+// Evaluator is a fitted form: k at t K and p Pa in the table's units.
+// *Falloff, *PLOG and *Chebyshev (and their values) are Evaluators.
+type Evaluator interface {
+	Eval(t, p float64) float64
+}
+
+// arrheniusEval evaluates a pressure-independent Arrhenius form.
+type arrheniusEval struct{ Arrhenius }
+
+func (a arrheniusEval) Eval(t, _ float64) float64 { return a.Arrhenius.Eval(t) }
+
+// Report describes how well a form reproduces a table: relative errors
+// |k_fit/k − 1| over all points, unweighted, in per cent, and the extent
+// of the data, which is the range in which the form may be used.
+type Report struct {
+	MaxErrorPct float64    `json:"max_error_pct"`
+	RMSErrorPct float64    `json:"rms_error_pct"`
+	WorstT      float64    `json:"worst_T_K"`  // T of the point with the largest error
+	WorstP      float64    `json:"worst_P_Pa"` // P of the point with the largest error
+	TRange      [2]float64 `json:"T_range_K"`
+	PRange      [2]float64 `json:"P_range_Pa"`
+	NParams     int        `json:"n_params"` // number of fitted parameters
+	NPoints     int        `json:"n_points"`
+}
+
+// NewReport compares f with the table. It returns an error wrapping
+// ErrBadData if f gives a non-finite or non-positive k at any point.
+func NewReport(t *Table, f Evaluator, nParams int) (Report, error) {
+	r := Report{NParams: nParams, NPoints: len(t.Points)}
+	r.TRange, r.PRange = t.extent()
+	ss := 0.0
+	for _, p := range t.Points {
+		k := f.Eval(p.T, p.P)
+		if !(k > 0) || math.IsInf(k, 0) {
+			return Report{}, fmt.Errorf("%w: fitted k = %g at T = %g K, P = %g Pa", ErrBadData, k, p.T, p.P)
+		}
+		e := math.Abs(k/p.K - 1)
+		ss += e * e
+		if e > r.MaxErrorPct || r.WorstT == 0 {
+			r.MaxErrorPct, r.WorstT, r.WorstP = e, p.T, p.P
+		}
+	}
+	r.MaxErrorPct *= 100
+	r.RMSErrorPct = 100 * math.Sqrt(ss/float64(len(t.Points)))
+	if !finite(r.MaxErrorPct, r.RMSErrorPct) {
+		return Report{}, fmt.Errorf("%w: fit error not finite", ErrBadData)
+	}
+	return r, nil
+}
+
+// MaxError returns the largest relative error as a fraction.
+func (r Report) MaxError() float64 { return r.MaxErrorPct / 100 }
