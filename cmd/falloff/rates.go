@@ -328,7 +328,7 @@ func printRates(s streams, m *input.Model, rep *ratesReport) error {
 		fmt.Fprintf(s.out, "\nconvergence: halving the grain or raising the ceiling by 10 kT changes k by at most %.2g %%\n", 100**rep.Convergence)
 	}
 	if rep.Fits != nil {
-		fmt.Fprintf(s.out, "\nfits to the grid (%s direction, k in %s):\n", rep.Direction, rep.KUnits)
+		fmt.Fprintf(s.out, "\nfits to the grid (%s, k in %s):\n", rep.Direction, rep.KUnits)
 		if err := renderTable(s.out, []string{"form", "max error / %", "rms error / %", "worst point", "parameters", ""}, fitRows(rep.Fits)); err != nil {
 			return err
 		}

@@ -8,6 +8,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
@@ -52,6 +53,7 @@ func verbs() []verb {
 		{"micro", "RRKM k(E) and its thermal average beside canonical k∞(T)", runMicroCmd},
 		{"rates", "master-equation k(T,P) on the temperature and pressure grid", runRatesCmd},
 		{"compare", "the grid under strong-collider and exponential-down models side by side", runCompareCmd},
+		{"fit", "fit Arrhenius, falloff, PLOG and Chebyshev forms to a k(T,P) table (CSV)", runFitCmd},
 		{"example", "print the built-in demo input (edit it to make your own)", runExampleCmd},
 	}
 }
@@ -92,12 +94,13 @@ func exitCode(err error, stderr io.Writer) int {
 	var fe *input.FieldError
 	var unitErr *units.UnitError
 	var ne *numericalError
+	var ce *fit.CSVError
 	switch {
 	case errors.As(err, &ue):
 		return exitUsage
 	case errors.As(err, &ne):
 		return exitNumerical
-	case errors.As(err, &fe), errors.As(err, &unitErr):
+	case errors.As(err, &fe), errors.As(err, &unitErr), errors.As(err, &ce):
 		return exitInput
 	}
 	return exitInput
