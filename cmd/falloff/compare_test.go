@@ -48,7 +48,16 @@ func TestCompareOrdering(t *testing.T) {
 			}
 		}
 	}
-	f, err := os.Open(svg)
+	if got, want := svgCurves(t, svg), 3*5; got != want { // 3 temperatures × 5 models
+		t.Errorf("%d curves in the legend, want %d", got, want)
+	}
+}
+
+// svgCurves checks that the file is well-formed XML and counts the legend
+// entries of the form "T K, model".
+func svgCurves(t *testing.T, path string) int {
+	t.Helper()
+	f, err := os.Open(path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -62,7 +71,7 @@ func TestCompareOrdering(t *testing.T) {
 			break
 		}
 		if err != nil {
-			t.Fatalf("SVG is not well-formed XML: %v", err)
+			t.Fatalf("%s is not well-formed XML: %v", path, err)
 		}
 		switch v := tok.(type) {
 		case xml.StartElement:
@@ -73,7 +82,5 @@ func TestCompareOrdering(t *testing.T) {
 			}
 		}
 	}
-	if want := 3 * 5; legend != want { // 3 temperatures × 5 models
-		t.Errorf("%d curves in the legend, want %d", legend, want)
-	}
+	return legend
 }

@@ -57,6 +57,33 @@ func orient(m *input.Model, rep *ratesReport, dir string) (*directed, error) {
 	if dir != recombination {
 		return nil, usagef("--direction %q: use forward or recombination", dir)
 	}
+	prods, err := recombinationProducts(m)
+	if err != nil {
+		return nil, err
+	}
+	d.order, d.reactants, d.products = 2, m.Reaction.Products, []string{r.Name}
+	d.kUnits, d.k0Units = "cm3 molecule-1 s-1", "cm6 molecule-2 s-1"
+	d.k = make([][]float64, len(rep.K))
+	d.kInf = make([]float64, len(rep.K))
+	d.k0 = make([]float64, len(rep.K))
+	for i, t := range rep.Temperatures {
+		kc := rrkm.EquilibriumConstant(&r.Species, prods, m.Reaction.ReactionEnergy, t)
+		if !(kc > 0) || math.IsInf(kc, 0) {
+			return nil, &numericalError{fmt.Errorf("K_c(%g K) = %v: not a finite positive number (hint: check reaction-energy)", t, kc)}
+		}
+		d.kc = append(d.kc, kc)
+		d.k[i] = make([]float64, len(rep.K[i]))
+		for j, k := range rep.K[i] {
+			d.k[i][j] = k / kc
+		}
+		d.kInf[i], d.k0[i] = rep.KInfIntegrated[i]/kc, rep.K0[i]/kc
+	}
+	return d, nil
+}
+
+// recombinationProducts returns the products' species for K_c, or the
+// input error that makes the recombination direction impossible.
+func recombinationProducts(m *input.Model) ([]*rrkm.Species, error) {
 	if len(m.Reaction.Products) != 2 {
 		return nil, &input.FieldError{File: m.File, Path: "reaction.products", Value: strings.Join(m.Reaction.Products, ", "),
 			Err: errors.New("a recombination needs exactly two products"), Hint: "write products: [A, B], or use --direction forward"}
@@ -81,24 +108,7 @@ func orient(m *input.Model, rep *ratesReport, dir string) (*directed, error) {
 		}
 		prods = append(prods, &p.Species)
 	}
-	d.order, d.reactants, d.products = 2, m.Reaction.Products, []string{r.Name}
-	d.kUnits, d.k0Units = "cm3 molecule-1 s-1", "cm6 molecule-2 s-1"
-	d.k = make([][]float64, len(rep.K))
-	d.kInf = make([]float64, len(rep.K))
-	d.k0 = make([]float64, len(rep.K))
-	for i, t := range rep.Temperatures {
-		kc := rrkm.EquilibriumConstant(&r.Species, prods, m.Reaction.ReactionEnergy, t)
-		if !(kc > 0) || math.IsInf(kc, 0) {
-			return nil, &numericalError{fmt.Errorf("K_c(%g K) = %v: not a finite positive number (hint: check reaction-energy)", t, kc)}
-		}
-		d.kc = append(d.kc, kc)
-		d.k[i] = make([]float64, len(rep.K[i]))
-		for j, k := range rep.K[i] {
-			d.k[i][j] = k / kc
-		}
-		d.kInf[i], d.k0[i] = rep.KInfIntegrated[i]/kc, rep.K0[i]/kc
-	}
-	return d, nil
+	return prods, nil
 }
 
 // fitGrid fits the requested forms to the directed grid, with the computed

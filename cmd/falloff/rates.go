@@ -134,6 +134,11 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 	if err != nil {
 		return nil, err
 	}
+	if o.direction == recombination {
+		if _, err := recombinationProducts(m); err != nil {
+			return nil, err // before the master equation, not after
+		}
+	}
 	tr := newTransfer(m)
 	r, ts := m.ReactantAndTS()
 	var grain, ceiling float64

@@ -60,6 +60,21 @@ func TestRatesJSON(t *testing.T) {
 	if out2 != out {
 		t.Error("--jobs 3 output differs from --jobs 1")
 	}
+	// Golden JSON, numbers compared to 1e-6 (a fit minimum may move in the
+	// last digits with the floating-point unit's fused multiply-adds).
+	goldenJSON(t, "rates-ch3nc.json", out, 1e-6)
+}
+
+// BenchmarkDemo times the main job on the built-in demo: the 12 × 13 grid,
+// fits and all output files (target: a few seconds).
+func BenchmarkDemo(b *testing.B) {
+	dir := b.TempDir()
+	for b.Loop() {
+		var out, errb strings.Builder
+		if code := run([]string{"rates", "-q", "--out", dir, "--plots", dir}, strings.NewReader(""), &out, &errb); code != exitOK {
+			b.Fatalf("exit %d: %s", code, errb.String())
+		}
+	}
 }
 
 // `rates --csv` writes one row per grid point, units in the header.
