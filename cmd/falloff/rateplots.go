@@ -82,7 +82,7 @@ func writeRatePlots(dir string, m *input.Model, rep *ratesReport, d *directed, r
 	for i, t := range rep.Temperatures {
 		inv[i] = 1000 / t
 	}
-	arr := plots.Figure{Title: "High- and low-pressure limits", XLabel: "1000 K / T", YLabel: "k∞ / " + d.kUnits + ",  k0 / " + d.k0Units, LogY: true,
+	arr := plots.Figure{Title: "High- and low-pressure limits", XLabel: "1000 K / T", YLabel: "k∞ / " + d.kUnits + ",  k0 / " + d.k0Units, LogY: true, LegendTop: true,
 		Series: []plots.Series{{Name: "k∞", X: inv, Y: d.kInf, Points: true, Group: 1}, {Name: "k0", X: inv, Y: d.k0, Points: true, Group: 2}}}
 	if err := save("arrhenius.svg", arr); err != nil {
 		return nil, err

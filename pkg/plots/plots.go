@@ -31,12 +31,48 @@ type Figure struct {
 	Title, XLabel, YLabel string
 	LogX, LogY            bool
 	Series                []Series
+	// LegendTop puts the legend in the upper right corner instead of the
+	// lower right.
+	LegendTop bool
+}
+
+// maxLogDecades is the widest range a logarithmic axis shows with tick
+// labels per decade; a wider one is drawn as log10 of the values on a
+// linear axis, whose labels stay legible.
+const maxLogDecades = 8
+
+// decades returns log10(max/min) over the positive finite y values.
+func (f Figure) decades() float64 {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, s := range f.Series {
+		for _, y := range s.Y {
+			if y > 0 && !math.IsInf(y, 0) {
+				lo, hi = math.Min(lo, y), math.Max(hi, y)
+			}
+		}
+	}
+	return math.Log10(hi / lo)
 }
 
 // SVG renders the figure as an SVG document of 16 cm × 11 cm. Non-positive
 // values on a logarithmic axis and non-finite values are dropped from the
 // series (and reported as an error if a series is left empty).
 func (f Figure) SVG() ([]byte, error) {
+	if f.LogY && f.decades() > maxLogDecades {
+		g := f
+		g.LogY, g.YLabel, g.Series = false, "log10 "+f.YLabel, nil
+		for _, s := range f.Series {
+			t := s
+			t.X, t.Y = nil, nil
+			for j, y := range s.Y {
+				if y > 0 {
+					t.X, t.Y = append(t.X, s.X[j]), append(t.Y, math.Log10(y))
+				}
+			}
+			g.Series = append(g.Series, t)
+		}
+		return g.SVG()
+	}
 	p := plot.New()
 	p.Title.Text = f.Title
 	p.X.Label.Text = f.XLabel
@@ -51,7 +87,7 @@ func (f Figure) SVG() ([]byte, error) {
 	}
 	// Rising curves (falloff, Arrhenius in 1/T decreasing) leave the lower
 	// right corner free for the legend.
-	p.Legend.Top = false
+	p.Legend.Top = f.LegendTop
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
 	p.Legend.XOffs = -4 * vg.Millimeter
 	p.Legend.YOffs = 2 * vg.Millimeter

@@ -58,3 +58,16 @@ func TestFigureSVG(t *testing.T) {
 		t.Error("a series with no plottable point was accepted")
 	}
 }
+
+// A range wider than maxLogDecades is drawn as log10 on a linear axis.
+func TestWideRangeAsLog10(t *testing.T) {
+	f := Figure{Title: "k", XLabel: "1000 K / T", YLabel: "k / s-1", LogY: true,
+		Series: []Series{{Name: "k∞", X: []float64{1, 2, 3}, Y: []float64{1e10, 1e-5, 1e-20}, Points: true}}}
+	b, err := f.SVG()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if texts := strings.Join(checkSVG(t, b), "|"); !strings.Contains(texts, "log10 k / s-1") || !strings.Contains(texts, "k∞") {
+		t.Errorf("axis label or legend missing: %s", texts)
+	}
+}
