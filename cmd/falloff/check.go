@@ -32,13 +32,11 @@ func runCheckCmd(args []string, s streams) error {
 	fs := newFlags("check", "check [flags] FILE",
 		"  falloff example > ring.yaml\n  falloff check ring.yaml          # prints the molecules, the reaction and the grids", s)
 	o.addFlags(fs)
-	if err := parseFlags(fs, args); err != nil {
+	args, err := parseVerb(fs, args, o.validate)
+	if err != nil {
 		return err
 	}
-	if err := o.validate(fs.Args()); err != nil {
-		return err
-	}
-	m, err := loadModel(fs.Args(), o.quiet || o.json, s)
+	m, err := loadModel(args, o.quiet || o.json, s)
 	if err != nil {
 		return err
 	}

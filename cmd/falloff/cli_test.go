@@ -222,12 +222,7 @@ func TestExitCodes(t *testing.T) {
 	if err := os.WriteFile(bad, []byte(strings.Replace(string(demo.Text), "energy: 42.0 kcal/mol", "energy: 42.0", 1)), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	cases := []struct {
-		name string
-		args []string
-		code int
-		msg  string
-	}{
+	checkFailures(t, []failCase{
 		{"missing unit", []string{"check", bad}, exitInput, "energy"},
 		{"missing file", []string{"micro", filepath.Join(dir, "none.yaml")}, exitInput, "none.yaml"},
 		{"unknown verb", []string{"frobnicate"}, exitUsage, "unknown command"},
@@ -235,15 +230,25 @@ func TestExitCodes(t *testing.T) {
 		{"grain without unit", []string{"micro", "--grain", "10"}, exitUsage, "no unit"},
 		{"two files", []string{"states", "a", "b"}, exitUsage, "at most one"},
 		{"help", []string{"micro", "--help"}, exitOK, ""},
-	}
+	})
+}
+
+// failCase is a command line that must end with code and one line on
+// stderr containing msg.
+type failCase struct {
+	name string
+	args []string
+	code int
+	msg  string
+}
+
+func checkFailures(t *testing.T, cases []failCase) {
+	t.Helper()
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			code, _, errs := runCLI(t, tc.args...)
-			if code != tc.code {
-				t.Errorf("exit %d, want %d (stderr %q)", code, tc.code, errs)
-			}
-			if !strings.Contains(errs, tc.msg) || strings.Count(strings.TrimSpace(errs), "\n") > 0 {
-				t.Errorf("stderr %q: want one line mentioning %q", errs, tc.msg)
+			if code != tc.code || !strings.Contains(errs, tc.msg) || strings.Count(strings.TrimSpace(errs), "\n") > 0 {
+				t.Errorf("exit %d (want %d), stderr %q (want one line with %q)", code, tc.code, errs, tc.msg)
 			}
 		})
 	}

@@ -50,13 +50,11 @@ func runCompareCmd(args []string, s streams) error {
 		"  falloff compare                        # the built-in demo, ⟨ΔE⟩down ± 50 %\n"+
 			"  falloff compare ring.yaml --alpha \"100 cm-1\" --alpha \"600 cm-1\" --plot compare.svg", s)
 	o.addFlags(fs)
-	if err := parseFlags(fs, args); err != nil {
+	args, err := parseVerb(fs, args, o.validate)
+	if err != nil {
 		return err
 	}
-	if err := o.validate(fs.Args()); err != nil {
-		return err
-	}
-	m, err := loadModel(fs.Args(), o.quiet || o.json, s)
+	m, err := loadModel(args, o.quiet || o.json, s)
 	if err != nil {
 		return err
 	}

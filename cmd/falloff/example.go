@@ -22,10 +22,8 @@ func runExampleCmd(args []string, s streams) error {
 	fs := newFlags("example", "example > my-reaction.yaml",
 		"  falloff example > ring.yaml     # write the demo input, then edit it\n  falloff micro ring.yaml", s)
 	o.addFlags(fs)
-	if err := parseFlags(fs, args); err != nil {
-		return err
-	}
-	if err := o.validate(fs.Args()); err != nil {
+	args, err := parseVerb(fs, args, o.validate)
+	if err != nil {
 		return err
 	}
 	return runExample(s)

@@ -66,13 +66,11 @@ func runFitCmd(args []string, s streams) error {
 			"  # a measured table: header T/K,P/atm,k/s-1 (optional 4th column uncertainty/%)\n"+
 			"  falloff fit measured.csv --json", s)
 	o.addFlags(fs)
-	if err := parseFlags(fs, args); err != nil {
+	args, err := parseVerb(fs, args, o.validate)
+	if err != nil {
 		return err
 	}
-	if err := o.validate(fs.Args()); err != nil {
-		return err
-	}
-	return runFit(o, fs.Args()[0], s)
+	return runFit(o, args[0], s)
 }
 
 func runFit(o fitOptions, path string, s streams) error {

@@ -4,7 +4,6 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 
 	"github.com/falloff-kinetics/falloff/pkg/fit"
@@ -47,24 +46,11 @@ func TestFitErrors(t *testing.T) {
 	if err := os.WriteFile(bad, []byte("T/K,P/atm,k/s-1\n300,1,1e3\n400,1,-5\n500,1,1e5\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	cases := []struct {
-		name string
-		args []string
-		code int
-		msg  string
-	}{
+	checkFailures(t, []failCase{
 		{"negative k", []string{"fit", bad}, exitInput, "bad.csv:3: column 3"},
 		{"no file", []string{"fit"}, exitUsage, "one table"},
 		{"unknown form", []string{"fit", "--forms", "troe,magic", griTable}, exitUsage, "magic"},
 		{"bad order", []string{"fit", "--chebyshev-order", "seven", griTable}, exitUsage, "N_TxN_P"},
 		{"missing", []string{"fit", filepath.Join(dir, "none.csv")}, exitInput, "none.csv"},
-	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			code, _, errs := runCLI(t, tc.args...)
-			if code != tc.code || !strings.Contains(errs, tc.msg) || strings.Count(strings.TrimSpace(errs), "\n") > 0 {
-				t.Errorf("exit %d (want %d), stderr %q (want one line with %q)", code, tc.code, errs, tc.msg)
-			}
-		})
-	}
+	})
 }

@@ -156,22 +156,10 @@ func TestRecombinationGolden(t *testing.T) {
 }
 
 func TestRecombinationErrors(t *testing.T) {
-	cases := []struct {
-		name string
-		args []string
-		msg  string
-	}{
-		{"isomerization", []string{"rates", "--direction", recombination, ch3ncFile}, "reaction.products"},
-		{"no reaction energy", []string{"rates", "--direction", recombination}, "reaction-energy"},
-		{"bad direction", []string{"rates", "--direction", "sideways", ch3ncFile}, "forward or recombination"},
-		{"bad unit", []string{"rates", "--energy-unit", "erg", ch3ncFile}, "erg"},
-	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			code, _, errs := runCLI(t, tc.args...)
-			if code == exitOK || !strings.Contains(errs, tc.msg) {
-				t.Errorf("exit %d, stderr %q (want %q)", code, errs, tc.msg)
-			}
-		})
-	}
+	checkFailures(t, []failCase{
+		{"isomerization", []string{"rates", "--direction", recombination, ch3ncFile}, exitInput, "reaction.products"},
+		{"no reaction energy", []string{"rates", "-q", "--direction", recombination}, exitInput, "reaction-energy"},
+		{"bad direction", []string{"rates", "--direction", "sideways", ch3ncFile}, exitUsage, "forward or recombination"},
+		{"bad unit", []string{"rates", "--energy-unit", "erg", ch3ncFile}, exitUsage, "erg"},
+	})
 }

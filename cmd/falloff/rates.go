@@ -80,13 +80,11 @@ func runRatesCmd(args []string, s streams) error {
 			"  falloff rates ring.yaml --csv > grid.csv\n"+
 			"  falloff rates ring.yaml --json > rates.json", s)
 	o.addFlags(fs)
-	if err := parseFlags(fs, args); err != nil {
+	args, err := parseVerb(fs, args, o.validate)
+	if err != nil {
 		return err
 	}
-	if err := o.validate(fs.Args()); err != nil {
-		return err
-	}
-	m, err := loadModel(fs.Args(), o.quiet || o.json || o.csv, s)
+	m, err := loadModel(args, o.quiet || o.json || o.csv, s)
 	if err != nil {
 		return err
 	}

@@ -109,25 +109,12 @@ func TestRatesErrors(t *testing.T) {
 		}
 		return p
 	}
-	cases := []struct {
-		name string
-		args []string
-		code int
-		msg  string
-	}{
+	checkFailures(t, []failCase{
 		{"no pressures", []string{"rates", hcnFile}, exitInput, "grid.pressures"},
 		{"unknown gas", []string{"rates", write("gas.yaml", "gas: Ar", "gas: SF6")}, exitInput, "bath.gas"},
 		{"no reactant LJ", []string{"rates", write("lj.yaml", "    lennard-jones: {sigma: 4.47 angstrom, epsilon: 380 K}\n", "")}, exitInput, "lennard-jones"},
 		{"json and csv", []string{"rates", "--json", "--csv", ch3ncFile}, exitUsage, "exclude"},
 		{"grain without unit", []string{"rates", "--grain", "50", ch3ncFile}, exitUsage, "no unit"},
 		{"grid too large", []string{"rates", "--grain", "1 cm-1", ch3ncFile}, exitInput, "memory"},
-	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			code, _, errs := runCLI(t, tc.args...)
-			if code != tc.code || !strings.Contains(errs, tc.msg) || strings.Count(strings.TrimSpace(errs), "\n") > 0 {
-				t.Errorf("exit %d (want %d), stderr %q (want one line with %q)", code, tc.code, errs, tc.msg)
-			}
-		})
-	}
+	})
 }

@@ -44,11 +44,9 @@ func (o *reportOptions) stepCm1() float64 {
 func (o *reportOptions) parse(verb string, args []string, s streams, example string) (*input.Model, error) {
 	fs := newFlags(verb, verb+" [flags] [FILE]", example, s)
 	o.addFlags(fs)
-	if err := parseFlags(fs, args); err != nil {
+	args, err := parseVerb(fs, args, func(a []string) error { return o.validate(verb, a) })
+	if err != nil {
 		return nil, err
 	}
-	if err := o.validate(verb, fs.Args()); err != nil {
-		return nil, err
-	}
-	return loadModel(fs.Args(), o.quiet || o.json, s)
+	return loadModel(args, o.quiet || o.json, s)
 }

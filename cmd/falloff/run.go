@@ -147,6 +147,18 @@ func newFlags(name, usage, example string, s streams) *pflag.FlagSet {
 	return fs
 }
 
+// parseVerb parses a verb's flags and validates the remaining arguments, so
+// that every verb reads parse → validate → run.
+func parseVerb(fs *pflag.FlagSet, args []string, validate func([]string) error) ([]string, error) {
+	if err := parseFlags(fs, args); err != nil {
+		return nil, err
+	}
+	if err := validate(fs.Args()); err != nil {
+		return nil, err
+	}
+	return fs.Args(), nil
+}
+
 // parseFlags parses args and wraps a flag error as a usage error.
 func parseFlags(fs *pflag.FlagSet, args []string) error {
 	fs.SetOutput(io.Discard)
