@@ -207,7 +207,7 @@ func TestLowPressureCollisionEfficiency(t *testing.T) {
 	for _, tc := range cases {
 		tr := Transfer{Alpha300: tc.alpha}
 		ed := testWell(t, ch, tr, tc.tK, 0)
-		k0, err := ed.k0PerOmega()
+		k0, _, err := ed.k0PerOmega()
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -11,13 +11,47 @@ import (
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
-// Channel is a reactant and the transition state of its one channel, with
-// their state counters; the counters must reach CeilingFor's energy at the
-// highest temperature of a grid.
+// Channel is a reactant and the transition state of its reaction channel,
+// with their state counters; the counters must reach CeilingFor's energy at
+// the highest temperature of a grid. Competing lists further channels out of
+// the same well (their Reactant is ignored): the master equation then has
+// several sinks, and results are given per channel as well as in total.
 type Channel struct {
 	Reactant, TS *rrkm.Counter
 	L            float64 // reaction-path degeneracy
 	E0           float64 // threshold, cm⁻¹
+	Name         string
+	// Micro, if set, gives the channel's k(E) on grains in place of RRKM
+	// with TS (a tunnelling-corrected or inverse-Laplace channel); TS may
+	// then be nil.
+	Micro     func(g rrkm.Grains) (*rrkm.Micro, error)
+	Competing []Channel
+}
+
+// channels returns the channel and its competitors.
+func (ch Channel) channels() []Channel { return append([]Channel{ch}, ch.Competing...) }
+
+// lowestE0 is the lowest threshold of the well's channels.
+func (ch Channel) lowestE0() float64 {
+	e := ch.E0
+	for _, c := range ch.Competing {
+		e = math.Min(e, c.E0)
+	}
+	return e
+}
+
+// micro returns the channel's k(E) on grains g.
+func (ch Channel) micro(reactant *rrkm.Counter, g rrkm.Grains) (*rrkm.Micro, error) {
+	if ch.Micro != nil {
+		return ch.Micro(g)
+	}
+	if ch.TS == nil {
+		return nil, errors.New("collision: a channel has neither a transition state nor k(E)")
+	}
+	if top := g.Top(); top-ch.E0 > ch.TS.Ceiling()+ch.TS.Fine() {
+		return nil, fmt.Errorf("collision: ceiling %.0f cm-1 above the counted transition-state states (%.0f cm-1)", top, ch.TS.Ceiling()+ch.E0)
+	}
+	return rrkm.RRKM(reactant, ch.TS, ch.L, g), nil
 }
 
 // Options override the automatic energy grid of the master equation.
@@ -51,16 +85,34 @@ const CeilingKTMax = 60
 // the reactant's Boltzmann distribution ρ(E)e^(−E/kT) and the transition-state
 // flux W‡(E−E0)e^(−E/kT) have fallen below tailTol of their maxima.
 func CeilingFor(ch Channel, tK float64) float64 {
+	top := 0.0
+	for _, c := range ch.channels() {
+		c.Reactant = ch.Reactant
+		top = math.Max(top, c.ceiling(tK))
+	}
+	return top
+}
+
+// ceiling is CeilingFor for one channel; without a transition-state counter
+// only the reactant's tail counts, and at least 30 kT are taken.
+func (ch Channel) ceiling(tK float64) float64 {
 	kt := units.KT(tK)
+	least := 10
+	if ch.TS == nil {
+		least = 30
+	}
 	gR, gT := math.Inf(-1), math.Inf(-1)
 	lnTol := math.Log(tailTol)
 	for m := 1; m <= CeilingKTMax; m++ {
 		x := float64(m) * kt
 		e := ch.E0 + x
 		lr := math.Log(math.Max(ch.Reactant.Sum(e+kt/2)-ch.Reactant.Sum(e-kt/2), 1e-300)) - e/kt
-		lt := math.Log(math.Max(ch.TS.Sum(x), 1e-300)) - x/kt
+		lt := math.Inf(-1)
+		if ch.TS != nil {
+			lt = math.Log(math.Max(ch.TS.Sum(x), 1e-300)) - x/kt
+		}
 		gR, gT = math.Max(gR, lr), math.Max(gT, lt)
-		if m >= 10 && lr < gR+lnTol && lt < gT+lnTol {
+		if m >= least && lr < gR+lnTol && (ch.TS == nil || lt < gT+lnTol) {
 			return e
 		}
 	}
@@ -94,6 +146,12 @@ type TemperatureResult struct {
 	// Rescaled counts the grains where the kernel's upward probabilities
 	// were scaled to keep detailed balance (see ExponentialDown).
 	Rescaled int
+	// Per channel (in the order of Channel.channels): k(T,P) for each
+	// pressure, the high-pressure limit and k0. They sum to K, KInfME and
+	// K0; branching fractions are KC[c][j]/K[j].
+	KC    [][]float64
+	KInfC []float64
+	K0C   []float64
 }
 
 // Result is a k(T,P) grid.
@@ -208,17 +266,17 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 	if ceiling == 0 {
 		ceiling = CeilingFor(ch, tK)
 	}
-	// Put a grain edge on the threshold, so that every grain is wholly
-	// below or wholly above it: otherwise the grain across E0 reacts as a
-	// whole in the low-pressure limit, a first-order grain error.
-	if n := math.Round(ch.E0/grain - 0.5); n >= 1 {
-		grain = ch.E0 / (n + 0.5)
+	// Put a grain edge on the (lowest) threshold, so that every grain is
+	// wholly below or wholly above it: otherwise the grain across E0 reacts
+	// as a whole in the low-pressure limit, a first-order grain error.
+	if e0 := ch.lowestE0(); math.Round(e0/grain-0.5) >= 1 {
+		grain = e0 / (math.Round(e0/grain-0.5) + 0.5)
 	}
 	if grain < ch.Reactant.Fine() {
 		return nil, fmt.Errorf("collision: grain %.3g cm-1 is below the fine counting grain %g cm-1 (hint: a smaller fine-grain, or a larger grain)", grain, ch.Reactant.Fine())
 	}
 	g := rrkm.GrainsTo(grain, ceiling)
-	if top := g.Top(); top > ch.Reactant.Ceiling() || top-ch.E0 > ch.TS.Ceiling() {
+	if top := g.Top(); top > ch.Reactant.Ceiling()+ch.Reactant.Fine() {
 		return nil, fmt.Errorf("collision: ceiling %.0f cm-1 above the counted states (%.0f cm-1)", top, ch.Reactant.Ceiling())
 	}
 	if tr.Strong {
@@ -228,8 +286,35 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 	} else if a := tr.Alpha(tK); float64(g.N)*math.Ceil(a*-math.Log(BandTolerance)/grain+1) > MaxMatrixEntries {
 		return nil, fmt.Errorf("%w: %d grains of %.3g cm-1 with α = %.3g cm-1 (hint: a larger grain or a lower ceiling)", ErrTooLarge, g.N, grain, a)
 	}
-	m := rrkm.RRKM(ch.Reactant, ch.TS, ch.L, g)
-	p := &prepared{w: NewWell(m, ch.Reactant, tK), eff: tr.efficiency()}
+	var kc [][]float64 // k(E) per channel on the grains g
+	var total *rrkm.Micro
+	for _, c := range ch.channels() {
+		m, err := c.micro(ch.Reactant, g)
+		if err != nil {
+			return nil, err
+		}
+		if len(m.K) != g.N {
+			return nil, fmt.Errorf("collision: channel %q gives k(E) on %d grains, want %d", c.Name, len(m.K), g.N)
+		}
+		kc = append(kc, m.K)
+		if total == nil {
+			cp := *m
+			cp.K = append([]float64(nil), m.K...)
+			total = &cp
+		} else {
+			for i, k := range m.K {
+				total.K[i] += k
+			}
+		}
+	}
+	p := &prepared{w: NewWell(total, ch.Reactant, tK), eff: tr.efficiency()}
+	p.w.KC = make([][]float64, len(kc))
+	for c, ks := range kc {
+		p.w.KC[c] = make([]float64, p.w.N())
+		for i, gi := range p.w.Index {
+			p.w.KC[c][i] = ks[gi]
+		}
+	}
 	if p.w.N() < 2 || p.w.K[0] > 0 {
 		return nil, fmt.Errorf("collision: the grid (%d grains of %.3g cm-1) has no grain below the threshold", p.w.N(), grain)
 	}
@@ -245,20 +330,69 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 
 // rate returns k_uni at collision frequency omega (s⁻¹, before efficiency).
 func (p *prepared) rate(omega float64) (float64, error) {
-	if p.kernel == nil {
-		return p.w.StrongCollider(p.eff * omega), nil
-	}
-	s, err := p.w.Solve(p.kernel, omega)
-	return s.K, err
+	k, _, err := p.rates(omega)
+	return k, err
 }
 
-// k0PerOmega returns the low-pressure limit of k_uni/ω.
-func (p *prepared) k0PerOmega() (float64, error) {
+// rates returns k_uni and its share per channel: the flux identity applied
+// to each channel's k(E) with the same slowest mode, so the shares sum to the
+// total.
+func (p *prepared) rates(omega float64) (float64, []float64, error) {
+	w := p.w
+	kc := make([]float64, len(w.KC))
 	if p.kernel == nil {
-		return p.eff * p.w.StrongColliderK0(), nil
+		om := p.eff * omega
+		for i, f := range w.F {
+			if k := w.K[i]; k > 0 {
+				for c := range kc {
+					kc[c] += f * w.KC[c][i] * om / (om + k)
+				}
+			}
+		}
+		return w.StrongCollider(om), kc, nil
 	}
-	s, err := p.w.LowPressure(p.kernel)
-	return s.K, err
+	s, err := w.Solve(p.kernel, omega)
+	if err != nil {
+		return 0, nil, err
+	}
+	for c := range kc {
+		for i, n := range s.Population {
+			kc[c] += w.KC[c][i] * n
+		}
+	}
+	return s.K, kc, nil
+}
+
+// k0PerOmega returns the low-pressure limit of k_uni/ω and its share per
+// channel: in that limit a molecule that reaches a reactive grain reacts
+// there, by channel c with probability k_c(E)/k(E).
+func (p *prepared) k0PerOmega() (float64, []float64, error) {
+	w := p.w
+	kc := make([]float64, len(w.KC))
+	if p.kernel == nil {
+		for i, f := range w.F {
+			if k := w.K[i]; k > 0 {
+				for c := range kc {
+					kc[c] += p.eff * f * w.KC[c][i] / k
+				}
+			}
+		}
+		return p.eff * w.StrongColliderK0(), kc, nil
+	}
+	s, err := w.LowPressure(p.kernel)
+	if err != nil {
+		return 0, nil, err
+	}
+	nk := len(s.Population)
+	for i, n := range s.Population {
+		for m := nk; m < min(w.N(), i+p.kernel.Band+1); m++ {
+			pm := p.kernel.At(m, i) * n
+			for c := range kc {
+				kc[c] += pm * w.KC[c][m] / w.K[m]
+			}
+		}
+	}
+	return s.K, kc, nil
 }
 
 // solveTemperature solves the grid pressures at tK and, with limits, k0
@@ -271,7 +405,14 @@ func solveTemperature(ch Channel, col Collider, tr Transfer, tK float64, pressur
 	w := p.w
 	z := col.Z(tK)
 	r := TemperatureResult{T: tK, K: make([]float64, len(pressures)), Z: z,
-		KInfME: w.KInf(), Grain: w.Grain, Ceiling: w.E[w.N()-1] + w.Grain/2, Grains: w.N()}
+		KInfME: w.KInf(), Grain: w.Grain, Ceiling: w.E[w.N()-1] + w.Grain/2, Grains: w.N(),
+		KC: make([][]float64, len(w.KC)), KInfC: make([]float64, len(w.KC))}
+	for c := range w.KC {
+		r.KC[c] = make([]float64, len(pressures))
+		for i, f := range w.F {
+			r.KInfC[c] += f * w.KC[c][i]
+		}
+	}
 	if p.kernel != nil {
 		r.Band, r.Rescaled = p.kernel.Band, p.kernel.Rescaled
 	}
@@ -281,18 +422,26 @@ func solveTemperature(ch Channel, col Collider, tr Transfer, tK float64, pressur
 	omegas := make([]float64, len(pressures))
 	for j, pr := range pressures {
 		omegas[j] = z * Concentration(pr, tK)
-		if r.K[j], err = p.rate(omegas[j]); err != nil {
+		k, kc, err := p.rates(omegas[j])
+		if err != nil {
 			return r, fmt.Errorf("P = %g Pa: %w", pr, err)
+		}
+		r.K[j] = k
+		for c := range kc {
+			r.KC[c][j] = kc[c]
 		}
 	}
 	if !limits {
 		return r, nil
 	}
-	k0, err := p.k0PerOmega()
+	k0, k0c, err := p.k0PerOmega()
 	if err != nil {
 		return r, fmt.Errorf("low-pressure limit: %w", err)
 	}
 	r.K0 = k0 * z
+	for _, x := range k0c {
+		r.K0C = append(r.K0C, x*z)
+	}
 	omegaC, err := p.centre(r.KInfME, k0, omegas, r.K)
 	if err != nil {
 		return r, err

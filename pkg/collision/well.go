@@ -18,6 +18,11 @@ type Well struct {
 	E0     float64   // reaction threshold, cm⁻¹
 	Grain  float64   // grain width, cm⁻¹
 	Counts []float64 // states per grain
+	// Index maps each grain of the well to its grain on the rrkm grid.
+	Index []int
+	// KC is k(E) per channel (KC[c][i]); K is their sum. Nil for a well
+	// built without channels.
+	KC [][]float64
 }
 
 // NewWell builds the well at tK from RRKM rates on a grain grid, with the
@@ -39,6 +44,7 @@ func NewWell(m *rrkm.Micro, reactant *rrkm.Counter, tK float64) *Well {
 		w.E = append(w.E, e)
 		w.K = append(w.K, m.K[i])
 		w.Counts = append(w.Counts, n)
+		w.Index = append(w.Index, i)
 		lf := math.Log(bc[i]) - beta*e
 		logf = append(logf, lf)
 		lmax = math.Max(lmax, lf)
