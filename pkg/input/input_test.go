@@ -333,6 +333,12 @@ func TestBadInput(t *testing.T) {
 		{"collision rate in wrong unit", "gas: Ar", "gas: Ar\n  collision-rate: 3.1e-10 cm3/s", "bath.collision-rate", "3.1e-10 cm3/s", "cm3/molecule/s"},
 		{"fine grain zero", "fine-grain: 1 cm-1", "fine-grain: 0 cm-1", "energy-grid.fine-grain", "0 cm-1", ""},
 		{"grain below fine grain", "grain: 10 cm-1", "grain: 0.5 cm-1", "energy-grid.grain", "0.5 cm-1", ""},
+		{"unknown tunnelling", "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  tunnelling: quantum\n", "reaction.tunnelling", "quantum", "wigner"},
+		{"eckart without reaction energy", "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  tunnelling: eckart\n", "reaction.tunnelling", "eckart", "reaction-energy"},
+		{"competing channel without via", "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  competing:\n    - {products: [c]}\n", "reaction.competing[0].via", "", "barrierless"},
+		{"competing channel unknown ts", "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  competing:\n    - {via: nowhere, products: [c]}\n", "reaction.competing[0].via", "nowhere", ""},
+		{"barrierless negative n", "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  competing:\n    - {barrierless: {A: 1e15 s-1, n: -1, energy: 80 kcal/mol}, products: [c, d]}\n", "reaction.competing[0].barrierless.n", "-1", ""},
+		{"barrierless A without unit", "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  competing:\n    - {barrierless: {A: 1e15, energy: 80 kcal/mol}, products: [c, d]}\n", "reaction.competing[0].barrierless.A", "1e15", "s-1"},
 		{"master-equation grain below fine grain", "grain: 10 cm-1", "grain: 10 cm-1\n  master-equation-grain: 0.5 cm-1", "energy-grid.master-equation-grain", "0.5 cm-1", ""},
 		{"fine grain above lowest frequency", "  fine-grain: 1 cm-1\n  grain: 10 cm-1\n", "  fine-grain: 1100 cm-1\n  grain: 2000 cm-1\n", "energy-grid.fine-grain", "1100 cm-1", "finer fine-grain"},
 		{"ceiling below barrier", "grain: 10 cm-1", "grain: 10 cm-1\n  ceiling: 10 kcal/mol", "energy-grid.ceiling", "10 kcal/mol", ""},
@@ -373,6 +379,45 @@ func TestBadInput(t *testing.T) {
 				t.Errorf("Hint = %q, want it to mention %q", fe.Hint, tc.hint)
 			}
 		})
+	}
+}
+
+// Competing channels, barrierless channels and tunnelling are read with
+// their units converted.
+func TestChannelsAndTunnelling(t *testing.T) {
+	m, err := Parse(testFile, edit(t, "  path-degeneracy: auto\n", `  path-degeneracy: auto
+  reaction-energy: 20 kcal/mol
+  tunnelling: eckart
+  competing:
+    - {via: ts, products: [c], path-degeneracy: 2, tunnelling: wigner}
+    - {name: loose, barrierless: {A: 2e15 s-1, T0: 298 K, n: 0.5, energy: 80 kcal/mol}, products: [d, e]}
+`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rx := m.Reaction
+	if rx.Tunnelling != Eckart || len(rx.Competing) != 2 {
+		t.Fatalf("tunnelling %q, %d competing", rx.Tunnelling, len(rx.Competing))
+	}
+	c0, c1 := rx.Competing[0], rx.Competing[1]
+	if c0.Via != "ts" || c0.PathDegeneracy != 2 || c0.Tunnelling != Wigner || c0.Name != "ts" {
+		t.Errorf("first competing channel %+v", c0)
+	}
+	b := c1.Barrierless
+	if c1.Name != "loose" || b == nil || b.A != 2e15 || b.T0 != 298 || b.N != 0.5 ||
+		math.Abs(b.Energy/(80*units.Cm1PerKcalPerMol)-1) > 1e-12 {
+		t.Errorf("barrierless channel %+v %+v", c1, b)
+	}
+}
+
+// Tunnelling needs the transition state's imaginary frequency.
+func TestTunnellingNeedsImaginaryFrequency(t *testing.T) {
+	doc := strings.Replace(strings.Replace(minimal, "    imaginary-frequency: 800 cm-1\n", "", 1),
+		"  path-degeneracy: auto\n", "  path-degeneracy: auto\n  tunnelling: wigner\n", 1)
+	_, err := Parse(testFile, []byte(doc))
+	var fe *FieldError
+	if !errors.As(err, &fe) || fe.Path != "reaction.tunnelling" || !strings.Contains(fe.Hint, "imaginary-frequency") {
+		t.Errorf("got %v", err)
 	}
 }
 

@@ -60,6 +60,40 @@ type Reaction struct {
 	// the file gave it.
 	ReactionEnergy    float64
 	HasReactionEnergy bool
+	// Tunnelling is "none" (default), "wigner" or "eckart".
+	Tunnelling string
+	// Competing are further channels out of the same reactant.
+	Competing []Channel
+}
+
+// Tunnelling corrections.
+const (
+	NoTunnelling = "none"
+	Wigner       = "wigner"
+	Eckart       = "eckart"
+)
+
+// Channel is a competing channel: through a transition state (Via) or
+// barrierless, described by its high-pressure rate constant.
+type Channel struct {
+	Name              string
+	Via               string // transition state, "" if barrierless
+	Barrierless       *Barrierless
+	Products          []string
+	PathDegeneracy    float64 // 0 = auto
+	ReactionEnergy    float64
+	HasReactionEnergy bool
+	Tunnelling        string
+}
+
+// Barrierless is a channel without a barrier, given by
+// k∞(T) = A·(T/T0)^N·exp(−Energy/kT); its k(E) comes from the inverse
+// Laplace transform.
+type Barrierless struct {
+	A      float64 // s⁻¹
+	T0     float64 // K
+	N      float64 // ≥ 0
+	Energy float64 // cm⁻¹, ≥ 0
 }
 
 // Bath describes the bath gas.

@@ -81,25 +81,173 @@ func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
 		rx.ReactionEnergy, rx.HasReactionEnergy = e, true
 	}
 
-	if given(&r.PathDegeneracy) {
-		dp := "reaction.path-degeneracy"
-		if r.PathDegeneracy.Kind == yaml.ScalarNode && strings.EqualFold(strings.TrimSpace(r.PathDegeneracy.Value), "auto") {
-			return rx, nil
-		}
-		l, err := p.number(dp, &r.PathDegeneracy)
+	var err2 error
+	if rx.PathDegeneracy, err2 = p.pathDegeneracy("reaction.path-degeneracy", &r.PathDegeneracy); err2 != nil {
+		return rx, err2
+	}
+	if rx.Tunnelling, err2 = p.tunnelling("reaction.tunnelling", &r.Tunnelling, rx.HasReactionEnergy, ts); err2 != nil {
+		return rx, err2
+	}
+	for i := range r.Competing {
+		c, err := p.competing(fmt.Sprintf("reaction.competing[%d]", i), &r.Competing[i], lookup)
 		if err != nil {
-			if fe, ok := err.(*FieldError); ok {
-				fe.Hint = "write auto, or a positive number such as 2"
-			}
 			return rx, err
 		}
-		if !(l > 0) {
-			return rx, p.errAt(dp, &r.PathDegeneracy, problemf("must be positive"),
-				"write auto to compute L = σ_R·m‡/(σ‡·m_R), or a positive number")
-		}
-		rx.PathDegeneracy = l
+		rx.Competing = append(rx.Competing, c)
 	}
 	return rx, nil
+}
+
+// pathDegeneracy reads "auto" (0) or a positive number.
+func (p *parser) pathDegeneracy(dp string, n *yaml.Node) (float64, error) {
+	if !given(n) || n.Kind == yaml.ScalarNode && strings.EqualFold(strings.TrimSpace(n.Value), "auto") {
+		return 0, nil
+	}
+	l, err := p.number(dp, n)
+	if err != nil {
+		if fe, ok := err.(*FieldError); ok {
+			fe.Hint = "write auto, or a positive number such as 2"
+		}
+		return 0, err
+	}
+	if !(l > 0) {
+		return 0, p.errAt(dp, n, problemf("must be positive"),
+			"write auto to compute L = σ_R·m‡/(σ‡·m_R), or a positive number")
+	}
+	return l, nil
+}
+
+// tunnelling reads none, wigner or eckart. Eckart needs the reverse barrier,
+// so the reaction energy, and the transition state's imaginary frequency.
+func (p *parser) tunnelling(path string, n *yaml.Node, hasEnergy bool, ts *Molecule) (string, error) {
+	if !given(n) {
+		return NoTunnelling, nil
+	}
+	v, err := p.name(path, n)
+	if err != nil {
+		return "", err
+	}
+	switch v {
+	case NoTunnelling:
+		return v, nil
+	case Wigner, Eckart:
+		if ts == nil || !(ts.Imaginary > 0) {
+			return "", p.errAt(path, n, problemf("tunnelling needs the transition state's imaginary-frequency"),
+				"add imaginary-frequency: (e.g. 1200 cm-1) to the transition state")
+		}
+		if v == Eckart && !hasEnergy {
+			return "", p.errAt(path, n, problemf("the Eckart barrier needs the reaction energy for its reverse side"),
+				"add reaction-energy: to the channel, or use tunnelling: wigner")
+		}
+		return v, nil
+	}
+	return "", p.errAt(path, n, problemf("unknown tunnelling correction"), "use none, wigner or eckart")
+}
+
+// competing reads one competing channel.
+func (p *parser) competing(path string, r *rawChannel, lookup func(string, *yaml.Node) (*Molecule, error)) (Channel, error) {
+	var c Channel
+	if given(&r.Name) {
+		name, err := p.name(path+".name", &r.Name)
+		if err != nil {
+			return c, err
+		}
+		c.Name = name
+	}
+	var ts *Molecule
+	switch {
+	case given(&r.Via) && r.Barrierless != nil:
+		return c, p.errAt(path+".via", &r.Via, problemf("a channel has either via: or barrierless:, not both"), "")
+	case given(&r.Via):
+		var err error
+		if ts, err = lookup(path[len("reaction."):]+".via", &r.Via); err != nil {
+			return c, err
+		}
+		if !ts.IsTS {
+			return c, p.errAt(path+".via", &r.Via, problemf("not a transition state: it has no energy: key"), "")
+		}
+		c.Via = ts.Name
+	case r.Barrierless != nil:
+		b, err := p.barrierless(path+".barrierless", r.Barrierless)
+		if err != nil {
+			return c, err
+		}
+		c.Barrierless = b
+	default:
+		return c, p.missing(path+".via", "name the channel's transition state, or give barrierless: {A:, T0:, n:, energy:}")
+	}
+	if given(&r.Products) {
+		if r.Products.Kind != yaml.SequenceNode {
+			return c, p.errAt(path+".products", &r.Products, problemf("expected a list of names"), "write products: [A, B]")
+		}
+		for i, n := range r.Products.Content {
+			name, err := p.name(fmt.Sprintf("%s.products[%d]", path, i), n)
+			if err != nil {
+				return c, err
+			}
+			c.Products = append(c.Products, name)
+		}
+	}
+	if c.Name == "" {
+		c.Name = c.Via
+		if c.Name == "" {
+			c.Name = "barrierless"
+		}
+	}
+	var err error
+	if c.PathDegeneracy, err = p.pathDegeneracy(path+".path-degeneracy", &r.PathDegeneracy); err != nil {
+		return c, err
+	}
+	if given(&r.ReactionEnergy) {
+		if c.ReactionEnergy, err = p.quantity(path+".reaction-energy", &r.ReactionEnergy, units.Energy); err != nil {
+			return c, err
+		}
+		c.HasReactionEnergy = true
+	}
+	if c.Tunnelling, err = p.tunnelling(path+".tunnelling", &r.Tunnelling, c.HasReactionEnergy, ts); err != nil {
+		return c, err
+	}
+	return c, nil
+}
+
+// barrierless reads {A: 1e15 s-1, T0: 300 K, n: 0.5, energy: 85 kcal/mol}.
+func (p *parser) barrierless(path string, r *rawBarrierless) (*Barrierless, error) {
+	b := &Barrierless{T0: 300}
+	var err error
+	if !given(&r.A) {
+		return nil, p.missing(path+".A", "give the pre-exponential factor, e.g. A: 1e15 s-1")
+	}
+	if b.A, err = p.quantity(path+".A", &r.A, units.Rate); err != nil {
+		return nil, err
+	}
+	if !(b.A > 0) {
+		return nil, p.errAt(path+".A", &r.A, problemf("must be positive"), "")
+	}
+	if given(&r.T0) {
+		if b.T0, err = p.quantity(path+".T0", &r.T0, units.Temperature); err != nil {
+			return nil, err
+		}
+		if !(b.T0 > 0) {
+			return nil, p.errAt(path+".T0", &r.T0, problemf("must be positive"), "")
+		}
+	}
+	if given(&r.N) {
+		if b.N, err = p.number(path+".n", &r.N); err != nil {
+			return nil, err
+		}
+		if !(b.N >= 0) {
+			return nil, p.errAt(path+".n", &r.N, problemf("the temperature exponent must be ≥ 0 for the inverse Laplace transform"), "")
+		}
+	}
+	if given(&r.Energy) {
+		if b.Energy, err = p.quantity(path+".energy", &r.Energy, units.Energy); err != nil {
+			return nil, err
+		}
+		if !(b.Energy >= 0) {
+			return nil, p.errAt(path+".energy", &r.Energy, problemf("must not be negative"), "")
+		}
+	}
+	return b, nil
 }
 
 // bath converts the bath-gas section.

@@ -69,6 +69,27 @@ type rawReaction struct {
 	Products       yaml.Node `yaml:"products"`
 	PathDegeneracy yaml.Node `yaml:"path-degeneracy"`
 	ReactionEnergy yaml.Node `yaml:"reaction-energy"`
+	Tunnelling     yaml.Node `yaml:"tunnelling"`
+	Competing      []rawChannel `yaml:"competing"`
+}
+
+// rawChannel is one entry of reaction.competing.
+type rawChannel struct {
+	Name           yaml.Node `yaml:"name"`
+	Via            yaml.Node `yaml:"via"`
+	Barrierless    *rawBarrierless `yaml:"barrierless"`
+	Products       yaml.Node `yaml:"products"`
+	PathDegeneracy yaml.Node `yaml:"path-degeneracy"`
+	ReactionEnergy yaml.Node `yaml:"reaction-energy"`
+	Tunnelling     yaml.Node `yaml:"tunnelling"`
+}
+
+// rawBarrierless is k∞(T) = A·(T/T0)^n·exp(−energy/kT).
+type rawBarrierless struct {
+	A      yaml.Node `yaml:"A"`
+	T0     yaml.Node `yaml:"T0"`
+	N      yaml.Node `yaml:"n"`
+	Energy yaml.Node `yaml:"energy"`
 }
 
 type rawBath struct {
@@ -118,6 +139,8 @@ var shapes = map[reflect.Type]string{
 	reflect.TypeFor[rawLevel]():                "a level such as {energy: 0 cm-1, degeneracy: 1}",
 	reflect.TypeFor[rawLJ]():                   "a mapping such as {sigma: 5.0 angstrom, epsilon: 400 K}",
 	reflect.TypeFor[rawReaction]():             "a mapping such as {reactant: NAME, via: TS-NAME, products: [A, B]}",
+	reflect.TypeFor[rawChannel]():              "a mapping such as {via: TS-NAME, products: [A, B]}",
+	reflect.TypeFor[rawBarrierless]():          "a mapping such as {A: 1e15 s-1, T0: 300 K, n: 0.5, energy: 85 kcal/mol}",
 	reflect.TypeFor[rawBath]():                 "a mapping such as {gas: Ar}",
 	reflect.TypeFor[rawTransfer]():             "a mapping such as {model: exponential-down, alpha-300: 250 cm-1}",
 	reflect.TypeFor[rawGrid]():                 "a mapping with temperatures and, optionally, pressures",

@@ -19,6 +19,7 @@ const (
 	RotConst                     // cm⁻¹
 	Inertia                      // amu·Å²
 	Pressure                     // Pa
+	Rate                         // s⁻¹ (first-order rate constants)
 )
 
 func (d Dimension) String() string {
@@ -37,6 +38,8 @@ func (d Dimension) String() string {
 		return "moment of inertia"
 	case Pressure:
 		return "pressure"
+	case Rate:
+		return "first-order rate constant"
 	}
 	return fmt.Sprintf("Dimension(%d)", int(d))
 }
@@ -78,6 +81,8 @@ var tables = map[Dimension]unitTable{
 	Inertia: newTable([]string{"amu*angstrom^2", "g*cm^2"},
 		map[string]float64{"amu*angstrom^2": 1, "amu*å^2": 1, "amu*a^2": 1,
 			"g*cm^2": 1 / (AtomicMass * 1e3 * 1e-16)}),
+	Rate: newTable([]string{"s-1", "1/s", "min-1", "ms-1"},
+		map[string]float64{"s-1": 1, "1/s": 1, "s^-1": 1, "min-1": 1.0 / 60, "ms-1": 1000}),
 	Pressure: newTable([]string{"Pa", "kPa", "MPa", "hPa", "bar", "mbar", "atm", "Torr"},
 		map[string]float64{"pa": 1, "kpa": 1e3, "mpa": 1e6, "hpa": 100, "bar": BarPa,
 			"mbar": 100, "atm": AtmPa, "torr": TorrPa}),

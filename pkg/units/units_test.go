@@ -79,6 +79,8 @@ func TestParse(t *testing.T) {
 		{"760 Torr", Pressure, 101325},
 		{"1e-3 bar", Pressure, 100},
 		{"  2.5E+2   cm-1 ", Energy, 250},
+		{"1e15 s-1", Rate, 1e15},
+		{"60 min-1", Rate, 1},
 	}
 	for _, tc := range cases {
 		got, err := Parse(tc.text, tc.dim)
