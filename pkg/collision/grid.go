@@ -21,10 +21,10 @@ type Channel struct {
 	L            float64 // reaction-path degeneracy
 	E0           float64 // threshold, cm⁻¹
 	Name         string
-	// Micro, if set, gives the channel's k(E) on grains in place of RRKM
-	// with TS (a tunnelling-corrected or inverse-Laplace channel); TS may
-	// then be nil.
-	Micro     func(g rrkm.Grains) (*rrkm.Micro, error)
+	// Micro, if set, gives the channel's k(E) on grains at temperature tK
+	// in place of RRKM with TS (a tunnelling-corrected or inverse-Laplace
+	// channel); TS may then be nil.
+	Micro     func(g rrkm.Grains, tK float64) (*rrkm.Micro, error)
 	Competing []Channel
 }
 
@@ -40,10 +40,10 @@ func (ch Channel) lowestE0() float64 {
 	return e
 }
 
-// micro returns the channel's k(E) on grains g.
-func (ch Channel) micro(reactant *rrkm.Counter, g rrkm.Grains) (*rrkm.Micro, error) {
+// micro returns the channel's k(E) on grains g at tK.
+func (ch Channel) micro(reactant *rrkm.Counter, g rrkm.Grains, tK float64) (*rrkm.Micro, error) {
 	if ch.Micro != nil {
-		return ch.Micro(g)
+		return ch.Micro(g, tK)
 	}
 	if ch.TS == nil {
 		return nil, errors.New("collision: a channel has neither a transition state nor k(E)")
@@ -289,7 +289,7 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 	var kc [][]float64 // k(E) per channel on the grains g
 	var total *rrkm.Micro
 	for _, c := range ch.channels() {
-		m, err := c.micro(ch.Reactant, g)
+		m, err := c.micro(ch.Reactant, g, tK)
 		if err != nil {
 			return nil, err
 		}
