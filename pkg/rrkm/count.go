@@ -15,8 +15,9 @@ const MaxFineBins = 50_000_000
 var ErrTooLarge = errors.New("rrkm: state count too large for memory")
 
 // Counter holds the fine-grain count of a species' quantized states
-// (vibrations and electronic levels) and evaluates sums and densities with the
-// classical rotors convolved in, at any energy up to its ceiling.
+// (vibrations, hindered rotors and electronic levels) and evaluates sums and
+// densities with the classical rotors convolved in, at any energy up to its
+// ceiling.
 type Counter struct {
 	species *Species
 	fine    float64   // δ, cm⁻¹
@@ -31,8 +32,9 @@ type Counter struct {
 
 // NewCounter counts the quantized states of s on a fine grain of fine cm⁻¹ up
 // to ceiling cm⁻¹ by the Beyer–Swinehart algorithm (Beyer & Swinehart 1973),
-// with electronic levels convolved in as quantized levels (Stein & Rabinovitch
-// 1973).
+// with the levels of each hindered rotor (HinderedRotor.Levels, to the
+// ceiling) and the electronic levels convolved in as quantized levels (Stein
+// & Rabinovitch, J. Chem. Phys. 58, 2438, 1973).
 func NewCounter(s *Species, fine, ceiling float64) (*Counter, error) {
 	if err := s.Validate(); err != nil {
 		return nil, err
@@ -54,6 +56,14 @@ func NewCounter(s *Species, fine, ceiling float64) (*Counter, error) {
 	comb[0] = 1
 	for _, v := range s.Vibrations {
 		addOscillator(comb, v/fine)
+	}
+	for i, h := range s.Hindered {
+		// Levels past the last bin, (n−1)·δ, so that every bin is complete.
+		levels, err := h.Levels(float64(n+1) * fine)
+		if err != nil {
+			return nil, fmt.Errorf("rrkm: species %q: hindered[%d]: %w", s.Name, i, err)
+		}
+		comb = convolveLevels(comb, levels, fine)
 	}
 	comb = convolveLevels(comb, s.levels(), fine)
 	c := &Counter{species: s, fine: fine, comb: comb, ceiling: ceiling}

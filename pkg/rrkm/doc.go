@@ -15,6 +15,10 @@
 // (external rotation and free internal rotors) are added by convolution with
 // their combined analytic density ρ(E) = B·E^(D/2−1)/Γ(D/2), whose Laplace
 // transform is exactly the product of the classical rotor partition functions.
+// Hindered internal rotors (HinderedRotor) are quantized: their levels, from
+// the torsional Schrödinger equation in a free-rotor basis, are convolved in
+// like electronic levels, and their partition functions are summed over the
+// same levels, so counts and Q agree.
 //
 // Grains: grain i of width Δ is centred on E_i = i·Δ and covers
 // [(i−½)Δ, (i+½)Δ). Counts per grain are exact integrals of ρ over the grain;

@@ -35,11 +35,23 @@ func (s *Species) ElectronicQ(tK float64) float64 {
 	return q
 }
 
-// InternalQ returns the product of the vibrational, rotational and electronic
-// partition functions: the Laplace transform of the density of states this
-// package counts, ∫ρ(E)exp(−E/kT)dE.
+// HinderedQ returns Π Q_hr, the product of the hindered rotors' quantum
+// partition functions (HinderedRotor.Q), each from the same levels the
+// counter convolves in; 1 if there is none. It panics on an invalid rotor
+// (Validate first).
+func (s *Species) HinderedQ(tK float64) float64 {
+	q := 1.0
+	for _, h := range s.Hindered {
+		q *= h.Q(tK)
+	}
+	return q
+}
+
+// InternalQ returns the product of the vibrational, rotational, hindered-
+// rotor and electronic partition functions: the Laplace transform of the
+// density of states this package counts, ∫ρ(E)exp(−E/kT)dE.
 func (s *Species) InternalQ(tK float64) float64 {
-	return s.VibrationalQ(tK) * s.RotationalQ(tK) * s.ElectronicQ(tK)
+	return s.VibrationalQ(tK) * s.RotationalQ(tK) * s.HinderedQ(tK) * s.ElectronicQ(tK)
 }
 
 // TranslationalQ returns the translational partition function per unit volume,

@@ -32,6 +32,9 @@ type Species struct {
 	Mass       float64   // amu
 	Vibrations []float64 // harmonic frequencies in cm⁻¹ (real ones only)
 	Rotors     []Rotor
+	// Hindered are the hindered internal rotors, counted from their
+	// quantum levels (see HinderedRotor).
+	Hindered   []HinderedRotor
 	Electronic []Level // nil means a single non-degenerate level
 	// Symmetry is the external rotational symmetry number σ.
 	Symmetry float64
@@ -98,6 +101,11 @@ func (s *Species) Validate() error {
 			}
 		}
 	}
+	for i, h := range s.Hindered {
+		if err := h.Validate(); err != nil {
+			return fmt.Errorf("species %q: hindered[%d]: %w", s.Name, i, err)
+		}
+	}
 	for i, l := range s.Electronic {
 		if !(l.Energy >= 0) || !(l.Degeneracy > 0) || math.IsInf(l.Energy, 0) {
 			return fmt.Errorf("species %q: electronic[%d] = {%v cm-1, g=%v}: need energy >= 0 and degeneracy > 0", s.Name, i, l.Energy, l.Degeneracy)
@@ -116,7 +124,8 @@ func (s *Species) levels() []Level {
 	return s.Electronic
 }
 
-// ZeroPoint returns the harmonic zero-point energy ½Σν in cm⁻¹.
+// ZeroPoint returns the harmonic zero-point energy ½Σν in cm⁻¹ (hindered
+// rotors not included).
 func (s *Species) ZeroPoint() float64 {
 	z := 0.0
 	for _, v := range s.Vibrations {
