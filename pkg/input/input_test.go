@@ -410,6 +410,30 @@ func TestChannelsAndTunnelling(t *testing.T) {
 	}
 }
 
+// Hindered rotors are read with their units; the inertia form converts by
+// B = h/(8π²cI) (16.857629 amu Å² ↔ 1 cm⁻¹).
+func TestHinderedRotors(t *testing.T) {
+	m, err := Parse(testFile, edit(t, "    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}\n", `    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}
+    hindered-rotors:
+      - {constant: 5.3 cm-1, barrier: 3.0 kcal/mol, fold: 3, symmetry: 3}
+      - {inertia: 16.857629 amu*angstrom^2, barrier: 0 cm-1, fold: 2}
+`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := m.Molecule("r").Hindered
+	if len(h) != 2 || h[0].B != 5.3 || h[0].Fold != 3 || h[0].Symmetry != 3 ||
+		math.Abs(h[0].V0/(3*units.Cm1PerKcalPerMol)-1) > 1e-12 || math.Abs(h[1].B-1) > 1e-6 {
+		t.Errorf("hindered rotors %+v", h)
+	}
+	_, err = Parse(testFile, edit(t, "    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}\n",
+		"    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}\n    hindered-rotors:\n      - {constant: 5.3 cm-1, barrier: -10 cm-1, fold: 3}\n"))
+	var fe *FieldError
+	if !errors.As(err, &fe) || !strings.Contains(fe.Path, "hindered-rotors[0]") {
+		t.Errorf("negative barrier: %v", err)
+	}
+}
+
 // Tunnelling needs the transition state's imaginary frequency.
 func TestTunnellingNeedsImaginaryFrequency(t *testing.T) {
 	doc := strings.Replace(strings.Replace(minimal, "    imaginary-frequency: 800 cm-1\n", "", 1),

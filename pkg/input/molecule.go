@@ -152,7 +152,67 @@ func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) 
 		}
 		m.LJ = lj
 	}
+	for i := range r.Hindered {
+		h, err := p.hindered(fmt.Sprintf("%s.hindered-rotors[%d]", path, i), &r.Hindered[i])
+		if err != nil {
+			return nil, err
+		}
+		m.Hindered = append(m.Hindered, h)
+	}
 	return m, nil
+}
+
+// hindered reads {constant: 5.3 cm-1 (or inertia: 3.2 amu*angstrom^2),
+// barrier: 1000 cm-1, fold: 3, symmetry: 3, fourier: {unit: cm-1, values: [..]}}.
+func (p *parser) hindered(path string, r *rawHindered) (rrkm.HinderedRotor, error) {
+	var h rrkm.HinderedRotor
+	var err error
+	switch {
+	case given(&r.Constant) && given(&r.Inertia):
+		return h, p.errAt(path+".inertia", &r.Inertia, problemf("give constant or inertia, not both"), "")
+	case given(&r.Constant):
+		if h.B, err = p.quantity(path+".constant", &r.Constant, units.RotConst); err != nil {
+			return h, err
+		}
+	case given(&r.Inertia):
+		i, err := p.quantity(path+".inertia", &r.Inertia, units.Inertia)
+		if err != nil {
+			return h, err
+		}
+		if !(i > 0) {
+			return h, p.errAt(path+".inertia", &r.Inertia, problemf("must be positive"), "")
+		}
+		h.B = units.RotConstFromInertia / i
+	default:
+		return h, p.missing(path+".constant", "give the torsion's rotational constant (e.g. constant: 5.3 cm-1) or its reduced moment (inertia: 3.2 amu*angstrom^2)")
+	}
+	if !given(&r.Barrier) {
+		return h, p.missing(path+".barrier", "give the torsional barrier V0, e.g. barrier: 1000 cm-1 (0 for a free rotor)")
+	}
+	if h.V0, err = p.quantity(path+".barrier", &r.Barrier, units.Energy); err != nil {
+		return h, err
+	}
+	h.Fold = 1
+	if given(&r.Fold) {
+		if h.Fold, err = p.integer(path+".fold", &r.Fold); err != nil {
+			return h, err
+		}
+	}
+	if given(&r.Symmetry) {
+		if h.Symmetry, err = p.integer(path+".symmetry", &r.Symmetry); err != nil {
+			return h, err
+		}
+	}
+	if r.Fourier != nil {
+		if h.Cos, _, err = p.list(path+".fourier", r.Fourier, units.Energy); err != nil {
+			return h, err
+		}
+	}
+	if err := h.Validate(); err != nil {
+		return h, &FieldError{File: p.file, Path: path, Err: err,
+			Hint: "constant > 0, barrier ≥ 0, fold ≥ 1, symmetry dividing fold"}
+	}
+	return h, nil
 }
 
 // imaginary reads an imaginary frequency and returns its magnitude in cm⁻¹.

@@ -38,6 +38,17 @@ type rawMolecule struct {
 	OpticalIsomers yaml.Node    `yaml:"optical-isomers"`
 	Electronic     []*rawLevel  `yaml:"electronic"`
 	LennardJones   *rawLJ       `yaml:"lennard-jones"`
+	Hindered       []rawHindered `yaml:"hindered-rotors"`
+}
+
+// rawHindered is one hindered internal rotor.
+type rawHindered struct {
+	Constant yaml.Node `yaml:"constant"` // rotational constant of the torsion
+	Inertia  yaml.Node `yaml:"inertia"`  // or its reduced moment of inertia
+	Barrier  yaml.Node `yaml:"barrier"`
+	Fold     yaml.Node `yaml:"fold"`
+	Symmetry yaml.Node `yaml:"symmetry"`
+	Fourier  *rawList  `yaml:"fourier"`
 }
 
 // rawList is a list of numbers with one unit: {unit: cm-1, values: [...]}.
