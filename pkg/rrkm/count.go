@@ -186,6 +186,63 @@ func (c *Counter) IntegratedSum(e float64) float64 {
 	return e*c.cum0[k] - c.fine*c.cum1[k]
 }
 
+// fracSum returns the Riemann–Liouville integral of order q ≥ 0 of the sum
+// of states, I_q(e) = ∫₀^e W(x)·(e − x)^(q−1)/Γ(q) dx, in cm⁻¹^q: I_0 = W
+// (Sum), I_1 = ∫W (IntegratedSum). The comb convolved with the rotors'
+// W_rot(x) = B·x^(D/2)/Γ(D/2+1) and then with x^(q−1)/Γ(q) is the comb
+// convolved with B·x^(D/2+q)/Γ(D/2+q+1) (the Beta integral), so
+//
+//	I_q(e) = B/Γ(D/2+q+1) · Σ_{jδ<e} c_j·(e − jδ)^(D/2+q),
+//
+// evaluated by powerSum. ps is the comb's powerSum for a species without
+// rotors (nil otherwise); it is passed in so that the Counter, which may be
+// shared between goroutines, is never modified.
+func (c *Counter) fracSum(e, q float64, ps *powerSum) float64 {
+	switch {
+	case q == 0:
+		return c.Sum(e)
+	case q == 1 && c.rot == nil:
+		return c.IntegratedSum(e) // exact from prefix sums
+	case e <= 0:
+		return 0
+	}
+	c.check(e)
+	if c.rot != nil {
+		ps = c.rot
+	}
+	p := float64(c.rotDim)/2 + q
+	// B/Γ(p+1) in log space: Γ(p+1) overflows beyond p ≈ 171 and e^p may
+	// overflow while their ratio does not.
+	lg, _ := math.Lgamma(p + 1)
+	return mulExp(ps.at(e, p), math.Log(c.rotB)-lg)
+}
+
+// mulExp returns x·e^l without spurious underflow or overflow of e^l alone:
+// if e^l or the product is not a normal number, it is formed as
+// ±e^(l + ln|x|). Zero, infinite and NaN x are returned as they are.
+func mulExp(x, l float64) float64 {
+	if x == 0 || math.IsInf(x, 0) || math.IsNaN(x) {
+		return x
+	}
+	if x < 0 {
+		return -mulExp(-x, l)
+	}
+	f := math.Exp(l)
+	if r := x * f; f >= 0x1p-1022 && !math.IsInf(f, 0) && r >= 0x1p-1022 && !math.IsInf(r, 0) {
+		return r
+	}
+	return math.Exp(l + math.Log(x))
+}
+
+// combPowerSum returns the powerSum fracSum needs for a species without
+// rotors, nil if it needs none.
+func (c *Counter) combPowerSum(q float64) *powerSum {
+	if c.rot != nil || q == 0 || q == 1 {
+		return nil
+	}
+	return newPowerSum(c.comb, c.fine)
+}
+
 func (c *Counter) check(e float64) {
 	if e > c.ceiling*(1+1e-12)+c.fine {
 		panic(fmt.Sprintf("rrkm: species %q: energy %v cm-1 above the counted ceiling %v cm-1", c.species.Name, e, c.ceiling))

@@ -27,6 +27,12 @@
 // (Holbrook, Pilling & Robertson, Unimolecular Reactions, 2nd ed., Wiley 1996,
 // ch. 4 and 6).
 //
+// Channels without a transition state are given by a modified-Arrhenius
+// k∞(T) = A·(T/T0)^n·exp(−E∞/kT); ILTMicro turns it into k(E) by inverse
+// Laplace transform over the reactant's own density (Forst, Theory of
+// Unimolecular Reactions, 1973; Davies, Green & Pilling, Chem. Phys. Lett.
+// 126, 373, 1986), with grain integrals as exact as the counts.
+//
 // External symmetry numbers and optical isomers enter only through the
 // reaction-path degeneracy L = σ_R·m‡/(σ‡·m_R) (Pollak & Pechukas, J. Am. Chem.
 // Soc. 100, 2984, 1978); the densities and partition functions here exclude

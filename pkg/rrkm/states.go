@@ -73,6 +73,23 @@ func (c *Counter) AveragedSums(g Grains, offset float64) []float64 {
 	return out
 }
 
+// fracCounts returns, per grain, the exact integral over the grain of
+// [ρ ⊗ x^(q−1)/Γ(q)](E − offset), q ≥ 0 (for q = 0 the kernel is δ(x)): the
+// differences of fracSum at the grain edges. q = 0 gives Counts(g, offset),
+// q = 1 gives Δ·AveragedSums(g, offset).
+func (c *Counter) fracCounts(g Grains, offset, q float64) []float64 {
+	c.need(g, offset)
+	ps := c.combPowerSum(q)
+	out := make([]float64, g.N)
+	lo := c.fracSum(-0.5*g.Width-offset, q, ps)
+	for i := range out {
+		hi := c.fracSum((float64(i)+0.5)*g.Width-offset, q, ps)
+		out[i] = hi - lo
+		lo = hi
+	}
+	return out
+}
+
 func (c *Counter) need(g Grains, offset float64) {
 	if top := g.Top() - offset; top > c.ceiling+c.fine {
 		panic(fmt.Sprintf("rrkm: species %q: grains reach %v cm-1, counted only to %v cm-1", c.species.Name, top, c.ceiling))
