@@ -308,6 +308,7 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 		}
 	}
 	p := &prepared{w: NewWell(total, ch.Reactant, tK), eff: tr.efficiency()}
+	p.w.E0 = ch.lowestE0()
 	p.w.KC = make([][]float64, len(kc))
 	for c, ks := range kc {
 		p.w.KC[c] = make([]float64, p.w.N())
@@ -315,7 +316,7 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 			p.w.KC[c][i] = ks[gi]
 		}
 	}
-	if p.w.N() < 2 || p.w.K[0] > 0 {
+	if p.w.N() < 2 || p.w.belowFloor() == 0 {
 		return nil, fmt.Errorf("collision: the grid (%d grains of %.3g cm-1) has no grain below the threshold", p.w.N(), grain)
 	}
 	if !tr.Strong {
@@ -370,10 +371,10 @@ func (p *prepared) k0PerOmega() (float64, []float64, error) {
 	w := p.w
 	kc := make([]float64, len(w.KC))
 	if p.kernel == nil {
-		for i, f := range w.F {
+		for i := w.belowFloor(); i < w.N(); i++ {
 			if k := w.K[i]; k > 0 {
 				for c := range kc {
-					kc[c] += p.eff * f * w.KC[c][i] / k
+					kc[c] += p.eff * w.F[i] * w.KC[c][i] / k
 				}
 			}
 		}
@@ -386,6 +387,9 @@ func (p *prepared) k0PerOmega() (float64, []float64, error) {
 	nk := len(s.Population)
 	for i, n := range s.Population {
 		for m := nk; m < min(w.N(), i+p.kernel.Band+1); m++ {
+			if w.K[m] == 0 {
+				continue
+			}
 			pm := p.kernel.At(m, i) * n
 			for c := range kc {
 				kc[c] += pm * w.KC[c][m] / w.K[m]

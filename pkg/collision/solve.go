@@ -100,10 +100,7 @@ func build(w *Well, k *Kernel, omega float64) *system {
 // threshold with ω = 1, every grain with k > 0 absorbing, and loss_i the
 // probability of a collision from i into an absorbing grain.
 func buildLowPressure(w *Well, k *Kernel) *system {
-	nk := 0
-	for nk < w.N() && w.K[nk] == 0 {
-		nk++
-	}
+	nk := w.belowFloor()
 	op := newCollisionOperator(w, k, nk)
 	return &system{a: op.c, loss: op.escape, sqf: sqrtF(w, nk)}
 }
@@ -154,6 +151,24 @@ func (s *system) eigen() (Solution, error) {
 	return Solution{}, fmt.Errorf("%w after %d inverse iterations", ErrNoConvergence, maxIterations)
 }
 
+// ReactiveFloor is the k(E) in s⁻¹ below which a grain under the classical
+// threshold counts as non-reactive in the low-pressure limit. Without
+// tunnelling such grains have k = 0 exactly; with it, grains deep under the
+// barrier have tiny k(E) > 0, and they react far more slowly than molecules
+// collide at any pressure of interest (ω is above 1 s⁻¹ even at 1e-9 bar), so
+// k0 is the limit for ω well above the floor.
+const ReactiveFloor = 1e-6
+
+// belowFloor returns the number of leading non-reactive grains: k = 0, or,
+// below the lowest classical threshold E0 (tunnelling), k below the floor.
+func (w *Well) belowFloor() int {
+	nk := 0
+	for nk < w.N() && (w.K[nk] == 0 || w.E[nk] < w.E0 && w.K[nk] < ReactiveFloor) {
+		nk++
+	}
+	return nk
+}
+
 // Solve returns k_uni for collision frequency omega (s⁻¹) with kernel k.
 func (w *Well) Solve(k *Kernel, omega float64) (Solution, error) {
 	if !(omega > 0) || math.IsInf(omega, 0) {
@@ -166,7 +181,7 @@ func (w *Well) Solve(k *Kernel, omega float64) (Solution, error) {
 // grain with k > 0 is absorbing, and the rate is the collisional flux into
 // them from the grains below threshold in their slowest mode.
 func (w *Well) LowPressure(k *Kernel) (Solution, error) {
-	if w.N() == 0 || w.K[0] > 0 {
+	if w.belowFloor() == 0 {
 		return Solution{}, errors.New("collision: no grain below threshold")
 	}
 	return buildLowPressure(w, k).eigen()

@@ -89,12 +89,13 @@ func (w *Well) StrongCollider(omega float64) float64 {
 }
 
 // StrongColliderK0 returns the strong-collider low-pressure limit divided by
-// the collision frequency: the thermal population of the reactive grains.
+// the collision frequency: the thermal population of the reactive grains
+// (see belowFloor).
 func (w *Well) StrongColliderK0() float64 {
 	s := 0.0
-	for i, f := range w.F {
+	for i := w.belowFloor(); i < w.N(); i++ {
 		if w.K[i] > 0 {
-			s += f
+			s += w.F[i]
 		}
 	}
 	return s
