@@ -33,6 +33,16 @@
 // Unimolecular Reactions, 1973; Davies, Green & Pilling, Chem. Phys. Lett.
 // 126, 373, 1986), with grain integrals as exact as the counts.
 //
+// Tunnelling: Wigner's correction (Wigner 1932) and the exact transmission
+// probability of the asymmetric Eckart barrier (Eckart, Phys. Rev. 35, 1303,
+// 1930; in the form of Johnston & Heicklen, J. Phys. Chem. 66, 532, 1962),
+// fixed by the imaginary frequency and the zero-point-corrected forward and
+// reverse barriers, with energies from the reactant's zero-point level, so
+// that the barrier top is at E0. The thermal factor κ(T) multiplies k∞; the
+// microcanonical k(E) uses N‡(E) = ∫ρ‡(x)P(E − x)dx, the transition state's
+// density convolved with the transmission probability (Miller, J. Am. Chem.
+// Soc. 101, 6810, 1979), in place of W‡(E − E0), and is positive below E0.
+//
 // External symmetry numbers and optical isomers enter only through the
 // reaction-path degeneracy L = σ_R·m‡/(σ‡·m_R) (Pollak & Pechukas, J. Am. Chem.
 // Soc. 100, 2984, 1978); the densities and partition functions here exclude

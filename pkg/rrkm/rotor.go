@@ -1,6 +1,10 @@
 package rrkm
 
-import "math"
+import (
+	"math"
+
+	"gonum.org/v1/gonum/floats"
+)
 
 // powerSum evaluates S_p(x) = Σ_j c_j·(x − jδ)^p over the j with jδ < x, the
 // convolution of a fine-grain comb with a power-law kernel (a classical rotor's
@@ -140,4 +144,56 @@ func powHalf(y float64, twoP int) float64 {
 		r *= math.Sqrt(y)
 	}
 	return r
+}
+
+// atHalfNodes returns S_p((j+½)δ) for j = 0 … jmax, the values that at
+// returns one by one, with the powers of the near part taken from a table of
+// ((k+½)δ)^p instead of a square root per state: the fine-grain sums of
+// states that the tunnelling convolution needs.
+func (ps *powerSum) atHalfNodes(jmax int, p float64) []float64 {
+	block := ps.block
+	twoP := int(2 * p)
+	if float64(twoP) != 2*p || twoP <= 0 {
+		panic("rrkm: powerSum exponent must be a positive multiple of 1/2")
+	}
+	var coef [moments]float64
+	coef[0] = 1
+	for k := 1; k < moments; k++ {
+		coef[k] = -coef[k-1] * (p - float64(k-1)) / float64(k)
+	}
+	// rev[i] = ((nt−1−i+½)δ)^p, so that the near part for point jp is a dot
+	// product running forwards through both the comb and rev.
+	nt := (nearBlocks + 1) * block
+	rev := make([]float64, nt)
+	for k := range nt {
+		rev[nt-1-k] = powHalf((float64(k)+0.5)*ps.delta, twoP)
+	}
+	out := make([]float64, jmax+1)
+	for jp := range out {
+		x := (float64(jp) + 0.5) * ps.delta
+		last := min(jp, len(ps.c)-1)
+		farBlocks := min(max(last/block-nearBlocks, 0), len(ps.mom))
+		sum := 0.0
+		for b := range farBlocks {
+			y := x - (float64(b*block)+float64(block-1)/2)*ps.delta
+			inv := 1 / y
+			t, r := 0.0, 1.0
+			m := &ps.mom[b]
+			for k := range moments {
+				t += coef[k] * m[k] * r
+				r *= inv
+			}
+			sum += powHalf(y, twoP) * t
+		}
+		lo := farBlocks * block
+		// Beyond the last whole block the near part can outgrow the table.
+		for ; jp-lo >= nt; lo++ {
+			sum += ps.c[lo] * powHalf(x-float64(lo)*ps.delta, twoP)
+		}
+		if lo <= last {
+			sum += floats.Dot(ps.c[lo:last+1], rev[nt-1-jp+lo:nt-jp+last])
+		}
+		out[jp] = sum
+	}
+	return out
 }

@@ -33,6 +33,19 @@ func KInf(reactant, ts *Species, l, tK float64) float64 {
 	return l * units.LightCm * kt * ts.InternalQ(tK) / reactant.InternalQ(tK) * math.Exp(-ts.E0/kt)
 }
 
+// KInfTunnel returns canonical TST with Eckart tunnelling, k∞(T)·κ(T) in
+// s⁻¹ (Johnston & Heicklen, J. Phys. Chem. 66, 532, 1962), evaluated as
+// L·c·(Q‡/Q)·∫P(E)e^(−E/kT)dE so that it stays finite where k∞ underflows
+// and κ overflows. A nil e gives KInf. It is the Boltzmann average of
+// RRKMTunnel's k(E). KInfTunnel panics if e.V1 is not ts.E0 or e is invalid.
+func KInfTunnel(reactant, ts *Species, l, tK float64, e *Eckart) float64 {
+	if e == nil {
+		return KInf(reactant, ts, l, tK)
+	}
+	checkTop("KInfTunnel", ts, e)
+	return l * units.LightCm * ts.InternalQ(tK) / reactant.InternalQ(tK) * math.Exp(e.logLaplace(tK))
+}
+
 // ThermalAverage returns the Boltzmann average Σ N_i k_i e^(−E_i/kT) / Σ N_i
 // e^(−E_i/kT) of a microcanonical rate k over grains with counts N.
 func ThermalAverage(counts, k []float64, g Grains, tK float64) float64 {
