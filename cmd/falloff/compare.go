@@ -109,7 +109,7 @@ func compareModels(o compareOptions, m *input.Model, s streams) (*compareReport,
 		}
 		alphas = []float64{0.5 * a, a, 1.5 * a}
 	}
-	ch, err := newMasterChannel(m, m.EnergyGrid.Ceiling)
+	ch, _, err := newNetwork(m, m.EnergyGrid.Ceiling)
 	if err != nil {
 		return nil, err
 	}
@@ -226,22 +226,4 @@ func writeComparePlot(path string, rep *compareReport) error {
 		return &numericalError{err}
 	}
 	return export.WriteFileAtomic(path, b)
-}
-
-// newMasterChannel counts the reactant and transition state for the master
-// equation, up to the automatic ceiling at the highest temperature (or the
-// given ceiling cm⁻¹, if positive) plus the 10 kT the convergence check may
-// add.
-func newMasterChannel(m *input.Model, ceiling float64) (collision.Channel, error) {
-	r, ts := m.ReactantAndTS()
-	ch := &channel{name: r.Name + " -> " + ts.Name, reactant: r, ts: ts}
-	ktMax := units.KT(m.Temperatures[len(m.Temperatures)-1])
-	top := ts.E0 + (collision.CeilingKTMax+10)*ktMax
-	if ceiling > 0 {
-		top = ceiling + 10*ktMax
-	}
-	if err := ch.count(m, top); err != nil {
-		return collision.Channel{}, err
-	}
-	return collision.Channel{Reactant: ch.rc, TS: ch.tc, L: pathDegeneracy(m), E0: ts.E0}, nil
 }

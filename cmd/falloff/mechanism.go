@@ -180,7 +180,16 @@ func (mf *mechanismFiles) flush() error {
 // writeMechanism writes the recommended form as reactions.yaml and
 // reactions.txt, every fitted form as reactions-FORM.yaml/.txt, the grid as
 // grid.csv and the whole report as summary.json, each atomically.
-func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d *directed, res *fit.Results, u export.Units, skeleton bool) (*mechanismFiles, error) {
+// mechEntry is one reaction to write: a channel in its direction with its
+// fits.
+type mechEntry struct {
+	label               string
+	reactants, products []string
+	order               int
+	res                 *fit.Results
+}
+
+func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d *directed, entries []mechEntry, u export.Units, skeleton bool) (*mechanismFiles, error) {
 	mf := &mechanismFiles{dir: dir}
 	sum := sha256.Sum256(src)
 	h := export.Header{Title: m.Title, Input: m.File, Checksum: fmt.Sprintf("sha256:%x", sum), Program: "falloff " + version,
@@ -191,23 +200,39 @@ func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d 
 			"Collision model: " + rep.Transfer,
 			fmt.Sprintf("Bath gas: %s (%s)", rep.Bath.Gas, rep.Bath.Source),
 		}}
-	reps := res.Reports()
+	formSet := map[string]bool{}
+	for _, e := range entries {
+		prefix, fitWord, recWord := "", "Fit", "Recommended form"
+		if len(entries) > 1 {
+			prefix, fitWord, recWord = "Channel "+e.label+": ", "fit", "recommended form"
+		}
+		reps := e.res.Reports()
+		var names []string
+		for n := range reps {
+			names = append(names, n)
+			formSet[n] = true
+		}
+		sort.Strings(names)
+		for _, n := range names {
+			r := reps[n]
+			h.Lines = append(h.Lines, fmt.Sprintf("%s%s %s: max error %.3g %%, rms %.3g %% over the grid", prefix, fitWord, n, r.MaxErrorPct, r.RMSErrorPct))
+		}
+		if e.res.Recommended != "" {
+			h.Lines = append(h.Lines, prefix+recWord+": "+e.res.Recommended+" ("+e.res.Reason+")")
+		}
+	}
 	var forms []string
-	for n := range reps {
+	for n := range formSet {
 		forms = append(forms, n)
 	}
 	sort.Strings(forms)
-	for _, n := range forms {
-		r := reps[n]
-		h.Lines = append(h.Lines, fmt.Sprintf("Fit %s: max error %.3g %%, rms %.3g %% over the grid", n, r.MaxErrorPct, r.RMSErrorPct))
-	}
-	if res.Recommended != "" {
-		h.Lines = append(h.Lines, "Recommended form: "+res.Recommended+" ("+res.Reason+")")
-	}
-	entry := func(name string) export.Reaction {
-		r := reps[name]
-		return export.Reaction{Reactants: d.reactants, Products: d.products, Order: d.order, Form: res.Form(name),
-			Note: fmt.Sprintf("%s fit, max error %.3g %% (worst at %s K, %s bar)", name, r.MaxErrorPct, num(r.WorstT), num(r.WorstP/units.BarPa))}
+	entry := func(e mechEntry, name string) (export.Reaction, bool) {
+		r, ok := e.res.Reports()[name]
+		if !ok {
+			return export.Reaction{}, false
+		}
+		return export.Reaction{Reactants: e.reactants, Products: e.products, Order: e.order, Form: e.res.Form(name),
+			Note: fmt.Sprintf("%s fit, max error %.3g %% (worst at %s K, %s bar)", name, r.MaxErrorPct, num(r.WorstT), num(r.WorstP/units.BarPa))}, true
 	}
 	emit := func(base string, rs []export.Reaction) error {
 		y, err := export.YAML(h, u, rs)
@@ -223,13 +248,25 @@ func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d 
 		}
 		return mf.write(base+".txt", t)
 	}
-	if res.Recommended != "" {
-		if err := emit("reactions", []export.Reaction{entry(res.Recommended)}); err != nil {
+	var best []export.Reaction
+	for _, e := range entries {
+		if r, ok := entry(e, e.res.Recommended); ok {
+			best = append(best, r)
+		}
+	}
+	if len(best) > 0 {
+		if err := emit("reactions", best); err != nil {
 			return nil, err
 		}
 	}
 	for _, n := range forms {
-		if err := emit("reactions-"+n, []export.Reaction{entry(n)}); err != nil {
+		var rs []export.Reaction
+		for _, e := range entries {
+			if r, ok := entry(e, n); ok {
+				rs = append(rs, r)
+			}
+		}
+		if err := emit("reactions-"+n, rs); err != nil {
 			return nil, err
 		}
 	}
@@ -247,7 +284,16 @@ func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d 
 		return nil, fmt.Errorf("--out %s: %w", dir, err)
 	}
 	if skeleton {
-		species := append(append([]string{}, d.reactants...), d.products...)
+		var species []string
+		seen := map[string]bool{}
+		for _, e := range entries {
+			for _, n := range append(append([]string{}, e.reactants...), e.products...) {
+				if !seen[n] {
+					seen[n] = true
+					species = append(species, n)
+				}
+			}
+		}
 		if err := mf.write("phase-example.yaml", export.PhaseSkeleton("reactions.yaml", species)); err != nil {
 			return nil, err
 		}

@@ -16,7 +16,6 @@ import (
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/input"
-	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
@@ -93,30 +92,43 @@ func runRatesCmd(args []string, s streams) error {
 
 // ratesReport is the JSON of `rates` (design.md §8).
 type ratesReport struct {
-	File           string       `json:"file"`
-	Reaction       string       `json:"reaction"`
-	Direction      string       `json:"direction"`
-	KUnits         string       `json:"k_units"`
-	Temperatures   []float64    `json:"temperatures_K"`
-	Pressures      []float64    `json:"pressures_Pa"`
+	File           string          `json:"file"`
+	Reaction       string          `json:"reaction"`
+	Direction      string          `json:"direction"`
+	KUnits         string          `json:"k_units"`
+	Temperatures   []float64       `json:"temperatures_K"`
+	Pressures      []float64       `json:"pressures_Pa"`
+	K              [][]float64     `json:"k"`
+	KInf           []float64       `json:"k_inf"`
+	KInfIntegrated []float64       `json:"k_inf_integrated"`
+	K0             []float64       `json:"k0"`
+	K0Units        string          `json:"k0_units"`
+	CollisionFreq  []float64       `json:"collision_frequency_per_s_per_Pa"`
+	CollisionRate  []float64       `json:"collision_rate_constant_cm3_per_molecule_per_s"`
+	Centre         []float64       `json:"falloff_centre_Pa"`
+	Grain          []float64       `json:"grain_cm-1"`
+	Ceiling        []float64       `json:"ceiling_cm-1"`
+	Convergence    *float64        `json:"convergence_max_change,omitempty"`
+	Transfer       string          `json:"energy_transfer"`
+	Bath           bathInfo        `json:"bath"`
+	PathDegeneracy float64         `json:"path_degeneracy"`
+	Fits           *fit.Results    `json:"fits,omitempty"`
+	Channels       []channelReport `json:"channels,omitempty"`
+	Files          []string        `json:"files_written,omitempty"`
+	Warnings       []string        `json:"warnings"`
+	Caution        string          `json:"caution"`
+}
+
+// channelReport is one channel's share of the grid (competing channels).
+type channelReport struct {
+	Name           string       `json:"name"`
+	Products       []string     `json:"products"`
 	K              [][]float64  `json:"k"`
 	KInf           []float64    `json:"k_inf"`
 	KInfIntegrated []float64    `json:"k_inf_integrated"`
 	K0             []float64    `json:"k0"`
-	K0Units        string       `json:"k0_units"`
-	CollisionFreq  []float64    `json:"collision_frequency_per_s_per_Pa"`
-	CollisionRate  []float64    `json:"collision_rate_constant_cm3_per_molecule_per_s"`
-	Centre         []float64    `json:"falloff_centre_Pa"`
-	Grain          []float64    `json:"grain_cm-1"`
-	Ceiling        []float64    `json:"ceiling_cm-1"`
-	Convergence    *float64     `json:"convergence_max_change,omitempty"`
-	Transfer       string       `json:"energy_transfer"`
-	Bath           bathInfo     `json:"bath"`
-	PathDegeneracy float64      `json:"path_degeneracy"`
+	Branching      [][]float64  `json:"branching"`
 	Fits           *fit.Results `json:"fits,omitempty"`
-	Files          []string     `json:"files_written,omitempty"`
-	Warnings       []string     `json:"warnings"`
-	Caution        string       `json:"caution"`
 }
 
 // convergenceLimit is the change on halving the grain or raising the
@@ -153,7 +165,7 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 	if ceiling > 0 && ceiling <= ts.E0 {
 		return nil, usagef("--ceiling %q: not above the threshold %.0f cm-1", o.ceiling, ts.E0)
 	}
-	ch, err := newMasterChannel(m, ceiling)
+	ch, specs, err := newNetwork(m, ceiling)
 	if err != nil {
 		return nil, err
 	}
@@ -171,7 +183,11 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 		Temperatures: m.Temperatures, Pressures: m.Pressures, K: res.K(), Transfer: tr.String(), Bath: bath,
 		PathDegeneracy: ch.L, Warnings: append([]string{}, m.Warnings...), Caution: caution}
 	for _, row := range res.Rows {
-		rep.KInf = append(rep.KInf, rrkm.KInf(&r.Species, &ts.Species, ch.L, row.T))
+		kinf := 0.0
+		for _, c := range specs {
+			kinf += c.kInf(&r.Species, row.T)
+		}
+		rep.KInf = append(rep.KInf, kinf)
 		rep.KInfIntegrated = append(rep.KInfIntegrated, row.KInfME)
 		rep.K0 = append(rep.K0, row.K0)
 		rep.CollisionRate = append(rep.CollisionRate, row.Z)
@@ -181,6 +197,23 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 		rep.Ceiling = append(rep.Ceiling, row.Ceiling)
 		if row.Rescaled > 0 {
 			_ = row // reported in docs: a few sparse low grains are normal
+		}
+	}
+	if len(specs) > 1 {
+		for c, spec := range specs {
+			cr := channelReport{Name: spec.label(), Products: spec.products}
+			for _, row := range res.Rows {
+				cr.K = append(cr.K, row.KC[c])
+				cr.KInf = append(cr.KInf, spec.kInf(&r.Species, row.T))
+				cr.KInfIntegrated = append(cr.KInfIntegrated, row.KInfC[c])
+				cr.K0 = append(cr.K0, row.K0C[c])
+				b := make([]float64, len(row.K))
+				for j, k := range row.K {
+					b[j] = row.KC[c][j] / k
+				}
+				cr.Branching = append(cr.Branching, b)
+			}
+			rep.Channels = append(rep.Channels, cr)
 		}
 	}
 	if c := res.Convergence; !math.IsNaN(c) {
@@ -224,11 +257,31 @@ func finishRates(o ratesOptions, m *input.Model, rep *ratesReport, s streams) (*
 		return nil, err
 	}
 	rep.Fits = res
+	r, _ := m.ReactantAndTS()
+	entries := []mechEntry{{label: rep.Reaction, reactants: d.reactants, products: d.products, order: d.order, res: res}}
+	if len(rep.Channels) > 0 {
+		if d.direction == recombination {
+			return nil, usagef("--direction recombination is for a single channel; with competing channels write them forward")
+		}
+		entries = entries[:0]
+		for i := range rep.Channels {
+			cr := &rep.Channels[i]
+			cd := &directed{direction: forward, order: 1, k: cr.K, kInf: cr.KInfIntegrated, k0: cr.K0, kUnits: "s-1"}
+			if cr.Fits, err = fitGrid(m, rep, cd, o.tolerancePct/100); err != nil {
+				return nil, err
+			}
+			prods := cr.Products
+			if len(prods) == 0 {
+				prods = []string{r.Name + "-products-" + strconv.Itoa(i+1)}
+			}
+			entries = append(entries, mechEntry{label: cr.Name, reactants: []string{r.Name}, products: prods, order: 1, res: cr.Fits})
+		}
+	}
 	if res.Recommended == "" {
 		rep.Warnings = append(rep.Warnings, m.File+": no fitted form meets the tolerance: "+res.Reason)
 	}
 	if o.out != "" {
-		mf, err := writeMechanism(o.out, m, m.Source, rep, d, res, o.units(), o.skeleton)
+		mf, err := writeMechanism(o.out, m, m.Source, rep, d, entries, o.units(), o.skeleton)
 		if err != nil {
 			return nil, err
 		}
@@ -327,6 +380,31 @@ func printRates(s streams, m *input.Model, rep *ratesReport) error {
 	if err := renderTable(s.out, header, rows); err != nil {
 		return err
 	}
+	if len(rep.Channels) > 0 {
+		fmt.Fprintln(s.out, "\nbranching fractions k_channel/k and k∞ per channel:")
+		header := []string{"T / K", "P / bar"}
+		for _, c := range rep.Channels {
+			header = append(header, c.Name)
+		}
+		rows = rows[:0]
+		for i, t := range rep.Temperatures {
+			for j, p := range rep.Pressures {
+				row := []string{num(t), num(p / units.BarPa)}
+				for _, c := range rep.Channels {
+					row = append(row, num(c.Branching[i][j]))
+				}
+				rows = append(rows, row)
+			}
+			row := []string{num(t), "k∞ / s-1"}
+			for _, c := range rep.Channels {
+				row = append(row, num(c.KInf[i]))
+			}
+			rows = append(rows, row)
+		}
+		if err := renderTable(s.out, header, rows); err != nil {
+			return err
+		}
+	}
 	if rep.Convergence != nil {
 		fmt.Fprintf(s.out, "\nconvergence: halving the grain or raising the ceiling by 10 kT changes k by at most %.2g %%\n", 100**rep.Convergence)
 	}
@@ -339,6 +417,15 @@ func printRates(s streams, m *input.Model, rep *ratesReport) error {
 			fmt.Fprintf(s.out, "recommended: %s (%s)\n", rep.Fits.Recommended, rep.Fits.Reason)
 		} else {
 			fmt.Fprintf(s.out, "no form meets the tolerance: %s\n", rep.Fits.Reason)
+		}
+		for _, c := range rep.Channels {
+			if c.Fits == nil {
+				continue
+			}
+			fmt.Fprintf(s.out, "\nfits to channel %s:\n", c.Name)
+			if err := renderTable(s.out, []string{"form", "max error / %", "rms error / %", "worst point", "parameters", ""}, fitRows(c.Fits)); err != nil {
+				return err
+			}
 		}
 	}
 	if len(rep.Files) > 0 {

@@ -28,6 +28,7 @@ type qEntry struct {
 	Vib     float64 `json:"Q_vib"`
 	Rot     float64 `json:"Q_rot"`
 	El      float64 `json:"Q_el"`
+	Hind    float64 `json:"Q_hindered"`
 	Counted float64 `json:"Q_from_counts"`
 }
 
@@ -55,7 +56,7 @@ func statesOf(sp *rrkm.Species, c *rrkm.Counter, g rrkm.Grains, temps []float64)
 		out.Energies[i] = g.Energy(i)
 	}
 	for _, t := range temps {
-		q := qEntry{T: t, Q: sp.InternalQ(t), Vib: sp.VibrationalQ(t), Rot: sp.RotationalQ(t), El: sp.ElectronicQ(t),
+		q := qEntry{T: t, Q: sp.InternalQ(t), Vib: sp.VibrationalQ(t), Rot: sp.RotationalQ(t), El: sp.ElectronicQ(t), Hind: sp.HinderedQ(t),
 			Counted: rrkm.CountedQ(counts, g, t)}
 		if err := finite(sp.Name+" partition function", q.Q, q.Counted); err != nil {
 			return out, err
@@ -98,9 +99,9 @@ func runStates(o statesOptions, m *input.Model, s streams) error {
 		fmt.Fprintf(s.out, "\n%s: partition functions\n", st.Name)
 		var rows [][]string
 		for _, q := range st.Q {
-			rows = append(rows, []string{num(q.T), num(q.Vib), num(q.Rot), num(q.El), num(q.Q), num6(q.Counted / q.Q)})
+			rows = append(rows, []string{num(q.T), num(q.Vib), num(q.Rot), num(q.Hind), num(q.El), num(q.Q), num6(q.Counted / q.Q)})
 		}
-		if err := renderTable(s.out, []string{"T / K", "Q_vib", "Q_rot", "Q_el", "Q", "Q(counts)/Q"}, rows); err != nil {
+		if err := renderTable(s.out, []string{"T / K", "Q_vib", "Q_rot", "Q_hindered", "Q_el", "Q", "Q(counts)/Q"}, rows); err != nil {
 			return err
 		}
 		fmt.Fprintf(s.out, "\n%s: states on %s cm-1 grains\n", st.Name, num(st.Grain))

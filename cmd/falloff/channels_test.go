@@ -1,0 +1,66 @@
+package main
+
+import (
+	"encoding/json"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+const channelsFile = "../../testdata/ch3nc-channels.yaml"
+
+// Competing channels through `rates`: a transition state with Eckart
+// tunnelling, a second one with Wigner's correction and a barrierless
+// channel (inverse Laplace transform). Facts of the theory checked: the
+// channels' rates sum to the total to rounding, branching fractions lie in
+// [0, 1] and sum to 1, and each channel's high-pressure limit on the
+// master-equation grains equals its canonical k∞ (TST with its tunnelling
+// factor, or the given k∞ of the barrierless channel) within 1 % (grain
+// error of kT/5 grains).
+func TestChannelsRates(t *testing.T) {
+	dir := t.TempDir()
+	code, out, errs := runCLI(t, "rates", "--json", "--skip-check", "--out", dir, channelsFile)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var r ratesReport
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Channels) != 3 {
+		t.Fatalf("%d channels", len(r.Channels))
+	}
+	for i := range r.Temperatures {
+		for j := range r.Pressures {
+			sum, bsum := 0.0, 0.0
+			for _, c := range r.Channels {
+				sum += c.K[i][j]
+				b := c.Branching[i][j]
+				if !(b >= 0 && b <= 1) {
+					t.Errorf("branching %v", b)
+				}
+				bsum += b
+			}
+			if math.Abs(sum/r.K[i][j]-1) > 1e-12 || math.Abs(bsum-1) > 1e-12 {
+				t.Errorf("T %v P %v: channels sum to %v of %v, branching %v", r.Temperatures[i], r.Pressures[j], sum, r.K[i][j], bsum)
+			}
+		}
+		for _, c := range r.Channels {
+			if d := c.KInfIntegrated[i]/c.KInf[i] - 1; math.Abs(d) > 0.01 {
+				t.Errorf("%s at %v K: k∞ on the grains / canonical − 1 = %.3g", c.Name, r.Temperatures[i], d)
+			}
+			if c.Fits == nil {
+				t.Errorf("%s: not fitted", c.Name)
+			}
+		}
+	}
+	b, err := os.ReadFile(filepath.Join(dir, "reactions.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := strings.Count(string(b), "- equation:"); n != 3 {
+		t.Errorf("reactions.yaml has %d entries, want one per channel (3)", n)
+	}
+}
