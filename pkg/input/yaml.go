@@ -30,14 +30,14 @@ type rawFile struct {
 }
 
 type rawMolecule struct {
-	Mass           yaml.Node    `yaml:"mass"`
-	Energy         yaml.Node    `yaml:"energy"`
-	Imaginary      yaml.Node    `yaml:"imaginary-frequency"`
-	Vibrations     *rawList     `yaml:"vibrations"`
-	Rotation       *rawRotation `yaml:"rotation"`
-	OpticalIsomers yaml.Node    `yaml:"optical-isomers"`
-	Electronic     []*rawLevel  `yaml:"electronic"`
-	LennardJones   *rawLJ       `yaml:"lennard-jones"`
+	Mass           yaml.Node     `yaml:"mass"`
+	Energy         yaml.Node     `yaml:"energy"`
+	Imaginary      yaml.Node     `yaml:"imaginary-frequency"`
+	Vibrations     *rawList      `yaml:"vibrations"`
+	Rotation       *rawRotation  `yaml:"rotation"`
+	OpticalIsomers yaml.Node     `yaml:"optical-isomers"`
+	Electronic     []*rawLevel   `yaml:"electronic"`
+	LennardJones   *rawLJ        `yaml:"lennard-jones"`
 	Hindered       []rawHindered `yaml:"hindered-rotors"`
 }
 
@@ -75,24 +75,24 @@ type rawLJ struct {
 }
 
 type rawReaction struct {
-	Reactant       yaml.Node `yaml:"reactant"`
-	Via            yaml.Node `yaml:"via"`
-	Products       yaml.Node `yaml:"products"`
-	PathDegeneracy yaml.Node `yaml:"path-degeneracy"`
-	ReactionEnergy yaml.Node `yaml:"reaction-energy"`
-	Tunnelling     yaml.Node `yaml:"tunnelling"`
+	Reactant       yaml.Node    `yaml:"reactant"`
+	Via            yaml.Node    `yaml:"via"`
+	Products       yaml.Node    `yaml:"products"`
+	PathDegeneracy yaml.Node    `yaml:"path-degeneracy"`
+	ReactionEnergy yaml.Node    `yaml:"reaction-energy"`
+	Tunnelling     yaml.Node    `yaml:"tunnelling"`
 	Competing      []rawChannel `yaml:"competing"`
 }
 
 // rawChannel is one entry of reaction.competing.
 type rawChannel struct {
-	Name           yaml.Node `yaml:"name"`
-	Via            yaml.Node `yaml:"via"`
+	Name           yaml.Node       `yaml:"name"`
+	Via            yaml.Node       `yaml:"via"`
 	Barrierless    *rawBarrierless `yaml:"barrierless"`
-	Products       yaml.Node `yaml:"products"`
-	PathDegeneracy yaml.Node `yaml:"path-degeneracy"`
-	ReactionEnergy yaml.Node `yaml:"reaction-energy"`
-	Tunnelling     yaml.Node `yaml:"tunnelling"`
+	Products       yaml.Node       `yaml:"products"`
+	PathDegeneracy yaml.Node       `yaml:"path-degeneracy"`
+	ReactionEnergy yaml.Node       `yaml:"reaction-energy"`
+	Tunnelling     yaml.Node       `yaml:"tunnelling"`
 }
 
 // rawBarrierless is k∞(T) = A·(T/T0)^n·exp(−energy/kT).
