@@ -64,3 +64,35 @@ func TestChannelsRates(t *testing.T) {
 		t.Errorf("reactions.yaml has %d entries, want one per channel (3)", n)
 	}
 }
+
+const barrierlessFile = "../../testdata/ch3nc-barrierless.yaml"
+
+// A barrierless main channel: k(E) from the inverse Laplace transform of the
+// given k∞(T), so the master equation's high-pressure limit returns that k∞
+// (Forst 1973) to the grain error (0.5 %); k rises with pressure and stays
+// below it. `check` says it is barrierless; `micro`, which reports a
+// transition state, refuses with a hint.
+func TestBarrierlessRates(t *testing.T) {
+	code, out, errs := runCLI(t, "rates", "--json", "--skip-check", barrierlessFile)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var r ratesReport
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatal(err)
+	}
+	for i, tk := range r.Temperatures {
+		if d := r.KInfIntegrated[i]/r.KInf[i] - 1; math.Abs(d) > 0.005 {
+			t.Errorf("%v K: k∞(ME)/k∞(given) − 1 = %.3g", tk, d)
+		}
+		for j := range r.Pressures {
+			if r.K[i][j] > r.KInfIntegrated[i]*(1+1e-9) || j > 0 && r.K[i][j] < r.K[i][j-1] {
+				t.Errorf("%v K: k not monotone or above k∞", tk)
+			}
+		}
+	}
+	if code, out, _ := runCLI(t, "check", barrierlessFile); code != exitOK || !strings.Contains(out, "via barrierless") {
+		t.Errorf("check: exit %d, %q", code, out)
+	}
+	checkFailures(t, []failCase{{"micro", []string{"micro", barrierlessFile}, exitInput, "barrierless"}})
+}

@@ -86,8 +86,12 @@ func rotationLabel(s *rrkm.Species) string {
 
 func checkSummary(m *input.Model) checkReport {
 	r, ts := m.ReactantAndTS()
+	via, tsName := "barrierless", ""
+	if ts != nil {
+		via, tsName = ts.Name, ts.Name
+	}
 	rep := checkReport{File: m.File, Title: m.Title, PathDegeneracy: pathDegeneracy(m),
-		Reaction:     fmt.Sprintf("%s -> %s (via %s)", r.Name, strings.Join(m.Reaction.Products, " + "), ts.Name),
+		Reaction:     fmt.Sprintf("%s -> %s (via %s)", r.Name, strings.Join(m.Reaction.Products, " + "), via),
 		Temperatures: m.Temperatures, Pressures: m.Pressures, Warnings: m.Warnings}
 	if rep.Warnings == nil {
 		rep.Warnings = []string{}
@@ -97,7 +101,7 @@ func checkSummary(m *input.Model) checkReport {
 		switch mol.Name {
 		case r.Name:
 			role = "reactant"
-		case ts.Name:
+		case tsName:
 			role = "transition state"
 		}
 		rep.Molecules = append(rep.Molecules, checkMolecule{Name: mol.Name, Role: role,

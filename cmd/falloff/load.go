@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"math"
 
@@ -110,6 +111,10 @@ func (o *energyOptions) resolve(m *input.Model, e0 float64) (grain, ceiling floa
 // newChannel counts the states of the model's reactant and transition state.
 func newChannel(m *input.Model, eo *energyOptions) (*channel, error) {
 	r, ts := m.ReactantAndTS()
+	if ts == nil {
+		return nil, &input.FieldError{File: m.File, Path: "reaction.barrierless", Err: errors.New("states and micro report a transition state, and this reaction's main channel is barrierless"),
+			Hint: "run rates for the barrierless channel's k(T,P)"}
+	}
 	grain, ceiling, err := eo.resolve(m, ts.E0)
 	if err != nil {
 		return nil, err
@@ -126,6 +131,9 @@ func pathDegeneracy(m *input.Model) float64 {
 		return l
 	}
 	r, ts := m.ReactantAndTS()
+	if ts == nil {
+		return 1 // a barrierless channel's A includes it
+	}
 	return rrkm.PathDegeneracy(&r.Species, &ts.Species)
 }
 

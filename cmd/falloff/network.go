@@ -30,8 +30,14 @@ type channelSpec struct {
 func channelSpecs(m *input.Model) []channelSpec {
 	r, ts := m.ReactantAndTS()
 	rx := m.Reaction
-	main := channelSpec{name: ts.Name, products: rx.Products, ts: ts, l: pathDegeneracy(m), e0: ts.E0,
-		tunnel: rx.Tunnelling, energy: rx.ReactionEnergy, hasEnergy: rx.HasReactionEnergy}
+	var main channelSpec
+	if b := rx.Barrierless; b != nil {
+		main = channelSpec{name: "barrierless", products: rx.Products, l: 1, e0: b.Energy,
+			ilt: &rrkm.ILT{A: b.A, T0: b.T0, N: b.N, EInf: b.Energy}, energy: rx.ReactionEnergy, hasEnergy: rx.HasReactionEnergy}
+	} else {
+		main = channelSpec{name: ts.Name, products: rx.Products, ts: ts, l: pathDegeneracy(m), e0: ts.E0,
+			tunnel: rx.Tunnelling, energy: rx.ReactionEnergy, hasEnergy: rx.HasReactionEnergy}
+	}
 	specs := []channelSpec{main}
 	for _, c := range rx.Competing {
 		s := channelSpec{name: c.Name, products: c.Products, tunnel: c.Tunnelling, energy: c.ReactionEnergy,

@@ -87,6 +87,9 @@ func writeRatePlots(dir string, m *input.Model, rep *ratesReport, d *directed, r
 	if err := save("arrhenius.svg", arr); err != nil {
 		return nil, err
 	}
+	if _, ts := m.ReactantAndTS(); ts == nil {
+		return written, nil // k(E) and ρ(E) plots need a transition state (see micro)
+	}
 	ch, err := newChannel(m, &energyOptions{})
 	if err != nil {
 		return nil, err

@@ -150,7 +150,8 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 		}
 	}
 	tr := newTransfer(m)
-	r, ts := m.ReactantAndTS()
+	r, _ := m.ReactantAndTS()
+	e0 := channelSpecs(m)[0].e0
 	var grain, ceiling float64
 	if o.grain != "" {
 		grain, _ = units.Parse(o.grain, units.Energy)
@@ -162,8 +163,8 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 	} else {
 		ceiling = m.EnergyGrid.Ceiling
 	}
-	if ceiling > 0 && ceiling <= ts.E0 {
-		return nil, usagef("--ceiling %q: not above the threshold %.0f cm-1", o.ceiling, ts.E0)
+	if ceiling > 0 && ceiling <= e0 {
+		return nil, usagef("--ceiling %q: not above the threshold %.0f cm-1", o.ceiling, e0)
 	}
 	ch, specs, err := newNetwork(m, ceiling)
 	if err != nil {
@@ -360,7 +361,7 @@ func printRates(s streams, m *input.Model, rep *ratesReport) error {
 		rows = append(rows, []string{num(t), num(rep.KInf[i]), num6(rep.KInfIntegrated[i] / rep.KInf[i]),
 			num(rep.K0[i] * units.Avogadro), num(rep.Centre[i] / units.BarPa), num(rep.Grain[i]), numE(rep.Ceiling[i])})
 	}
-	if err := renderTable(s.out, []string{"T / K", "k∞ TST / s-1", "k∞(ME)/k∞", "k0 / cm3 mol-1 s-1",
+	if err := renderTable(s.out, []string{"T / K", "k∞ / s-1", "k∞(ME)/k∞", "k0 / cm3 mol-1 s-1",
 		"P(k=k∞/2) / bar", "grain / cm-1", "ceiling / cm-1"}, rows); err != nil {
 		return err
 	}

@@ -68,14 +68,21 @@ func (p *parser) model(raw *rawFile) (*Model, error) {
 // crossCheck reports errors that involve more than one section.
 func (p *parser) crossCheck(m *Model, raw *rawFile) error {
 	reactant, ts := m.ReactantAndTS()
-	rp, tp := "molecules."+reactant.Name, "molecules."+ts.Name
+	rp := "molecules." + reactant.Name
 	if reactant.Mass == 0 {
 		return p.missing(rp+".mass", "the reactant's mass enters the collision frequency; give e.g. mass: 70.09 amu")
 	}
-	for _, c := range []struct {
+	checks := []struct {
 		m    *Molecule
 		path string
-	}{{reactant, rp}, {ts, tp}} {
+	}{{reactant, rp}}
+	if ts != nil {
+		checks = append(checks, struct {
+			m    *Molecule
+			path string
+		}{ts, "molecules." + ts.Name})
+	}
+	for _, c := range checks {
 		if c.m.Vibrations == nil {
 			return p.missing(c.path+".vibrations", "give the harmonic frequencies, e.g. vibrations: {unit: cm-1, values: [3010, 1450, 870]}")
 		}
@@ -100,7 +107,7 @@ func (p *parser) crossCheck(m *Model, raw *rawFile) error {
 	}
 
 	g := m.EnergyGrid
-	if g.Ceiling > 0 && g.Ceiling <= ts.E0 {
+	if g.Ceiling > 0 && ts != nil && g.Ceiling <= ts.E0 {
 		return p.errAt("energy-grid.ceiling", p.index.byPath["energy-grid.ceiling"],
 			problemf("at or below the barrier E0 = %s cm-1 of %s", fmtCm1(ts.E0), ts.Name),
 			"the ceiling must lie well above E0; delete it to have it chosen automatically")
@@ -146,6 +153,9 @@ func (p *parser) warnOdd(m *Model) {
 	}
 
 	reactant, ts := m.ReactantAndTS()
+	if ts == nil {
+		return // a barrierless main channel: no transition state to compare
+	}
 	rp, tp := "molecules."+reactant.Name, "molecules."+ts.Name
 	// With N atoms a reactant has 3N−6 real modes (3N−5 if linear) and a
 	// transition state 3N−7 (3N−6 if linear): one fewer when both are

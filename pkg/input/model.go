@@ -62,6 +62,9 @@ type Reaction struct {
 	HasReactionEnergy bool
 	// Tunnelling is "none" (default), "wigner" or "eckart".
 	Tunnelling string
+	// Barrierless, if set, makes the main channel barrierless (Via is then
+	// empty): k(E) from the inverse Laplace transform of its k∞(T).
+	Barrierless *Barrierless
 	// Competing are further channels out of the same reactant.
 	Competing []Channel
 }
@@ -180,6 +183,7 @@ func (m *Model) Molecule(name string) *Molecule {
 
 // ReactantAndTS returns the reactant and the transition state of the
 // reaction. For a Model from Parse both exist.
+// ts is nil for a barrierless main channel.
 func (m *Model) ReactantAndTS() (reactant, ts *Molecule) {
 	return m.Molecule(m.Reaction.Reactant), m.Molecule(m.Reaction.Via)
 }

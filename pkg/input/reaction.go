@@ -48,15 +48,28 @@ func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
 		return rx, p.errAt("reaction.reactant", &r.Reactant, problemf("the reactant has an energy: key, which makes it a transition state"),
 			fmt.Sprintf("the reactant is the zero of energy and has no energy:; remove it from molecules.%s or name the stable species here", reactant.Name))
 	}
-	ts, err := lookup("via", &r.Via)
-	if err != nil {
-		return rx, err
+	var ts *Molecule
+	rx.Reactant = reactant.Name
+	switch {
+	case given(&r.Via) && r.Barrierless != nil:
+		return rx, p.errAt("reaction.via", &r.Via, problemf("a channel has either via: or barrierless:, not both"), "")
+	case r.Barrierless != nil:
+		b, err := p.barrierless("reaction.barrierless", r.Barrierless)
+		if err != nil {
+			return rx, err
+		}
+		rx.Barrierless = b
+	default:
+		ts, err = lookup("via", &r.Via)
+		if err != nil {
+			return rx, err
+		}
+		if !ts.IsTS {
+			return rx, p.errAt("reaction.via", &r.Via, problemf("not a transition state: it has no energy: key"),
+				fmt.Sprintf("add energy: (the barrier E0 above the reactant's zero-point level) to molecules.%s", ts.Name))
+		}
+		rx.Via = ts.Name
 	}
-	if !ts.IsTS {
-		return rx, p.errAt("reaction.via", &r.Via, problemf("not a transition state: it has no energy: key"),
-			fmt.Sprintf("add energy: (the barrier E0 above the reactant's zero-point level) to molecules.%s", ts.Name))
-	}
-	rx.Reactant, rx.Via = reactant.Name, ts.Name
 
 	if given(&r.Products) {
 		pp := "reaction.products"

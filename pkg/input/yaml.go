@@ -80,8 +80,9 @@ type rawReaction struct {
 	Products       yaml.Node    `yaml:"products"`
 	PathDegeneracy yaml.Node    `yaml:"path-degeneracy"`
 	ReactionEnergy yaml.Node    `yaml:"reaction-energy"`
-	Tunnelling     yaml.Node    `yaml:"tunnelling"`
-	Competing      []rawChannel `yaml:"competing"`
+	Tunnelling     yaml.Node       `yaml:"tunnelling"`
+	Barrierless    *rawBarrierless `yaml:"barrierless"`
+	Competing      []rawChannel    `yaml:"competing"`
 }
 
 // rawChannel is one entry of reaction.competing.
