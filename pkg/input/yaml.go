@@ -75,11 +75,11 @@ type rawLJ struct {
 }
 
 type rawReaction struct {
-	Reactant       yaml.Node    `yaml:"reactant"`
-	Via            yaml.Node    `yaml:"via"`
-	Products       yaml.Node    `yaml:"products"`
-	PathDegeneracy yaml.Node    `yaml:"path-degeneracy"`
-	ReactionEnergy yaml.Node    `yaml:"reaction-energy"`
+	Reactant       yaml.Node       `yaml:"reactant"`
+	Via            yaml.Node       `yaml:"via"`
+	Products       yaml.Node       `yaml:"products"`
+	PathDegeneracy yaml.Node       `yaml:"path-degeneracy"`
+	ReactionEnergy yaml.Node       `yaml:"reaction-energy"`
 	Tunnelling     yaml.Node       `yaml:"tunnelling"`
 	Barrierless    *rawBarrierless `yaml:"barrierless"`
 	Competing      []rawChannel    `yaml:"competing"`
