@@ -98,14 +98,7 @@ func (ps *powerSum) at(x, p float64) float64 {
 	}
 	sum := 0.0
 	for b := range farBlocks {
-		y := x - (float64(b*block)+float64(block-1)/2)*ps.delta
-		inv := 1 / y
-		t, r := 0.0, 1.0
-		m := &ps.mom[b]
-		for k := range moments {
-			t += coef[k] * m[k] * r
-			r *= inv
-		}
+		y, t := ps.series(x, b, coef[:])
 		if twoP > 0 {
 			sum += powHalf(y, twoP) * t
 		} else {
@@ -175,14 +168,7 @@ func (ps *powerSum) atHalfNodes(jmax int, p float64) []float64 {
 		farBlocks := min(max(last/block-nearBlocks, 0), len(ps.mom))
 		sum := 0.0
 		for b := range farBlocks {
-			y := x - (float64(b*block)+float64(block-1)/2)*ps.delta
-			inv := 1 / y
-			t, r := 0.0, 1.0
-			m := &ps.mom[b]
-			for k := range moments {
-				t += coef[k] * m[k] * r
-				r *= inv
-			}
+			y, t := ps.series(x, b, coef[:])
 			sum += powHalf(y, twoP) * t
 		}
 		lo := farBlocks * block
@@ -196,4 +182,17 @@ func (ps *powerSum) atHalfNodes(jmax int, p float64) []float64 {
 		out[jp] = sum
 	}
 	return out
+}
+
+// series returns the distance y from block b's centre to x and the block's
+// binomial series Σ_k coef[k]·M_k·y^(−k), so the block contributes y^p·series.
+func (ps *powerSum) series(x float64, b int, coef []float64) (y, t float64) {
+	y = x - (float64(b*ps.block)+float64(ps.block-1)/2)*ps.delta
+	inv, r := 1/y, 1.0
+	m := &ps.mom[b]
+	for k := range moments {
+		t += coef[k] * m[k] * r
+		r *= inv
+	}
+	return y, t
 }
