@@ -32,11 +32,7 @@ func runCheckCmd(args []string, s streams) error {
 	fs := newFlags("check", "check [flags] FILE",
 		"  falloff example > ring.yaml\n  falloff check ring.yaml          # prints the molecules, the reaction and the grids", s)
 	o.addFlags(fs)
-	args, err := parseVerb(fs, args, o.validate)
-	if err != nil {
-		return err
-	}
-	m, err := loadModel(args, o.quiet || o.json, s)
+	m, err := parseAndLoad(fs, args, o.validate, func() bool { return o.quiet || o.json }, s)
 	if err != nil {
 		return err
 	}

@@ -50,11 +50,7 @@ func runCompareCmd(args []string, s streams) error {
 		"  falloff compare                        # the built-in demo, ⟨ΔE⟩down ± 50 %\n"+
 			"  falloff compare ring.yaml --alpha \"100 cm-1\" --alpha \"600 cm-1\" --plot compare.svg", s)
 	o.addFlags(fs)
-	args, err := parseVerb(fs, args, o.validate)
-	if err != nil {
-		return err
-	}
-	m, err := loadModel(args, o.quiet || o.json, s)
+	m, err := parseAndLoad(fs, args, o.validate, func() bool { return o.quiet || o.json }, s)
 	if err != nil {
 		return err
 	}

@@ -79,11 +79,7 @@ func runRatesCmd(args []string, s streams) error {
 			"  falloff rates ring.yaml --csv > grid.csv\n"+
 			"  falloff rates ring.yaml --json > rates.json", s)
 	o.addFlags(fs)
-	args, err := parseVerb(fs, args, o.validate)
-	if err != nil {
-		return err
-	}
-	m, err := loadModel(args, o.quiet || o.json || o.csv, s)
+	m, err := parseAndLoad(fs, args, o.validate, func() bool { return o.quiet || o.json || o.csv }, s)
 	if err != nil {
 		return err
 	}

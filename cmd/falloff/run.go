@@ -159,6 +159,17 @@ func parseVerb(fs *pflag.FlagSet, args []string, validate func([]string) error) 
 	return fs.Args(), nil
 }
 
+// parseAndLoad parses a verb's flags, validates its arguments and loads the
+// model they name (the built-in demo when none), quietly if quiet, asked
+// after the flags are parsed, says so.
+func parseAndLoad(fs *pflag.FlagSet, args []string, validate func([]string) error, quiet func() bool, s streams) (*input.Model, error) {
+	args, err := parseVerb(fs, args, validate)
+	if err != nil {
+		return nil, err
+	}
+	return loadModel(args, quiet(), s)
+}
+
 // parseFlags parses args and wraps a flag error as a usage error.
 func parseFlags(fs *pflag.FlagSet, args []string) error {
 	fs.SetOutput(io.Discard)

@@ -66,14 +66,7 @@ func TestThermalAverageEqualsCanonical(t *testing.T) {
 		r, ts := pair()
 		t.Run(r.Name, func(t *testing.T) {
 			ceiling := ts.E0 + 40*kT(3000)
-			rc, err := NewCounter(r, 1, ceiling)
-			if err != nil {
-				t.Fatal(err)
-			}
-			tc, err := NewCounter(ts, 1, ceiling)
-			if err != nil {
-				t.Fatal(err)
-			}
+			rc, tc := countPair(t, r, ts, ceiling)
 			l := PathDegeneracy(r, ts)
 			m := RRKM(rc, tc, l, GrainsTo(10, ceiling-10))
 			worst := 0.0
@@ -160,4 +153,19 @@ func ExampleRRKM() {
 	// L = 3
 	// k(20000 cm-1) = 1.06e+10 s-1
 	// <k(E)>/k∞ at 500 K = 1.0000
+}
+
+// countPair counts a reactant and transition state on a 1 cm⁻¹ fine grain up
+// to ceiling cm⁻¹.
+func countPair(t testing.TB, r, ts *Species, ceiling float64) (*Counter, *Counter) {
+	t.Helper()
+	rc, err := NewCounter(r, 1, ceiling)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tc, err := NewCounter(ts, 1, ceiling)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return rc, tc
 }

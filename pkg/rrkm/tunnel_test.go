@@ -280,14 +280,7 @@ func TestThermalAverageWithTunnelling(t *testing.T) {
 		r, ts, e := ch3ncTunnel(nu)
 		t.Run(fmt.Sprintf("ν‡=%g", nu), func(t *testing.T) {
 			ceiling := ts.E0 + 40*kT(3000)
-			rc, err := NewCounter(r, 1, ceiling)
-			if err != nil {
-				t.Fatal(err)
-			}
-			tc, err := NewCounter(ts, 1, ceiling)
-			if err != nil {
-				t.Fatal(err)
-			}
+			rc, tc := countPair(t, r, ts, ceiling)
 			l := PathDegeneracy(r, ts)
 			g := GrainsTo(10, ceiling-10)
 			m := RRKMTunnel(rc, tc, l, g, e)
