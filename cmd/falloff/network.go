@@ -96,12 +96,16 @@ func (c channelSpec) kInf(r *rrkm.Species, tK float64) float64 {
 func newNetwork(m *input.Model, ceiling float64) (collision.Channel, []channelSpec, error) {
 	r, _ := m.ReactantAndTS()
 	specs := channelSpecs(m)
-	ktMax := units.KT(m.Temperatures[len(m.Temperatures)-1])
-	maxE0 := 0.0
+	tMax := m.Temperatures[len(m.Temperatures)-1]
+	ktMax := units.KT(tMax)
+	top := 0.0
 	for _, c := range specs {
-		maxE0 = math.Max(maxE0, c.e0)
+		var ts *rrkm.Species
+		if c.ts != nil {
+			ts = &c.ts.Species
+		}
+		top = math.Max(top, collision.CeilingBound(&r.Species, ts, c.e0, tMax)+10*ktMax)
 	}
-	top := maxE0 + (collision.CeilingKTMax+10)*ktMax
 	if ceiling > 0 {
 		top = ceiling + 10*ktMax
 	}

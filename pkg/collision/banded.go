@@ -1,7 +1,7 @@
 package collision
 
 import (
-	"fmt"
+	"math"
 
 	"gonum.org/v1/gonum/floats"
 )
@@ -29,22 +29,22 @@ func (m *bandedSym) at(p, d int) *float64 { return &m.a[p*(m.b+1)+m.b-d] }
 type ldl struct {
 	n, b int
 	l    []float64 // layout of bandedSym: L(p, p−b+k) at k < b, D(p) at k = b
-	// Lifted counts pivots that rounding left at or below lift·A(p,p) and
-	// that were set to that floor. It is expected only for the last pivot,
-	// whose true value λ0 can be far below rounding when k_uni/ω < 1e-16.
-	Lifted int
 }
 
-// lift is the floor of a pivot relative to its diagonal entry.
-const lift = 1e-15
-
-// factor computes the banded LDLᵀ factorisation in O(n·b²).
-func factor(m *bandedSym) (*ldl, error) {
+// factorShifted computes the banded LDLᵀ factorisation of A − σI in
+// O(n·b²). It reports ok = false at the first pivot that is not positive:
+// by Sylvester's law of inertia the pivots have the signs of the
+// eigenvalues, so ok means σ lies below the smallest eigenvalue of A
+// (Golub & Van Loan 2013, Matrix Computations, 4th ed., §8.4.1).
+func factorShifted(m *bandedSym, sigma float64) (f *ldl, ok bool) {
 	n, b := m.n, m.b
 	w := b + 1
-	f := &ldl{n: n, b: b, l: make([]float64, len(m.a))}
+	f = &ldl{n: n, b: b, l: make([]float64, len(m.a))}
 	copy(f.l, m.a)
 	l := f.l
+	for p := range n {
+		l[p*w+b] -= sigma
+	}
 	tmp := make([]float64, w) // tmp[r−(p−b)] = L(p,r)·D(r)
 	for p := range n {
 		base := p - b // column of row index 0
@@ -58,16 +58,26 @@ func factor(m *bandedSym) (*ldl, error) {
 			row[q-base] = s / rowq[b]
 		}
 		d := row[b] - floats.Dot(tmp[lo-base:b], row[lo-base:b])
-		if diag := m.a[p*w+b]; d <= lift*diag {
-			if !(diag > 0) {
-				return nil, fmt.Errorf("collision: master-equation matrix has diagonal %v at grain %d", diag, p)
-			}
-			d = lift * diag
-			f.Lifted++
+		if !(d > 0) || math.IsInf(d, 0) {
+			return nil, false
 		}
 		row[b] = d
 	}
-	return f, nil
+	return f, true
+}
+
+// rayleigh returns the Rayleigh quotient xᵀAx/xᵀx, an upper bound on the
+// smallest eigenvalue of the symmetric A.
+func (m *bandedSym) rayleigh(x []float64) float64 {
+	n, b, w := m.n, m.b, m.b+1
+	num := 0.0
+	for p := range n {
+		num += m.a[p*w+b] * x[p] * x[p]
+		for d := 1; d <= b && p-d >= 0; d++ {
+			num += 2 * m.a[p*w+b-d] * x[p] * x[p-d]
+		}
+	}
+	return num / floats.Dot(x, x)
 }
 
 // solve overwrites x with A⁻¹x.

@@ -40,6 +40,18 @@ func (ch Channel) lowestE0() float64 {
 	return e
 }
 
+// countedTop is the highest energy every counter of the well reaches, in
+// cm⁻¹ above the reactant's zero-point level.
+func (ch Channel) countedTop() float64 {
+	top := ch.Reactant.Ceiling()
+	for _, c := range ch.channels() {
+		if c.TS != nil {
+			top = math.Min(top, c.TS.Ceiling()+c.E0)
+		}
+	}
+	return top
+}
+
 // micro returns the channel's k(E) on grains g at tK.
 func (ch Channel) micro(reactant *rrkm.Counter, g rrkm.Grains, tK float64) (*rrkm.Micro, error) {
 	if ch.Micro != nil {
@@ -76,36 +88,68 @@ var ErrTooLarge = errors.New("collision: master-equation grid too large for memo
 // reactant and of the transition-state flux W‡(E−E0)e^(−E/kT) are cut.
 const tailTol = 1e-10
 
-// CeilingKTMax is the most kT above the threshold an automatic ceiling takes;
-// counters built to E0 + CeilingKTMax·kT at the highest temperature suffice.
+// CeilingKTMax is the most kT above the threshold an automatic ceiling takes
+// for a channel whose thermal distributions end below it (CeilingBound).
 const CeilingKTMax = 60
 
-// CeilingFor returns the automatic energy ceiling at tK: E0 plus the least
-// whole number of kT (at least 10, at most CeilingKTMax) beyond which both
-// the reactant's Boltzmann distribution ρ(E)e^(−E/kT) and the transition-state
-// flux W‡(E−E0)e^(−E/kT) have fallen below tailTol of their maxima.
-func CeilingFor(ch Channel, tK float64) float64 {
-	top := 0.0
-	for _, c := range ch.channels() {
-		c.Reactant = ch.Reactant
-		top = math.Max(top, c.ceiling(tK))
+// CeilingBound returns the highest automatic ceiling for one channel at tK:
+// E0 + CeilingKTMax·kT, or higher where the reactant's or the transition
+// state's thermal distribution extends further (rrkm.Species.ThermalCeiling:
+// a large molecule at high temperature holds most of its population far
+// above E0). ts is nil for a channel without a transition state. Counters
+// built to the largest CeilingBound over a grid's temperatures, plus 10 kT
+// for the convergence check, suffice for Run.
+func CeilingBound(reactant, ts *rrkm.Species, e0, tK float64) float64 {
+	top := math.Max(e0+CeilingKTMax*units.KT(tK), reactant.ThermalCeiling(tK))
+	if ts != nil {
+		top = math.Max(top, e0+ts.ThermalCeiling(tK))
 	}
 	return top
 }
 
+// CeilingFor returns the automatic energy ceiling at tK: E0 plus the least
+// whole number of kT (at least 10, and not beyond CeilingBound) beyond which
+// both the reactant's Boltzmann distribution ρ(E)e^(−E/kT) and the
+// transition-state flux W‡(E−E0)e^(−E/kT) have fallen below tailTol of their
+// maxima. It fails if the counters end before that.
+func CeilingFor(ch Channel, tK float64) (float64, error) {
+	top := 0.0
+	for _, c := range ch.channels() {
+		c.Reactant = ch.Reactant
+		e, err := c.ceiling(tK)
+		if err != nil {
+			return 0, err
+		}
+		top = math.Max(top, e)
+	}
+	return top, nil
+}
+
 // ceiling is CeilingFor for one channel; without a transition-state counter
 // only the reactant's tail counts, and at least 30 kT are taken.
-func (ch Channel) ceiling(tK float64) float64 {
+func (ch Channel) ceiling(tK float64) (float64, error) {
 	kt := units.KT(tK)
 	least := 10
+	var ts *rrkm.Species
 	if ch.TS == nil {
 		least = 30
+	} else {
+		ts = ch.TS.Species()
+	}
+	most := int(math.Ceil((CeilingBound(ch.Reactant.Species(), ts, ch.E0, tK) - ch.E0) / kt))
+	counted := ch.Reactant.Ceiling() - kt/2
+	if ch.TS != nil {
+		counted = math.Min(counted, ch.TS.Ceiling()+ch.E0)
 	}
 	gR, gT := math.Inf(-1), math.Inf(-1)
 	lnTol := math.Log(tailTol)
-	for m := 1; m <= CeilingKTMax; m++ {
+	for m := 1; m <= most; m++ {
 		x := float64(m) * kt
 		e := ch.E0 + x
+		if e > counted {
+			return 0, fmt.Errorf("collision: at %g K the thermal distribution reaches beyond the counted states (%.0f cm-1) (hint: count states up to CeilingBound, %.0f cm-1)",
+				tK, counted, ch.E0+float64(most)*kt)
+		}
 		lr := math.Log(math.Max(ch.Reactant.Sum(e+kt/2)-ch.Reactant.Sum(e-kt/2), 1e-300)) - e/kt
 		lt := math.Inf(-1)
 		if ch.TS != nil {
@@ -113,10 +157,10 @@ func (ch Channel) ceiling(tK float64) float64 {
 		}
 		gR, gT = math.Max(gR, lr), math.Max(gT, lt)
 		if m >= least && lr < gR+lnTol && (ch.TS == nil || lt < gT+lnTol) {
-			return e
+			return e, nil
 		}
 	}
-	return ch.E0 + CeilingKTMax*kt
+	return ch.E0 + float64(most)*kt, nil
 }
 
 // GrainFor returns the automatic grain at tK: min(α/5, kT/5) for the
@@ -134,7 +178,6 @@ func GrainFor(tr Transfer, tK float64) float64 {
 type TemperatureResult struct {
 	T       float64
 	K       []float64 // k(T,P) in s⁻¹, one per pressure
-	KInf    float64   // canonical TST k∞, s⁻¹
 	KInfME  float64   // Σ F·k on the master-equation grains (the P → ∞ limit)
 	K0      float64   // low-pressure limit k0 in cm³ molecule⁻¹ s⁻¹
 	Z       float64   // collision rate constant, cm³ molecule⁻¹ s⁻¹
@@ -233,7 +276,7 @@ func convergence(ch Channel, col Collider, tr Transfer, res *Result, opt Options
 			{row.Grain / 2, row.Ceiling},
 			{row.Grain, row.Ceiling + 10*units.KT(t)},
 		} {
-			if v.ceiling > math.Min(ch.Reactant.Ceiling(), ch.TS.Ceiling()+ch.E0) {
+			if v.ceiling > ch.countedTop() {
 				continue // counters do not reach; the automatic ceiling has headroom
 			}
 			alt, err := solveTemperature(ch, col, tr, t, ps, v.grain, v.ceiling, false)
@@ -264,7 +307,10 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 		grain = GrainFor(tr, tK)
 	}
 	if ceiling == 0 {
-		ceiling = CeilingFor(ch, tK)
+		var err error
+		if ceiling, err = CeilingFor(ch, tK); err != nil {
+			return nil, err
+		}
 	}
 	// Put a grain edge on the (lowest) threshold, so that every grain is
 	// wholly below or wholly above it: otherwise the grain across E0 reacts
@@ -343,14 +389,13 @@ func (p *prepared) rates(omega float64) (float64, []float64, error) {
 	kc := make([]float64, len(w.KC))
 	if p.kernel == nil {
 		om := p.eff * omega
-		for i, f := range w.F {
-			if k := w.K[i]; k > 0 {
-				for c := range kc {
-					kc[c] += f * w.KC[c][i] * om / (om + k)
-				}
+		lambda := w.StrongCollider(om)
+		for i, n := range w.StrongColliderPopulation(om, lambda) {
+			for c := range kc {
+				kc[c] += w.KC[c][i] * n
 			}
 		}
-		return w.StrongCollider(om), kc, nil
+		return lambda, kc, nil
 	}
 	s, err := w.Solve(p.kernel, omega)
 	if err != nil {

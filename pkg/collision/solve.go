@@ -9,12 +9,15 @@ import (
 // ErrNoConvergence reports an inverse iteration that did not settle.
 var ErrNoConvergence = errors.New("collision: master equation: no convergence")
 
+// ErrIllConditioned reports a master-equation matrix that rounding has made
+// indefinite even after the stabilising shift (see system.tau).
+var ErrIllConditioned = errors.New("collision: master equation: ill-conditioned matrix")
+
 // Solution is the slowest eigenmode of a master equation.
 type Solution struct {
 	K          float64   // k_uni = λ0 in s⁻¹ (or per unit ω for LowPressure)
 	Population []float64 // the eigenvector n(E) on the well's grains, Σ n = 1
 	Iterations int
-	Lifted     int // pivots lifted to the floor (see ldl)
 }
 
 const (
@@ -29,7 +32,21 @@ type system struct {
 	a    *bandedSym
 	loss []float64 // ascending-energy order
 	sqf  []float64 // sqrt(F), ascending
+	// tau is the stabilising shift: the iteration factorises A + τI, whose
+	// eigenvectors are those of A. Collisions conserve population, so A's
+	// smallest eigenvalue k_uni can lie below the rounding of its
+	// factorisation (k_uni/ω < 1e-15, a large molecule far below its
+	// falloff); without the shift rounding can make a pivot vanish in the
+	// middle of the grid and the factors grow without bound. With it the
+	// factorised matrix stays a positive-definite M-matrix, and inverse
+	// iteration converges as (λ0+τ)/(λ1+τ), in a step or two when λ0 ≪ τ.
+	tau float64
 }
+
+// tauPerOmega is τ per unit collision frequency: above the rounding of the
+// Schur complements (about b·ε·ω for half-bandwidth b ≤ 1000) and far
+// below the relaxation eigenvalues (λ1 ≳ 1e-3·ω).
+const tauPerOmega = 1e-11
 
 // collisionOperator is I − P_sym on grains 0..nk−1 in descending order, with
 // the diagonal 1 − P(i←i) summed from the off-diagonal column entries (over
@@ -86,7 +103,7 @@ func sqrtF(w *Well, nk int) []float64 {
 func build(w *Well, k *Kernel, omega float64) *system {
 	op := k.operator(w)
 	n := w.N()
-	s := &system{a: newBandedSym(n, op.c.b), loss: w.K, sqf: sqrtF(w, n)}
+	s := &system{a: newBandedSym(n, op.c.b), loss: w.K, sqf: sqrtF(w, n), tau: tauPerOmega * omega}
 	for i, v := range op.c.a {
 		s.a.a[i] = omega * v
 	}
@@ -102,19 +119,30 @@ func build(w *Well, k *Kernel, omega float64) *system {
 func buildLowPressure(w *Well, k *Kernel) *system {
 	nk := w.belowFloor()
 	op := newCollisionOperator(w, k, nk)
-	return &system{a: op.c, loss: op.escape, sqf: sqrtF(w, nk)}
+	return &system{a: op.c, loss: op.escape, sqf: sqrtF(w, nk), tau: tauPerOmega}
 }
 
+// shiftEvery is the number of inverse iterations without convergence after
+// which the shift moves toward the slowest eigenvalue.
+const shiftEvery = 25
+
 // eigen finds the slowest mode by inverse iteration started from the
-// equilibrium distribution, and λ0 from the flux identity.
+// equilibrium distribution, and λ0 from the flux identity. When the slowest
+// mode is poorly separated from the next (the reaction about as fast as
+// energy relaxation) plain inverse iteration converges slowly, as
+// (λ0/λ1)^k; it then shifts to σ below λ0, converging as
+// ((λ0−σ)/(λ1−σ))^k. The shift moves 90 % of the way to the Rayleigh
+// quotient (an upper bound on λ0) and is kept only if A − σI factorises
+// with positive pivots, which proves σ < λ0, so it never converges to
+// another mode.
 func (s *system) eigen() (Solution, error) {
 	n := len(s.loss)
 	if n == 0 {
 		return Solution{}, errors.New("collision: no grains")
 	}
-	f, err := factor(s.a)
-	if err != nil {
-		return Solution{}, err
+	f, ok := factorShifted(s.a, -s.tau)
+	if !ok {
+		return Solution{}, fmt.Errorf("%w: a pivot of its LDLᵀ factorisation is not positive", ErrIllConditioned)
 	}
 	x := make([]float64, n) // descending order
 	for p := range x {
@@ -122,6 +150,7 @@ func (s *system) eigen() (Solution, error) {
 	}
 	pop := make([]float64, n)
 	prev := math.Inf(1)
+	sigma := -s.tau
 	for it := 1; it <= maxIterations; it++ {
 		f.solve(x)
 		scale := 0.0
@@ -144,9 +173,19 @@ func (s *system) eigen() (Solution, error) {
 			for i := range pop {
 				pop[i] /= den
 			}
-			return Solution{K: lambda, Population: pop, Iterations: it, Lifted: f.Lifted}, nil
+			return Solution{K: lambda, Population: pop, Iterations: it}, nil
 		}
 		prev = lambda
+		if it%shiftEvery == 0 {
+			rq := s.a.rayleigh(x)
+			for step := 0.9; step > 1e-3; step /= 4 {
+				next := sigma + step*(rq-sigma)
+				if g, ok := factorShifted(s.a, next); ok {
+					f, sigma = g, next
+					break
+				}
+			}
+		}
 	}
 	return Solution{}, fmt.Errorf("%w after %d inverse iterations", ErrNoConvergence, maxIterations)
 }

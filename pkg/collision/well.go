@@ -2,6 +2,7 @@ package collision
 
 import (
 	"math"
+	"slices"
 
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
@@ -75,17 +76,72 @@ func (w *Well) KInf() float64 {
 }
 
 // StrongCollider returns k_uni for the strong collider with collision
-// frequency omega (s⁻¹, already multiplied by any efficiency βc):
-// Σ F·k·ω/(ω+k) (Lindemann–Hinshelwood with RRKM k(E); Holbrook, Pilling &
-// Robertson 1996, eq. 4.12).
+// frequency omega (s⁻¹, already multiplied by any efficiency βc): the
+// slowest eigenvalue λ of the master equation with P(E←E′) = F(E). Its
+// eigenvector is n = ω·F/(ω + k − λ) (from dn/dt = ω(F·Σn − n) − k·n =
+// −λn), and Σ n = 1 gives the secular equation
+//
+//	h(λ) = Σ F·(k − λ)/(ω + k − λ) = 0,
+//
+// h decreasing and concave below its first pole ω + min k, with one root
+// there. Where λ ≪ ω the root is the steady-state (Lindemann–Hinshelwood)
+// sum λ_ss = ω·h(0) = Σ F·k·ω/(ω+k) (Holbrook, Pilling & Robertson 1996,
+// eq. 4.12), a lower bound; as k_uni approaches ω the two part, and the
+// eigenvalue is the one comparable with the exponential-down result.
 func (w *Well) StrongCollider(omega float64) float64 {
-	s := 0.0
-	for i, f := range w.F {
-		if k := w.K[i]; k > 0 {
-			s += f * k * omega / (omega + k)
+	h := func(lambda float64) (v, slope float64) {
+		for i, f := range w.F {
+			d := omega + w.K[i] - lambda
+			v += f * (w.K[i] - lambda) / d
+			slope -= f * omega / (d * d)
 		}
+		return v, slope
 	}
-	return s
+	lo, _ := h(0)
+	lo *= omega // λ_ss
+	if !(lo > 0) {
+		return 0
+	}
+	hi := omega + slices.Min(w.K) // the first pole
+	lambda := lo
+	for range 200 {
+		v, slope := h(lambda)
+		if v == 0 {
+			return lambda
+		}
+		if v > 0 {
+			lo = lambda
+		} else {
+			hi = lambda
+		}
+		next := lambda - v/slope
+		if math.Abs(next-lambda) <= 1e-15*lambda {
+			return next // converged, possibly onto a bracket end
+		}
+		if !(next > lo && next < hi) {
+			next = lo + (hi-lo)/2
+		}
+		if hi-lo <= 1e-15*lo {
+			return next
+		}
+		lambda = next
+	}
+	return lambda
+}
+
+// StrongColliderPopulation returns the slowest mode's populations
+// n = ω·F/(ω + k − λ), Σ n = 1, for λ = StrongCollider(omega).
+func (w *Well) StrongColliderPopulation(omega, lambda float64) []float64 {
+	n := make([]float64, w.N())
+	sum := 0.0
+	for i, f := range w.F {
+		n[i] = f * omega / (omega + w.K[i] - lambda)
+		sum += n[i]
+	}
+	for i := range n {
+		n[i] /= sum
+	}
+	return n
 }
 
 // StrongColliderK0 returns the strong-collider low-pressure limit divided by

@@ -135,6 +135,9 @@ func convolveLevels(c []float64, levels []Level, fine float64) []float64 {
 // Fine returns the fine grain δ in cm⁻¹.
 func (c *Counter) Fine() float64 { return c.fine }
 
+// Species returns the species whose states the counter holds.
+func (c *Counter) Species() *Species { return c.species }
+
 // Ceiling returns the highest energy in cm⁻¹ the counter covers.
 func (c *Counter) Ceiling() float64 { return c.ceiling }
 

@@ -61,3 +61,55 @@ func (s *Species) TranslationalQ(tK float64) float64 {
 	l := 2 * math.Pi * m * units.Boltzmann * tK / (units.Planck * units.Planck)
 	return math.Pow(l, 1.5) * 1e-6
 }
+
+// ThermalEnergy returns the mean and the standard deviation, in cm⁻¹, of the
+// internal energy in the canonical ensemble at tK over the states this
+// package counts (zero at the zero-point level): harmonic oscillators
+// ⟨E⟩ = Σ ν/(e^x − 1), var = Σ ν²e^x/(e^x − 1)² with x = ν/kT; classical
+// rotors (d/2)kT and (d/2)(kT)² for d rotational degrees of freedom; the
+// electronic levels from their Boltzmann weights; hindered rotors by
+// differentiating ln Q_hr in ln T (⟨E⟩ = kT·q′, var = (kT)²·(q′ + q″)).
+// The energy grid uses it to find where the thermal distribution ends.
+func (s *Species) ThermalEnergy(tK float64) (mean, sd float64) {
+	kt := kT(tK)
+	variance := 0.0
+	for _, v := range s.Vibrations {
+		x := v / kt
+		em := -math.Expm1(-x) // 1 − e^−x
+		mean += v * math.Exp(-x) / em
+		variance += v * v * math.Exp(-x) / (em * em)
+	}
+	_, d := s.rotorFactor()
+	mean += float64(d) / 2 * kt
+	variance += float64(d) / 2 * kt * kt
+	q, e1, e2 := 0.0, 0.0, 0.0
+	for _, l := range s.levels() {
+		w := l.Degeneracy * math.Exp(-l.Energy/kt)
+		q += w
+		e1 += w * l.Energy
+		e2 += w * l.Energy * l.Energy
+	}
+	mean += e1 / q
+	variance += e2/q - (e1/q)*(e1/q)
+	const h = 1e-3 // step in ln T: q″ to about 1e-6 relative
+	for _, hr := range s.Hindered {
+		lq := func(u float64) float64 { return math.Log(hr.Q(tK * math.Exp(u))) }
+		l0, lp, lm := lq(0), lq(h), lq(-h)
+		d1, d2 := (lp-lm)/(2*h), (lp-2*l0+lm)/(h*h)
+		mean += kt * d1
+		variance += kt * kt * math.Max(d1+d2, 0)
+	}
+	return mean, math.Sqrt(math.Max(variance, 0))
+}
+
+// ThermalCeiling returns an energy in cm⁻¹ above which the species' thermal
+// distribution at tK is negligible for rate work: ⟨E⟩ + 12σ + 10kT
+// (ThermalEnergy). A Gaussian falls by e^−72 in 12σ; the distributions of
+// few oscillators have longer, exponential tails, which the 10 kT cover
+// (e^−10 on top of the 12σ). Grids that stop near E0 + a few tens of kT
+// truncate the distribution of a large molecule at high temperature, where
+// its mean energy lies far above the threshold.
+func (s *Species) ThermalCeiling(tK float64) float64 {
+	mean, sd := s.ThermalEnergy(tK)
+	return mean + 12*sd + 10*kT(tK)
+}
