@@ -1,12 +1,13 @@
 package main
 
 import (
+	"context"
+	"errors"
 	"fmt"
 
 	"github.com/spf13/pflag"
 
 	"github.com/falloff-kinetics/falloff/pkg/collision"
-	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/plots"
 	"github.com/falloff-kinetics/falloff/pkg/units"
@@ -118,9 +119,11 @@ func compareModels(o compareOptions, m *input.Model, s streams) (*compareReport,
 	bar := newProgress(s, "master equation", len(models)*len(m.Temperatures), o.quiet)
 	defer bar.finish()
 	for _, tr := range models {
-		res, err := collision.Run(ch, col, tr, m.Temperatures, m.Pressures, collision.Options{Jobs: o.jobs, SkipConvergence: true,
+		res, err := collision.RunContext(s.ctx, ch, col, tr, m.Temperatures, m.Pressures, collision.Options{Jobs: o.jobs, SkipConvergence: true,
 			Grain: m.EnergyGrid.MEGrain, Ceiling: m.EnergyGrid.Ceiling, Progress: bar.step})
-		if err != nil {
+		if errors.Is(err, context.Canceled) {
+			return nil, err
+		} else if err != nil {
 			return nil, &numericalError{fmt.Errorf("%s: %s: %w", m.File, tr, err)}
 		}
 		cm := compareModel{Name: "strong collider", K: res.K()}
@@ -144,7 +147,7 @@ func runCompare(o compareOptions, m *input.Model, s streams) error {
 		return err
 	}
 	if o.plot != "" {
-		if err := writeComparePlot(o.plot, rep); err != nil {
+		if err := writeComparePlot(o.plot, rep, s); err != nil {
 			return err
 		}
 	}
@@ -201,7 +204,7 @@ func plotTemperatures(n int) []int {
 	return []int{0, n / 2, n - 1}
 }
 
-func writeComparePlot(path string, rep *compareReport) error {
+func writeComparePlot(path string, rep *compareReport, s streams) error {
 	f := plots.Figure{Title: "Energy-transfer models", XLabel: "P / bar", YLabel: "k / k∞", LogX: true, LogY: true}
 	var ps []float64
 	for _, p := range rep.Pressures {
@@ -221,5 +224,8 @@ func writeComparePlot(path string, rep *compareReport) error {
 	if err != nil {
 		return &numericalError{err}
 	}
-	return export.WriteFileAtomic(path, b)
+	var out outputSet
+	out.add(path, b)
+	_, err = out.commit(s.ctx)
+	return err
 }

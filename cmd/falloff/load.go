@@ -99,8 +99,14 @@ func (o *energyOptions) resolve(m *input.Model, e0 float64) (grain, ceiling floa
 		return 0, 0, usagef("--grain %q: below the fine counting grain %g cm-1", o.grain, m.EnergyGrid.Fine)
 	}
 	if ceiling == 0 {
+		// E0 + 40 kT, or higher where a large molecule's thermal
+		// distribution reaches further (rrkm.Species.ThermalCeiling).
 		tmax := m.Temperatures[len(m.Temperatures)-1]
-		ceiling = e0 + ceilingKT*units.KT(tmax)
+		r, ts := m.ReactantAndTS()
+		ceiling = math.Max(e0+ceilingKT*units.KT(tmax), r.ThermalCeiling(tmax))
+		if ts != nil {
+			ceiling = math.Max(ceiling, e0+ts.ThermalCeiling(tmax))
+		}
 	}
 	if ceiling <= e0+grain {
 		return 0, 0, usagef("ceiling %g cm-1 is not above the threshold %g cm-1", ceiling, e0)

@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
 	"sort"
 	"strings"
@@ -150,36 +149,6 @@ func fitRows(res *fit.Results) [][]string {
 	return rows
 }
 
-// mechanismFiles are the files `rates --out DIR` writes (docs/output.md).
-// They are all rendered in memory first and written only when every one of
-// them rendered, each atomically, so a failure leaves no partial set.
-type mechanismFiles struct {
-	dir     string
-	names   []string
-	data    [][]byte
-	written []string
-}
-
-func (mf *mechanismFiles) write(name string, data []byte) error {
-	mf.names = append(mf.names, name)
-	mf.data = append(mf.data, data)
-	return nil
-}
-
-func (mf *mechanismFiles) flush() error {
-	for i, name := range mf.names {
-		p := filepath.Join(mf.dir, name)
-		if err := export.WriteFileAtomic(p, mf.data[i]); err != nil {
-			return err
-		}
-		mf.written = append(mf.written, p)
-	}
-	return nil
-}
-
-// writeMechanism writes the recommended form as reactions.yaml and
-// reactions.txt, every fitted form as reactions-FORM.yaml/.txt, the grid as
-// grid.csv and the whole report as summary.json, each atomically.
 // mechEntry is one reaction to write: a channel in its direction with its
 // fits.
 type mechEntry struct {
@@ -189,8 +158,12 @@ type mechEntry struct {
 	res                 *fit.Results
 }
 
-func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d *directed, entries []mechEntry, u export.Units, skeleton bool) (*mechanismFiles, error) {
-	mf := &mechanismFiles{dir: dir}
+// writeMechanism queues in out, under dir, the recommended form as
+// reactions.yaml and reactions.txt, every fitted form as
+// reactions-FORM.yaml/.txt, the grid as grid.csv and, with skeleton, a
+// phase that uses them (docs/output.md).
+func writeMechanism(out *outputSet, dir string, m *input.Model, src []byte, rep *ratesReport, d *directed, entries []mechEntry, u export.Units, skeleton bool) error {
+	add := func(name string, data []byte) { out.add(filepath.Join(dir, name), data) }
 	sum := sha256.Sum256(src)
 	h := export.Header{Title: m.Title, Input: m.File, Checksum: fmt.Sprintf("sha256:%x", sum), Program: "falloff " + version,
 		TMin: rep.Temperatures[0], TMax: rep.Temperatures[len(rep.Temperatures)-1],
@@ -243,10 +216,9 @@ func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d 
 		if err != nil {
 			return err
 		}
-		if err := mf.write(base+".yaml", y); err != nil {
-			return err
-		}
-		return mf.write(base+".txt", t)
+		add(base+".yaml", y)
+		add(base+".txt", t)
+		return nil
 	}
 	var best []export.Reaction
 	for _, e := range entries {
@@ -256,7 +228,7 @@ func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d 
 	}
 	if len(best) > 0 {
 		if err := emit("reactions", best); err != nil {
-			return nil, err
+			return err
 		}
 	}
 	for _, n := range forms {
@@ -267,7 +239,7 @@ func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d 
 			}
 		}
 		if err := emit("reactions-"+n, rs); err != nil {
-			return nil, err
+			return err
 		}
 	}
 	var csv strings.Builder
@@ -277,12 +249,7 @@ func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d 
 			fmt.Fprintf(&csv, "%s,%s,%s\n", fullNum(t), fullNum(p), fullNum(d.k[i][j]))
 		}
 	}
-	if err := mf.write("grid.csv", []byte(csv.String())); err != nil {
-		return nil, err
-	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, fmt.Errorf("--out %s: %w", dir, err)
-	}
+	add("grid.csv", []byte(csv.String()))
 	if skeleton {
 		var species []string
 		seen := map[string]bool{}
@@ -294,9 +261,7 @@ func writeMechanism(dir string, m *input.Model, src []byte, rep *ratesReport, d 
 				}
 			}
 		}
-		if err := mf.write("phase-example.yaml", export.PhaseSkeleton("reactions.yaml", species)); err != nil {
-			return nil, err
-		}
+		add("phase-example.yaml", export.PhaseSkeleton("reactions.yaml", species))
 	}
-	return mf, mf.flush()
+	return nil
 }

@@ -2,10 +2,8 @@ package main
 
 import (
 	"fmt"
-	"os"
 	"path/filepath"
 
-	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/plots"
@@ -33,24 +31,16 @@ func evaluatorOf(form any) evaluator {
 	return nil
 }
 
-// writeRatePlots writes falloff.svg (k/k∞ against P at up to three
+// writeRatePlots queues in out, under dir, falloff.svg (k/k∞ against P at up to three
 // temperatures, computed points and the recommended fit), arrhenius.svg (k0
 // and k∞ against 1000/T), and micro.svg and density.svg (k(E) and ρ(E)).
-func writeRatePlots(dir string, m *input.Model, rep *ratesReport, d *directed, res *fit.Results) ([]string, error) {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, fmt.Errorf("--plots %s: %w", dir, err)
-	}
-	var written []string
+func writeRatePlots(out *outputSet, dir string, m *input.Model, rep *ratesReport, d *directed, res *fit.Results) error {
 	save := func(name string, f plots.Figure) error {
 		b, err := f.SVG()
 		if err != nil {
 			return &numericalError{fmt.Errorf("plot %s: %w", name, err)}
 		}
-		p := filepath.Join(dir, name)
-		if err := export.WriteFileAtomic(p, b); err != nil {
-			return err
-		}
-		written = append(written, p)
+		out.add(filepath.Join(dir, name), b)
 		return nil
 	}
 	var ps []float64
@@ -76,7 +66,7 @@ func writeRatePlots(dir string, m *input.Model, rep *ratesReport, d *directed, r
 		}
 	}
 	if err := save("falloff.svg", fall); err != nil {
-		return nil, err
+		return err
 	}
 	inv := make([]float64, len(rep.Temperatures))
 	for i, t := range rep.Temperatures {
@@ -85,18 +75,18 @@ func writeRatePlots(dir string, m *input.Model, rep *ratesReport, d *directed, r
 	arr := plots.Figure{Title: "High- and low-pressure limits", XLabel: "1000 K / T", YLabel: "k∞ / " + d.kUnits + ",  k0 / " + d.k0Units, LogY: true, LegendTop: true,
 		Series: []plots.Series{{Name: "k∞", X: inv, Y: d.kInf, Points: true, Group: 1}, {Name: "k0", X: inv, Y: d.k0, Points: true, Group: 2}}}
 	if err := save("arrhenius.svg", arr); err != nil {
-		return nil, err
+		return err
 	}
 	if _, ts := m.ReactantAndTS(); ts == nil {
-		return written, nil // k(E) and ρ(E) plots need a transition state (see micro)
+		return nil // k(E) and ρ(E) plots need a transition state (see micro)
 	}
 	ch, err := newChannel(m, &energyOptions{})
 	if err != nil {
-		return nil, err
+		return err
 	}
 	mc, err := microOf(ch, m.Temperatures)
 	if err != nil {
-		return nil, err
+		return err
 	}
 	var e, k []float64
 	for i, x := range mc.K {
@@ -106,7 +96,7 @@ func writeRatePlots(dir string, m *input.Model, rep *ratesReport, d *directed, r
 	}
 	if err := save("micro.svg", plots.Figure{Title: "RRKM k(E)", XLabel: "E / cm-1", YLabel: "k(E) / s-1", LogY: true,
 		Series: []plots.Series{{Name: mc.Name, X: e, Y: k}}}); err != nil {
-		return nil, err
+		return err
 	}
 	rho := ch.rc.Densities(ch.grains)
 	ee := make([]float64, len(rho))
@@ -115,7 +105,7 @@ func writeRatePlots(dir string, m *input.Model, rep *ratesReport, d *directed, r
 	}
 	if err := save("density.svg", plots.Figure{Title: "Density of states", XLabel: "E / cm-1", YLabel: "ρ(E) / (cm-1)^-1", LogY: true,
 		Series: []plots.Series{{Name: ch.reactant.Name, X: ee, Y: rho}}}); err != nil {
-		return nil, err
+		return err
 	}
-	return written, nil
+	return nil
 }

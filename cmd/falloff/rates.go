@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/csv"
 	"encoding/json"
 	"errors"
@@ -167,12 +168,15 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 		return nil, err
 	}
 	bar := newProgress(s, "master equation", len(m.Temperatures), o.quiet)
-	res, err := collision.Run(ch, col, tr, m.Temperatures, m.Pressures,
+	res, err := collision.RunContext(s.ctx, ch, col, tr, m.Temperatures, m.Pressures,
 		collision.Options{Grain: grain, Ceiling: ceiling, Jobs: o.jobs, SkipConvergence: o.skipCheck, Progress: bar.step})
 	bar.finish()
-	if errors.Is(err, collision.ErrTooLarge) {
+	switch {
+	case errors.Is(err, collision.ErrTooLarge):
 		return nil, fmt.Errorf("%s: master equation: %w", m.File, err) // a request too large: bad input
-	} else if err != nil {
+	case errors.Is(err, context.Canceled):
+		return nil, err
+	case err != nil:
 		return nil, &numericalError{fmt.Errorf("%s: master equation: %w", m.File, err)}
 	}
 	rep := &ratesReport{File: m.File, Direction: direction(m), KUnits: "s-1", K0Units: "cm3 molecule-1 s-1",
@@ -277,26 +281,31 @@ func finishRates(o ratesOptions, m *input.Model, rep *ratesReport, s streams) (*
 	if res.Recommended == "" {
 		rep.Warnings = append(rep.Warnings, m.File+": no fitted form meets the tolerance: "+res.Reason)
 	}
+	var out outputSet
 	if o.out != "" {
-		mf, err := writeMechanism(o.out, m, m.Source, rep, d, entries, o.units(), o.skeleton)
-		if err != nil {
-			return nil, err
-		}
-		rep.Files = append(mf.written, filepath.Join(o.out, "summary.json"))
-		b, err := json.MarshalIndent(rep, "", "  ")
-		if err != nil {
-			return nil, &numericalError{err}
-		}
-		if err := export.WriteFileAtomic(filepath.Join(o.out, "summary.json"), append(b, '\n')); err != nil {
+		if err := writeMechanism(&out, o.out, m, m.Source, rep, d, entries, o.units(), o.skeleton); err != nil {
 			return nil, err
 		}
 	}
 	if o.plots != "" {
-		files, err := writeRatePlots(o.plots, m, rep, d, res)
-		if err != nil {
+		if err := writeRatePlots(&out, o.plots, m, rep, d, res); err != nil {
 			return nil, err
 		}
-		rep.Files = append(rep.Files, files...)
+	}
+	rep.Files = append([]string{}, out.paths...)
+	if o.out != "" {
+		summary := filepath.Join(o.out, "summary.json")
+		rep.Files = append(rep.Files, summary)
+		b, err := json.MarshalIndent(rep, "", "  ")
+		if err != nil {
+			return nil, &numericalError{err}
+		}
+		out.add(summary, append(b, '\n'))
+	}
+	written, err := out.commit(s.ctx)
+	rep.Files = written
+	if err != nil {
+		return nil, err
 	}
 	return d, nil
 }

@@ -1,10 +1,14 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
+	"os"
+	"os/signal"
 	"strings"
+	"syscall"
 
 	"github.com/spf13/pflag"
 
@@ -21,11 +25,16 @@ const (
 	exitNumerical = 3 // a computation failed or produced a non-finite number
 )
 
-// streams carries the standard streams into a verb, so tests run verbs
-// in-process with buffers.
+// exitInterrupted is the exit code after SIGINT or SIGTERM (128 + SIGINT,
+// as shells report a program stopped by Ctrl-C).
+const exitInterrupted = 130
+
+// streams carries the standard streams and the run's context into a verb,
+// so tests run verbs in-process with buffers and can cancel them.
 type streams struct {
 	in       io.Reader
 	out, err io.Writer
+	ctx      context.Context // cancelled on SIGINT or SIGTERM
 }
 
 // usageError is a mistake on the command line.
@@ -58,11 +67,25 @@ func verbs() []verb {
 	}
 }
 
+// run runs the command line args. The first SIGINT or SIGTERM cancels the
+// work, which stops at the next temperature or pressure and writes no
+// further file; a second one ends the process at once.
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
-	s := streams{in: stdin, out: stdout, err: stderr}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	go func() {
+		<-ctx.Done()
+		stop() // restore the default action for a second signal
+	}()
+	return runContext(ctx, args, stdin, stdout, stderr)
+}
+
+// runContext is run under a context of the caller's.
+func runContext(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	s := streams{in: stdin, out: stdout, err: stderr, ctx: ctx}
 	if len(args) == 0 || args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
 		if len(args) > 1 {
-			return run([]string{args[1], "--help"}, stdin, stdout, stderr)
+			return runContext(ctx, []string{args[1], "--help"}, stdin, stdout, stderr)
 		}
 		printUsage(stdout)
 		return exitOK
@@ -87,6 +110,14 @@ func exitCode(err error, stderr io.Writer) int {
 	}
 	if errors.Is(err, pflag.ErrHelp) {
 		return exitOK
+	}
+	var ie *interruptedError
+	if errors.As(err, &ie) || errors.Is(err, context.Canceled) {
+		if ie == nil {
+			ie = &interruptedError{} // stopped before any file was due
+		}
+		fmt.Fprintln(stderr, "falloff:", ie)
+		return exitInterrupted
 	}
 	msg := strings.ReplaceAll(err.Error(), "\n", " ")
 	fmt.Fprintln(stderr, "falloff:", msg)
@@ -120,7 +151,8 @@ Commands:
 With no FILE, states, micro, rates and compare run the built-in demo (an invented molecule).
 Run 'falloff <command> --help' for its flags and a worked example.
 
-Exit codes: 0 ok, 1 bad input, 2 usage, 3 numerical failure.
+Exit codes: 0 ok, 1 bad input, 2 usage, 3 numerical failure, 130 interrupted
+(Ctrl-C or SIGTERM: no file is left part-written; the message lists any written).
 
 Computed rate coefficients are model estimates. Validate them against
 experiment before using them in safety, hazard or design decisions, which

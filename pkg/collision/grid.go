@@ -1,6 +1,7 @@
 package collision
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -205,8 +206,9 @@ type Result struct {
 	// Convergence is the largest relative change of k found when the grain
 	// was halved or the ceiling raised by 10 kT at the check points (the
 	// lowest and highest temperature, lowest and highest pressure); NaN if
-	// not checked.
-	Convergence float64
+	// not checked. ConvergenceT (K) and ConvergenceP (Pa) say where.
+	Convergence                float64
+	ConvergenceT, ConvergenceP float64
 }
 
 // K returns k[iT][iP] in s⁻¹.
@@ -220,8 +222,14 @@ func (r *Result) K() [][]float64 {
 
 // Run solves the master equation at every temperature and pressure. Work is
 // spread over Options.Jobs goroutines by temperature; results do not depend
-// on their number.
+// on their number. A numerical failure is returned as a *PointError.
 func Run(ch Channel, col Collider, tr Transfer, temps, pressures []float64, opt Options) (*Result, error) {
+	return RunContext(context.Background(), ch, col, tr, temps, pressures, opt)
+}
+
+// RunContext is Run that stops early, returning ctx.Err(), when ctx is
+// cancelled: between temperatures and between pressures.
+func RunContext(ctx context.Context, ch Channel, col Collider, tr Transfer, temps, pressures []float64, opt Options) (*Result, error) {
 	if err := tr.validate(); err != nil {
 		return nil, err
 	}
@@ -236,7 +244,10 @@ func Run(ch Channel, col Collider, tr Transfer, temps, pressures []float64, opt 
 	for range min(jobs, len(temps)) {
 		wg.Go(func() {
 			for i := range next {
-				res.Rows[i], errs[i] = solveTemperature(ch, col, tr, temps[i], pressures, opt.Grain, opt.Ceiling, true)
+				if errs[i] = ctx.Err(); errs[i] != nil {
+					continue
+				}
+				res.Rows[i], errs[i] = solveTemperature(ctx, ch, col, tr, temps[i], pressures, opt.Grain, opt.Ceiling, true)
 				if opt.Progress != nil {
 					opt.Progress()
 				}
@@ -248,24 +259,26 @@ func Run(ch Channel, col Collider, tr Transfer, temps, pressures []float64, opt 
 	}
 	close(next)
 	wg.Wait()
-	for i, err := range errs {
-		if err != nil {
-			return nil, fmt.Errorf("T = %g K: %w", temps[i], err)
-		}
+	if err := ctx.Err(); err != nil {
+		return nil, err
 	}
-	if !opt.SkipConvergence && len(pressures) > 0 {
-		c, err := convergence(ch, col, tr, res, opt)
+	for _, err := range errs {
 		if err != nil {
 			return nil, err
 		}
-		res.Convergence = c
+	}
+	if !opt.SkipConvergence && len(pressures) > 0 {
+		if err := convergence(ctx, ch, col, tr, res, opt); err != nil {
+			return nil, err
+		}
 	}
 	return res, nil
 }
 
 // convergence re-solves the corner points with half the grain and with the
-// ceiling 10 kT higher and returns the largest relative change of k.
-func convergence(ch Channel, col Collider, tr Transfer, res *Result, opt Options) (float64, error) {
+// ceiling 10 kT higher and records in res the largest relative change of k
+// and where it was found.
+func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res *Result, opt Options) error {
 	worst := 0.0
 	nT, nP := len(res.Temperatures), len(res.Pressures)
 	ps := []float64{res.Pressures[0], res.Pressures[nP-1]}
@@ -279,20 +292,27 @@ func convergence(ch Channel, col Collider, tr Transfer, res *Result, opt Options
 			if v.ceiling > ch.countedTop() {
 				continue // counters do not reach; the automatic ceiling has headroom
 			}
-			alt, err := solveTemperature(ch, col, tr, t, ps, v.grain, v.ceiling, false)
+			alt, err := solveTemperature(ctx, ch, col, tr, t, ps, v.grain, v.ceiling, false)
 			if err != nil {
-				return 0, fmt.Errorf("convergence check at %g K: %w", t, err)
+				var pe *PointError
+				if errors.As(err, &pe) {
+					pe.Stage = "convergence check (" + pe.Stage + ")"
+				}
+				return err
 			}
 			for j, k := range alt.K {
 				base := row.K[0]
 				if j == 1 {
 					base = row.K[nP-1]
 				}
-				worst = math.Max(worst, math.Abs(k/base-1))
+				if d := math.Abs(k/base - 1); d > worst || worst == 0 {
+					worst, res.ConvergenceT, res.ConvergenceP = d, t, ps[j]
+				}
 			}
 		}
 	}
-	return worst, nil
+	res.Convergence = worst
+	return nil
 }
 
 // prepared is one temperature's well with its energy-transfer operator.
@@ -445,13 +465,25 @@ func (p *prepared) k0PerOmega() (float64, []float64, error) {
 }
 
 // solveTemperature solves the grid pressures at tK and, with limits, k0
-// and the falloff centre.
-func solveTemperature(ch Channel, col Collider, tr Transfer, tK float64, pressures []float64, grain, ceiling float64, limits bool) (TemperatureResult, error) {
+// and the falloff centre. Failures are *PointError (or ctx.Err()); results
+// are checked against the limits of the theory before they are returned.
+func solveTemperature(ctx context.Context, ch Channel, col Collider, tr Transfer, tK float64, pressures []float64, grain, ceiling float64, limits bool) (TemperatureResult, error) {
+	fail := func(pPa float64, stage string, err error) (TemperatureResult, error) {
+		if errors.Is(err, ErrTooLarge) || errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+			return TemperatureResult{}, err
+		}
+		return TemperatureResult{}, &PointError{T: tK, P: pPa, Stage: stage, Err: err}
+	}
 	p, err := prepare(ch, tr, tK, grain, ceiling)
 	if err != nil {
-		return TemperatureResult{}, err
+		return fail(0, "energy grid", err)
 	}
 	w := p.w
+	for i, k := range w.K {
+		if !(k >= 0) || math.IsInf(k, 0) {
+			return fail(0, "k(E)", fmt.Errorf("k(E) = %v s-1 at E = %.6g cm-1: %w", k, w.E[i], errNotFinite))
+		}
+	}
 	z := col.Z(tK)
 	r := TemperatureResult{T: tK, K: make([]float64, len(pressures)), Z: z,
 		KInfME: w.KInf(), Grain: w.Grain, Ceiling: w.E[w.N()-1] + w.Grain/2, Grains: w.N(),
@@ -466,14 +498,20 @@ func solveTemperature(ch Channel, col Collider, tr Transfer, tK float64, pressur
 		r.Band, r.Rescaled = p.kernel.Band, p.kernel.Rescaled
 	}
 	if !(z > 0) || math.IsInf(z, 0) {
-		return r, fmt.Errorf("collision: collision rate constant %v cm3/molecule/s", z)
+		return fail(0, "collision rate", fmt.Errorf("collision rate constant %v cm3/molecule/s: %w", z, errNotFinite))
 	}
 	omegas := make([]float64, len(pressures))
 	for j, pr := range pressures {
+		if err := ctx.Err(); err != nil {
+			return TemperatureResult{}, err
+		}
 		omegas[j] = z * Concentration(pr, tK)
 		k, kc, err := p.rates(omegas[j])
 		if err != nil {
-			return r, fmt.Errorf("P = %g Pa: %w", pr, err)
+			return fail(pr, "k(T,P)", err)
+		}
+		if err := checkRate(k, r.KInfME, r.K[:j], pressures[:j+1]); err != nil {
+			return fail(pr, "k(T,P)", err)
 		}
 		r.K[j] = k
 		for c := range kc {
@@ -484,8 +522,11 @@ func solveTemperature(ch Channel, col Collider, tr Transfer, tK float64, pressur
 		return r, nil
 	}
 	k0, k0c, err := p.k0PerOmega()
+	if err == nil && (!(k0 > 0) || math.IsInf(k0, 0)) {
+		err = fmt.Errorf("k0/ω = %v: %w", k0, errNotFinite)
+	}
 	if err != nil {
-		return r, fmt.Errorf("low-pressure limit: %w", err)
+		return fail(0, "low-pressure limit", err)
 	}
 	r.K0 = k0 * z
 	for _, x := range k0c {
@@ -493,10 +534,31 @@ func solveTemperature(ch Channel, col Collider, tr Transfer, tK float64, pressur
 	}
 	omegaC, err := p.centre(r.KInfME, k0, omegas, r.K)
 	if err != nil {
-		return r, err
+		return fail(0, "falloff centre", err)
 	}
 	r.Centre = omegaC / z * units.Boltzmann * tK * 1e6
 	return r, nil
+}
+
+// limitTol is the relative excess over k∞, or fall with rising pressure,
+// at which a computed k counts as broken: far above rounding (the sweep
+// test finds ≤ 1e-9), far below any grain error.
+const limitTol = 1e-6
+
+// checkRate reports a k(T,P) that is not finite and positive, lies above
+// the high-pressure limit kInf on the same grains, or falls below the rate
+// at a lower pressure (prev are the rates at the earlier pressures ps).
+func checkRate(k, kInf float64, prev, ps []float64) error {
+	switch {
+	case !(k > 0) || math.IsInf(k, 0):
+		return fmt.Errorf("k = %v s-1: %w", k, errNotFinite)
+	case k > kInf*(1+limitTol):
+		return fmt.Errorf("k = %.6g s-1 above the high-pressure limit %.6g s-1: %w", k, kInf, errUnphysical)
+	}
+	if j := len(prev); j > 0 && ps[j] > ps[j-1] && k < prev[j-1]*(1-limitTol) {
+		return fmt.Errorf("k = %.6g s-1 below %.6g s-1 at the lower pressure %.4g Pa: %w", k, prev[j-1], ps[j-1], errUnphysical)
+	}
+	return nil
 }
 
 // centre returns the collision frequency where k = kInf/2, by false position

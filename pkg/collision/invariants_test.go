@@ -1,6 +1,7 @@
 package collision
 
 import (
+	"context"
 	"math"
 	"math/big"
 	"reflect"
@@ -191,7 +192,7 @@ func TestGrainConvergence(t *testing.T) {
 	}
 	worst := 0.0
 	for i, tK := range temps {
-		half, err := solveTemperature(ch, col, tr, tK, pressures, res.Rows[i].Grain/2, res.Rows[i].Ceiling, false)
+		half, err := solveTemperature(context.Background(), ch, col, tr, tK, pressures, res.Rows[i].Grain/2, res.Rows[i].Ceiling, false)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -20,10 +20,8 @@ type Solution struct {
 	Iterations int
 }
 
-const (
-	maxIterations = 1000
-	iterationTol  = 1e-13
-)
+// iterationTol is the relative change of λ at which inverse iteration stops.
+const iterationTol = 1e-13
 
 // system is A = −(symmetrised M), positive definite, in descending-energy
 // order (position p ↔ grain n−1−p), with the per-grain loss rates that enter
@@ -121,6 +119,10 @@ func buildLowPressure(w *Well, k *Kernel) *system {
 	op := newCollisionOperator(w, k, nk)
 	return &system{a: op.c, loss: op.escape, sqf: sqrtF(w, nk), tau: tauPerOmega}
 }
+
+// maxIterations bounds inverse iteration (a variable so that a test can
+// provoke the failure).
+var maxIterations = 1000
 
 // shiftEvery is the number of inverse iterations without convergence after
 // which the shift moves toward the slowest eigenvalue.
