@@ -192,6 +192,7 @@ func (m *Model) ReactantAndTS() (reactant, ts *Molecule) {
 // the checks.
 type parser struct {
 	file     string
+	data     []byte // the file's content, for messages about its lines
 	index    *nodeIndex
 	warnings []string
 }
