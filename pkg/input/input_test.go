@@ -392,6 +392,36 @@ func TestBadInput(t *testing.T) {
 	}
 }
 
+// Model.FieldError places a later check's error at the field's line with its
+// value as written; TemperaturePath names the field behind each temperature.
+func TestModelFieldError(t *testing.T) {
+	m, err := Parse(testFile, []byte(minimal))
+	if err != nil {
+		t.Fatal(err)
+	}
+	fe := m.FieldError("bath.gas", errors.New("not in the table"), "give its data")
+	if got, want := fe.Error(), `test.yaml:20: bath.gas: "Ar": not in the table (hint: give its data)`; got != want {
+		t.Errorf("got  %s\nwant %s", got, want)
+	}
+	if !m.Has("energy-grid.fine-grain") || m.Has("energy-grid.ceiling") {
+		t.Error("Has")
+	}
+	paths := []string{"grid.temperatures.from", "grid.temperatures", "grid.temperatures", "grid.temperatures", "grid.temperatures.to"}
+	for i, want := range paths {
+		if got := m.TemperaturePath(i); got != want {
+			t.Errorf("TemperaturePath(%d) = %q, want %q", i, got, want)
+		}
+	}
+	// A list is sorted on reading; the path keeps the index as written.
+	m, err = Parse(testFile, edit(t, "temperatures: {from: 300 K, to: 1500 K, points: 5}", "temperatures: {unit: K, values: [900, 300, 600]}"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := m.TemperaturePath(len(m.Temperatures) - 1); got != "grid.temperatures.values[0]" {
+		t.Errorf("path of the highest temperature %q, want grid.temperatures.values[0]", got)
+	}
+}
+
 // Competing channels, barrierless channels and tunnelling are read with
 // their units converted.
 func TestChannelsAndTunnelling(t *testing.T) {
