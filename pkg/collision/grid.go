@@ -226,6 +226,12 @@ func convergence(ch Channel, col Collider, tr Transfer, res *Result, opt Options
 	worst := 0.0
 	nT, nP := len(res.Temperatures), len(res.Pressures)
 	ps := []float64{res.Pressures[0], res.Pressures[nP-1]}
+	// The counters' reach; a barrierless channel has no transition-state
+	// counter.
+	reach := ch.Reactant.Ceiling()
+	if ch.TS != nil {
+		reach = math.Min(reach, ch.TS.Ceiling()+ch.E0)
+	}
 	for _, it := range []int{0, nT - 1} {
 		row := res.Rows[it]
 		t := row.T
@@ -233,8 +239,11 @@ func convergence(ch Channel, col Collider, tr Transfer, res *Result, opt Options
 			{row.Grain / 2, row.Ceiling},
 			{row.Grain, row.Ceiling + 10*units.KT(t)},
 		} {
-			if v.ceiling > math.Min(ch.Reactant.Ceiling(), ch.TS.Ceiling()+ch.E0) {
+			if v.ceiling > reach {
 				continue // counters do not reach; the automatic ceiling has headroom
+			}
+			if v.grain < ch.Reactant.Fine() {
+				continue // a grain this close to the fine grain cannot be halved on this count
 			}
 			alt, err := solveTemperature(ch, col, tr, t, ps, v.grain, v.ceiling, false)
 			if err != nil {
