@@ -45,7 +45,12 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) (vals []float
 	isList := given(&r.Unit) || given(&r.Values)
 	switch {
 	case isRange && isList:
-		return nil, nil, p.errAt(path, nil, problemf("mixes {from, to, points} with {unit, values}"), "use one form: "+shape)
+		// Point at the list's key, the one that joined the range.
+		kp, n := path+".unit", &r.Unit
+		if !given(n) {
+			kp, n = path+".values", &r.Values
+		}
+		return nil, nil, p.errAt(kp, n, problemf("mixes {from, to, points} with {unit, values}"), "use one form: "+shape)
 	case isList:
 		return p.axisList(path, r, d)
 	case !isRange:

@@ -331,7 +331,7 @@ func TestBadInput(t *testing.T) {
 		{"one point for a range", "points: 5", "points: 1", "grid.temperatures.points", "1", ""},
 		{"negative pressure", "values: [1, 0.1, 10]", "values: [1, -0.1, 10]", "grid.pressures.values[1]", "-0.1", ""},
 		{"duplicate temperature", "temperatures: {from: 300 K, to: 1500 K, points: 5}", "temperatures: {unit: K, values: [300, 400, 300]}", "grid.temperatures.values[2]", "300", ""},
-		{"range and list mixed", "points: 5}", "points: 5, unit: K}", "grid.temperatures", "", ""},
+		{"range and list mixed", "points: 5}", "points: 5, unit: K}", "grid.temperatures.unit", "K", "one form"},
 		{"temperatures missing", "  temperatures: {from: 300 K, to: 1500 K, points: 5}\n", "", "grid.temperatures", "", ""},
 		{"unknown fit", "fits: [troe]", "fits: [trow]", "fits[0]", "trow", "did you mean troe?"},
 		{"pressure fit without pressures", "  pressures: {unit: bar, values: [1, 0.1, 10]}\n", "", "fits[0]", "troe", "pressures"},
