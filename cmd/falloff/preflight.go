@@ -93,11 +93,13 @@ func checkCountSize(m *input.Model) error {
 			"lower the ceiling, or delete it to have it chosen automatically (at most E0 + 60 kT)")
 	}
 	i := len(m.Temperatures) - 1
-	kt := units.KT(1)
-	tMax := (limit*g.Fine - highestE0(m)) / ((collision.CeilingKTMax + 10) * kt)
-	return m.FieldError(m.TemperaturePath(i), err,
-		fmt.Sprintf("states are counted to E0 + %d kT at the highest temperature; with this fine grain that fits up to %s K (harmonic states are unreliable above about 5000 K anyway)",
-			collision.CeilingKTMax+10, num(tMax)))
+	tMax := ((limit-2)*g.Fine - highestE0(m)) / ((collision.CeilingKTMax + 10) * units.KT(1))
+	hint := fmt.Sprintf("states are counted to E0 + %d kT at the highest temperature; with this fine grain that fits up to %s K (harmonic states are unreliable above about 5000 K anyway)",
+		collision.CeilingKTMax+10, num(tMax))
+	if tMax < 1 {
+		hint = "with this fine grain not even E0 fits: use a coarser energy-grid.fine-grain"
+	}
+	return m.FieldError(m.TemperaturePath(i), err, hint)
 }
 
 // sizeSources says which master-equation settings came from the command line
