@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 
@@ -38,24 +39,22 @@ func newCollider(m *input.Model) (collision.Collider, bathInfo, error) {
 	if b.LJ != nil {
 		lj = collision.LennardJones{Sigma: b.LJ.Sigma, Epsilon: b.LJ.Epsilon}
 	} else if !known {
-		return collision.Collider{}, info, &input.FieldError{File: m.File, Path: "bath.gas", Value: b.Gas,
-			Err:  fmt.Errorf("not in the built-in bath-gas table"),
-			Hint: "give bath.mass and bath.lennard-jones, or bath.collision-rate; the table has " + strings.Join(collision.BathNames(), ", ")}
+		return collision.Collider{}, info, m.FieldError("bath.gas", errors.New("not in the built-in bath-gas table"),
+			"give bath.mass and bath.lennard-jones, or bath.collision-rate; the table has "+strings.Join(collision.BathNames(), ", "))
 	}
 	if info.Mass == 0 {
-		return collision.Collider{}, info, &input.FieldError{File: m.File, Path: "bath.mass", Value: b.Gas,
-			Err: fmt.Errorf("no mass for bath gas %q", b.Gas), Hint: "give bath.mass, e.g. 28.01 amu"}
+		return collision.Collider{}, info, m.FieldError("bath.mass", fmt.Errorf("missing: no mass for bath gas %q", b.Gas), "give bath.mass, e.g. 28.01 amu")
 	}
 	info.Sigma, info.Eps = lj.Sigma, lj.Epsilon
 	r, _ := m.ReactantAndTS()
 	if r.LJ == nil {
-		return collision.Collider{}, info, &input.FieldError{File: m.File, Path: "molecules." + r.Name + ".lennard-jones",
-			Err:  fmt.Errorf("missing: the collision rate needs the reactant's Lennard-Jones parameters"),
-			Hint: "add lennard-jones: {sigma: 5.0 angstrom, epsilon: 400 K}, or give bath.collision-rate"}
+		return collision.Collider{}, info, m.FieldError("molecules."+r.Name+".lennard-jones",
+			errors.New("missing: the collision rate with the bath gas needs the reactant's Lennard-Jones parameters"),
+			"add lennard-jones: {sigma: 5.0 angstrom, epsilon: 400 K} to the reactant, or give bath.collision-rate")
 	}
 	if r.Mass == 0 {
-		return collision.Collider{}, info, &input.FieldError{File: m.File, Path: "molecules." + r.Name + ".mass",
-			Err: fmt.Errorf("missing: the collision rate needs the reactant's mass"), Hint: "add mass: e.g. 70.09 amu"}
+		return collision.Collider{}, info, m.FieldError("molecules."+r.Name+".mass",
+			errors.New("missing: the collision rate needs the reactant's mass"), "add mass: e.g. 70.09 amu")
 	}
 	pair := collision.Combine(collision.LennardJones{Sigma: r.LJ.Sigma, Epsilon: r.LJ.Epsilon}, lj)
 	return collision.Collider{LJ: pair, Mu: collision.ReducedMass(r.Mass, info.Mass)}, info, nil

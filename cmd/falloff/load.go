@@ -35,6 +35,9 @@ func loadModel(args []string, quiet bool, s streams) (*input.Model, error) {
 			fmt.Fprintln(s.err, "warning:", w)
 		}
 	}
+	if err := preflight(m); err != nil {
+		return nil, err
+	}
 	return m, nil
 }
 

@@ -8,7 +8,6 @@ import (
 	"github.com/falloff-kinetics/falloff/pkg/collision"
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
-	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
 // channelSpec is one channel out of the well as the command sees it: the
@@ -96,19 +95,7 @@ func (c channelSpec) kInf(r *rrkm.Species, tK float64) float64 {
 func newNetwork(m *input.Model, ceiling float64) (collision.Channel, []channelSpec, error) {
 	r, _ := m.ReactantAndTS()
 	specs := channelSpecs(m)
-	tMax := m.Temperatures[len(m.Temperatures)-1]
-	ktMax := units.KT(tMax)
-	top := 0.0
-	for _, c := range specs {
-		var ts *rrkm.Species
-		if c.ts != nil {
-			ts = &c.ts.Species
-		}
-		top = math.Max(top, collision.CeilingBound(&r.Species, ts, c.e0, tMax)+10*ktMax)
-	}
-	if ceiling > 0 {
-		top = ceiling + 10*ktMax
-	}
+	top := countTop(m, ceiling)
 	rc, err := rrkm.NewCounter(&r.Species, m.EnergyGrid.Fine, top)
 	if err != nil {
 		return collision.Channel{}, nil, fmt.Errorf("%s: %w", m.File, err)

@@ -163,6 +163,9 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 	if ceiling > 0 && ceiling <= e0 {
 		return nil, usagef("--ceiling %q: not above the threshold %.0f cm-1", o.ceiling, e0)
 	}
+	if err := checkRatesSize(m, o, grain, ceiling); err != nil {
+		return nil, err // before counting any states
+	}
 	ch, specs, err := newNetwork(m, ceiling)
 	if err != nil {
 		return nil, err

@@ -118,3 +118,53 @@ func TestRatesErrors(t *testing.T) {
 		{"grid too large", []string{"rates", "--grain", "1 cm-1", ch3ncFile}, exitInput, "memory"},
 	})
 }
+
+// The convergence check runs on inputs it once failed on: a barrierless main
+// channel (no transition-state counter; it panicked) and a master-equation
+// grain less than twice the fine grain (half of it cannot be counted; it
+// exited 3 after the whole grid). The strong collider keeps the runs short.
+func TestRatesConvergenceCheckEdges(t *testing.T) {
+	dir := t.TempDir()
+	strong := func(name, file string, edits ...string) string {
+		t.Helper()
+		text, err := os.ReadFile(file)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := string(text)
+		for i := 0; i+1 < len(edits); i += 2 {
+			if !strings.Contains(s, edits[i]) {
+				t.Fatalf("%s: no %q", file, edits[i])
+			}
+			s = strings.Replace(s, edits[i], edits[i+1], 1)
+		}
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(s), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	cases := []struct{ name, path string }{
+		{"barrierless", strong("barrierless.yaml", barrierlessFile,
+			"  model: exponential-down\n  alpha-300: 200 cm-1\n  alpha-exponent: 0.8\n", "  model: strong-collider\n")},
+		{"grain below twice the fine grain", strong("grain.yaml", "../../testdata/demo.yaml",
+			"  model: exponential-down\n  alpha-300: 250 cm-1\n  alpha-exponent: 0.85\n", "  model: strong-collider\n",
+			"points: 12}", "points: 2}",
+			"fits: [troe, plog, chebyshev]", "energy-grid: {fine-grain: 10 cm-1, master-equation-grain: 15 cm-1}")},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			code, out, errs := runCLI(t, "rates", "--json", tc.path)
+			if code != exitOK {
+				t.Fatalf("exit %d: %s", code, errs)
+			}
+			var r ratesReport
+			if err := json.Unmarshal([]byte(out), &r); err != nil {
+				t.Fatal(err)
+			}
+			if r.Convergence == nil {
+				t.Error("no convergence figure: the check did not run")
+			}
+		})
+	}
+}

@@ -277,3 +277,30 @@ func TestBandedMatchesDense(t *testing.T) {
 		}
 	}
 }
+
+// MatrixSize, with which callers check a request before counting states,
+// puts a grain edge on E0 as Run does and counts the banded kernel's
+// entries: N grains × (band + 1), the band reaching where exp(−ΔE/α) falls
+// below BandTolerance (16.1 α for 1e-7), one entry a grain for the strong
+// collider.
+func TestMatrixSize(t *testing.T) {
+	const e0, ceiling = 14689.7, 60000.0
+	tr := Transfer{Alpha300: 250}
+	g, n := MatrixSize(tr, 300, 10, ceiling, e0)
+	if edge := e0/g.Width - 0.5; math.Abs(edge-math.Round(edge)) > 1e-9 {
+		t.Errorf("grain %v: E0 is not on a grain edge (E0/grain − ½ = %v)", g.Width, edge)
+	}
+	// The move changes the grain by less than 0.1 %: 5998 grains of 10.003
+	// cm-1 reach 60000 cm-1.
+	if want := float64(g.N) * math.Ceil(250*math.Log(1e7)/g.Width+1); n != want || g.N != 5998 {
+		t.Errorf("%d grains, %v entries; want 5998 grains, %v entries", g.N, n, want)
+	}
+	gs, ns := MatrixSize(Transfer{Strong: true, Efficiency: 1}, 300, 10, ceiling, e0)
+	if ns != float64(gs.N) {
+		t.Errorf("strong collider: %v entries for %d grains", ns, gs.N)
+	}
+	// Automatic grain: min(α, kT)/5 before the move onto E0.
+	if g, _ := MatrixSize(tr, 300, 0, ceiling, e0); math.Abs(g.Width/GrainFor(tr, 300)-1) > 0.01 {
+		t.Errorf("automatic grain %v, GrainFor %v", g.Width, GrainFor(tr, 300))
+	}
+}

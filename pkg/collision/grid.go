@@ -292,6 +292,9 @@ func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res
 			if v.ceiling > ch.countedTop() {
 				continue // counters do not reach; the automatic ceiling has headroom
 			}
+			if v.grain < ch.Reactant.Fine() {
+				continue // a grain this close to the fine grain cannot be halved on this count
+			}
 			alt, err := solveTemperature(ctx, ch, col, tr, t, ps, v.grain, v.ceiling, false)
 			if err != nil {
 				var pe *PointError
@@ -322,6 +325,42 @@ type prepared struct {
 	eff    float64
 }
 
+// edgeGrain returns grain moved so that a grain edge falls on the (lowest)
+// threshold e0, so that every grain is wholly below or wholly above it:
+// otherwise the grain across E0 reacts as a whole in the low-pressure limit,
+// a first-order grain error.
+func edgeGrain(grain, e0 float64) float64 {
+	if n := math.Round(e0/grain - 0.5); n >= 1 {
+		return e0 / (n + 0.5)
+	}
+	return grain
+}
+
+// matrixEntries is the number of stored entries of the master equation on
+// grains g at tK: the banded kernel's grains × band for exponential-down (the
+// band reaching where exp(−ΔE/α) falls below BandTolerance), one per grain
+// for the strong collider.
+func matrixEntries(tr Transfer, tK float64, g rrkm.Grains) float64 {
+	if tr.Strong {
+		return float64(g.N)
+	}
+	return float64(g.N) * math.Ceil(tr.Alpha(tK)*-math.Log(BandTolerance)/g.Width+1)
+}
+
+// MatrixSize returns the grains and the number of matrix entries (8 bytes
+// each; Run refuses more than MaxMatrixEntries) of the master equation at tK
+// with grain and ceiling in cm⁻¹ (grain 0: automatic, GrainFor), the grain
+// moved as Run moves it so that an edge falls on the lowest threshold e0. It
+// lets a caller check a request before counting any states; for an automatic
+// ceiling pass its largest value, e0 + CeilingKTMax·kT.
+func MatrixSize(tr Transfer, tK, grain, ceiling, e0 float64) (rrkm.Grains, float64) {
+	if grain == 0 {
+		grain = GrainFor(tr, tK)
+	}
+	g := rrkm.GrainsTo(edgeGrain(grain, e0), ceiling)
+	return g, matrixEntries(tr, tK, g)
+}
+
 func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, error) {
 	if grain == 0 {
 		grain = GrainFor(tr, tK)
@@ -332,12 +371,7 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 			return nil, err
 		}
 	}
-	// Put a grain edge on the (lowest) threshold, so that every grain is
-	// wholly below or wholly above it: otherwise the grain across E0 reacts
-	// as a whole in the low-pressure limit, a first-order grain error.
-	if e0 := ch.lowestE0(); math.Round(e0/grain-0.5) >= 1 {
-		grain = e0 / (math.Round(e0/grain-0.5) + 0.5)
-	}
+	grain = edgeGrain(grain, ch.lowestE0())
 	if grain < ch.Reactant.Fine() {
 		return nil, fmt.Errorf("collision: grain %.3g cm-1 is below the fine counting grain %g cm-1 (hint: a smaller fine-grain, or a larger grain)", grain, ch.Reactant.Fine())
 	}
@@ -345,12 +379,11 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 	if top := g.Top(); top > ch.Reactant.Ceiling()+ch.Reactant.Fine() {
 		return nil, fmt.Errorf("collision: ceiling %.0f cm-1 above the counted states (%.0f cm-1)", top, ch.Reactant.Ceiling())
 	}
-	if tr.Strong {
-		if float64(g.N) > MaxMatrixEntries {
+	if matrixEntries(tr, tK, g) > MaxMatrixEntries {
+		if tr.Strong {
 			return nil, fmt.Errorf("%w: %d grains", ErrTooLarge, g.N)
 		}
-	} else if a := tr.Alpha(tK); float64(g.N)*math.Ceil(a*-math.Log(BandTolerance)/grain+1) > MaxMatrixEntries {
-		return nil, fmt.Errorf("%w: %d grains of %.3g cm-1 with α = %.3g cm-1 (hint: a larger grain or a lower ceiling)", ErrTooLarge, g.N, grain, a)
+		return nil, fmt.Errorf("%w: %d grains of %.3g cm-1 with α = %.3g cm-1 (hint: a larger grain or a lower ceiling)", ErrTooLarge, g.N, grain, tr.Alpha(tK))
 	}
 	var kc [][]float64 // k(E) per channel on the grains g
 	var total *rrkm.Micro

@@ -196,8 +196,12 @@ func ReadCSV(name string, r io.Reader) (*Table, error) {
 			v, err := strconv.ParseFloat(s, 64)
 			if err != nil {
 				hint := "write a plain number such as 1.5e-12"
-				if strings.ContainsAny(s, "abcdfghijklmnopqrstuvwxyzABCDFGHIJKLMNOPQRSTUVWXYZ/") {
-					hint = "units belong in the header only (" + headerExample + "), not in the rows"
+				// A number followed by more text is a value with its unit;
+				// a word ("fast") is not a number at all.
+				if num, rest := units.SplitNumber(s); rest != "" {
+					if _, err := strconv.ParseFloat(num, 64); err == nil {
+						hint = "units belong in the header only (" + headerExample + "), not in the rows"
+					}
 				}
 				return nil, fail(line, i+1, head[i], s, errors.New("not a number"), hint)
 			}

@@ -72,6 +72,7 @@ func TestReadCSVBad(t *testing.T) {
 		{"NaN k", "T/K,P/atm,k/s-1\n300,1,1\n400,1,NaN\n500,1,3\n", []string{"in.csv:3", "column 3", "not a finite number"}},
 		{"bad number", "T/K,P/atm,k/s-1\n300,1,1\n400,1.0.1,2\n500,1,3\n", []string{"in.csv:3", "column 2 (P/atm)", `"1.0.1"`, "not a number"}},
 		{"units in a row", "T/K,P/atm,k/s-1\n300,1,1\n400 K,1,2\n500,1,3\n", []string{"in.csv:3", "column 1", "units belong in the header"}},
+		{"a word for a number", "T/K,P/atm,k/s-1\n300,1,1\n400,1,fast\n500,1,3\n", []string{"in.csv:3", "column 3 (k/s-1)", `"fast"`, "write a plain number"}},
 		{"mixed fields", "T/K,P/atm,k/s-1\n300,1,1\n400,1,2,5\n500,1,3\n", []string{"in.csv:3", "4 fields, the header has 3"}},
 		{"decimal comma", "T/K,P/atm,k/s-1\n300,1,1\n400,1,2,5\n", []string{"in.csv:3", "decimal commas"}},
 		{"duplicate point", "T/K,P/atm,k/s-1\n300,1,1\n300,1,2\n500,1,3\n", []string{"in.csv:3", "same T and P as line 2"}},

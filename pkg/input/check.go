@@ -49,7 +49,7 @@ func (p *parser) model(raw *rawFile) (*Model, error) {
 			return nil, err
 		}
 	}
-	if m.Temperatures, m.Pressures, err = p.grid(raw.Grid); err != nil {
+	if m.Temperatures, m.tempPaths, m.Pressures, err = p.grid(raw.Grid); err != nil {
 		return nil, err
 	}
 	if m.Fits, err = p.fits(&raw.Fits); err != nil {

@@ -11,30 +11,33 @@ import (
 	"go.yaml.in/yaml/v3"
 )
 
-// grid converts the temperature and pressure grid.
-func (p *parser) grid(r *rawGrid) (temps, pressures []float64, err error) {
+// grid converts the temperature and pressure grid; tempPaths[i] is the path
+// of the field that gives temps[i].
+func (p *parser) grid(r *rawGrid) (temps []float64, tempPaths []string, pressures []float64, err error) {
 	if r == nil {
-		return nil, nil, p.missing("grid", "give at least grid: {temperatures: {from: 300 K, to: 2500 K, points: 12}}")
+		return nil, nil, nil, p.missing("grid", "give at least grid: {temperatures: {from: 300 K, to: 2500 K, points: 12}}")
 	}
 	if r.Temperatures == nil {
-		return nil, nil, p.missing("grid.temperatures", "write temperatures: {from: 300 K, to: 2500 K, points: 12} or {unit: K, values: [300, 400]}")
+		return nil, nil, nil, p.missing("grid.temperatures", "write temperatures: {from: 300 K, to: 2500 K, points: 12} or {unit: K, values: [300, 400]}")
 	}
-	if temps, err = p.axis("grid.temperatures", r.Temperatures, units.Temperature); err != nil {
-		return nil, nil, err
+	if temps, tempPaths, err = p.axis("grid.temperatures", r.Temperatures, units.Temperature); err != nil {
+		return nil, nil, nil, err
 	}
 	if r.Pressures != nil {
-		if pressures, err = p.axis("grid.pressures", r.Pressures, units.Pressure); err != nil {
-			return nil, nil, err
+		if pressures, _, err = p.axis("grid.pressures", r.Pressures, units.Pressure); err != nil {
+			return nil, nil, nil, err
 		}
 	}
-	return temps, pressures, nil
+	return temps, tempPaths, pressures, nil
 }
 
 // axis converts a temperature or pressure axis, {from, to, points} or
 // {unit, values}, into ascending values in the internal unit of d.
 // Temperatures from a range are evenly spaced in 1/T, pressures in log P,
-// the spacings in which rate constants vary most smoothly.
-func (p *parser) axis(path string, r *rawRange, d units.Dimension) ([]float64, error) {
+// the spacings in which rate constants vary most smoothly. paths[i] is the
+// path of the field that gives the i-th value: from or to at the ends of a
+// range, the range itself inside it, values[k] for a list.
+func (p *parser) axis(path string, r *rawRange, d units.Dimension) (vals []float64, paths []string, err error) {
 	shape := fmt.Sprintf("{from: %s, to: %s, points: 12} or {unit: %s, values: [...]}",
 		map[units.Dimension]string{units.Temperature: "300 K", units.Pressure: "0.001 bar"}[d],
 		map[units.Dimension]string{units.Temperature: "2500 K", units.Pressure: "1000 bar"}[d], d.Internal())
@@ -42,11 +45,16 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) ([]float64, e
 	isList := given(&r.Unit) || given(&r.Values)
 	switch {
 	case isRange && isList:
-		return nil, p.errAt(path, nil, problemf("mixes {from, to, points} with {unit, values}"), "use one form: "+shape)
+		// Point at the list's key, the one that joined the range.
+		kp, n := path+".unit", &r.Unit
+		if !given(n) {
+			kp, n = path+".values", &r.Values
+		}
+		return nil, nil, p.errAt(kp, n, problemf("mixes {from, to, points} with {unit, values}"), "use one form: "+shape)
 	case isList:
 		return p.axisList(path, r, d)
 	case !isRange:
-		return nil, p.errAt(path, nil, problemf("empty"), "write "+shape)
+		return nil, nil, p.errAt(path, nil, problemf("empty"), "write "+shape)
 	}
 
 	positive := func(key string, n *yaml.Node) (float64, error) {
@@ -65,33 +73,33 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) ([]float64, e
 	}
 	from, err := positive("from", &r.From)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	to, err := positive("to", &r.To)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	pp := path + ".points"
 	if !given(&r.Points) {
-		return nil, p.missing(pp, "give the number of points, e.g. points: 12")
+		return nil, nil, p.missing(pp, "give the number of points, e.g. points: 12")
 	}
 	n, err := p.integer(pp, &r.Points)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	switch {
 	case n < 1:
-		return nil, p.errAt(pp, &r.Points, problemf("must be at least 1"), "give 2 or more points, or 1 with from equal to to")
+		return nil, nil, p.errAt(pp, &r.Points, problemf("must be at least 1"), "give 2 or more points, or 1 with from equal to to")
 	case from > to:
-		return nil, p.errAt(path+".from", &r.From, problemf("above to (%s)", r.To.Value), "from is the low end of the range: swap them")
+		return nil, nil, p.errAt(path+".from", &r.From, problemf("above to (%s)", r.To.Value), "from is the low end of the range: swap them")
 	case from == to && n > 1:
-		return nil, p.errAt(pp, &r.Points, problemf("%d points between equal ends", n), "use points: 1, or widen the range")
+		return nil, nil, p.errAt(pp, &r.Points, problemf("%d points between equal ends", n), "use points: 1, or widen the range")
 	case from < to && n == 1:
-		return nil, p.errAt(pp, &r.Points, problemf("one point cannot span from %s to %s", r.From.Value, r.To.Value),
+		return nil, nil, p.errAt(pp, &r.Points, problemf("one point cannot span from %s to %s", r.From.Value, r.To.Value),
 			"give 2 or more points, or make from equal to to")
 	}
 	if n == 1 {
-		return []float64{from}, nil
+		return []float64{from}, []string{path + ".from"}, nil
 	}
 
 	// x is 1/T or ln P; the ends are set exactly, not recomputed.
@@ -101,45 +109,50 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) ([]float64, e
 	}
 	x0, x1 := fwd(from), fwd(to)
 	out := make([]float64, n)
+	paths = make([]string, n)
 	for i := range out {
 		out[i] = inv(x0 + (x1-x0)*float64(i)/float64(n-1))
+		paths[i] = path
 	}
 	out[0], out[n-1] = from, to
-	return out, nil
+	paths[0], paths[n-1] = path+".from", path+".to"
+	return out, paths, nil
 }
 
 func positiveHint(d units.Dimension) string {
 	if d == units.Temperature {
 		return "temperatures are absolute, in K"
 	}
-	return ""
+	return "pressures are absolute, e.g. 1 atm; the grid is spaced in log P"
 }
 
-// axisList converts {unit, values} into sorted values; duplicates are an
-// error.
-func (p *parser) axisList(path string, r *rawRange, d units.Dimension) ([]float64, error) {
+// axisList converts {unit, values} into sorted values and the path of each;
+// duplicates are an error.
+func (p *parser) axisList(path string, r *rawRange, d units.Dimension) ([]float64, []string, error) {
 	xs, nodes, err := p.list(path, &rawList{Unit: r.Unit, Values: r.Values}, d)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	order := make([]int, len(xs))
 	for i := range order {
 		order[i] = i
 		if !(xs[i] > 0) {
-			return nil, p.errAt(fmt.Sprintf("%s.values[%d]", path, i), nodes[i], problemf("a %s must be positive", d), positiveHint(d))
+			return nil, nil, p.errAt(fmt.Sprintf("%s.values[%d]", path, i), nodes[i], problemf("a %s must be positive", d), positiveHint(d))
 		}
 	}
 	sort.SliceStable(order, func(a, b int) bool { return xs[order[a]] < xs[order[b]] })
 	out := make([]float64, len(xs))
+	paths := make([]string, len(xs))
 	for k, i := range order {
 		out[k] = xs[i]
+		paths[k] = fmt.Sprintf("%s.values[%d]", path, i)
 		if k > 0 && out[k] == out[k-1] {
 			later := max(i, order[k-1])
-			return nil, p.errAt(fmt.Sprintf("%s.values[%d]", path, later), nodes[later],
+			return nil, nil, p.errAt(fmt.Sprintf("%s.values[%d]", path, later), nodes[later],
 				problemf("given twice (also values[%d])", min(i, order[k-1])), "delete one of them")
 		}
 	}
-	return out, nil
+	return out, paths, nil
 }
 
 // fitNames are the fitted forms pkg/fit provides; all but arrhenius describe

@@ -286,6 +286,9 @@ func TestBadInput(t *testing.T) {
 		{"list without unit", "vibrations: {unit: cm-1, values: [3000, 1500, 1000]}", "vibrations: {values: [3000, 1500, 1000]}", "molecules.r.vibrations.unit", "", "cm-1"},
 		{"list not a mapping", "vibrations: {unit: cm-1, values: [3000, 1500, 1000]}", "vibrations: [3000, 1500, 1000]", "molecules.r.vibrations", "", "unit"},
 		{"zero frequency", "values: [3000, 1500, 1000]", "values: [3000, 0, 1000]", "molecules.r.vibrations.values[1]", "0", ""},
+		// A letter O for a zero is a mistyped number, not a unit.
+		{"letter O in a frequency", "values: [3000, 1500, 1000]", "values: [3000, 15O0, 1000]", "molecules.r.vibrations.values[1]", "15O0", "plain number"},
+		{"unit on a frequency", "values: [3000, 1500, 1000]", "values: [3000, 1500cm-1, 1000]", "molecules.r.vibrations.values[1]", "1500cm-1", "once for the whole list"},
 		{"NaN frequency", "values: [3000, 1500, 1000]", "values: [3000, .nan, 1000]", "molecules.r.vibrations.values[1]", ".nan", ""},
 		{"negative frequency in stable species", "values: [3000, 1500, 1000]", "values: [3000, -1500, 1000]", "molecules.r.vibrations.values[1]", "-1500", "is this a transition state?"},
 		{"negative frequency in TS", "values: [2900, 1200]", "values: [2900, -800]", "molecules.ts.vibrations.values[1]", "-800", "imaginary-frequency"},
@@ -300,10 +303,16 @@ func TestBadInput(t *testing.T) {
 		{"optical isomers zero", "optical-isomers: 1", "optical-isomers: 0", "molecules.r.optical-isomers", "0", ""},
 		{"optical isomers fractional", "optical-isomers: 1", "optical-isomers: 1.5", "molecules.r.optical-isomers", "1.5", ""},
 		{"negative E0", "energy: 40 kcal/mol", "energy: -5 kcal/mol", "molecules.ts.energy", "-5 kcal/mol", "zero-point level"},
+		// 13990 cm-1 is 40 kcal/mol: the number written with the wrong unit.
+		{"E0 above any bond energy", "energy: 40 kcal/mol", "energy: 13990 kcal/mol", "molecules.ts.energy", "13990 kcal/mol", `write "13990 cm-1" (40 kcal/mol)`},
+		{"E0 above any bond energy in cm-1", "energy: 40 kcal/mol", "energy: 120000 cm-1", "molecules.ts.energy", "120000 cm-1", "check the unit"},
+		{"barrierless threshold above any bond energy", "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  competing:\n    - {barrierless: {A: 1e15 s-1, energy: 400 kcal/mol}, products: [c, d]}\n", "reaction.competing[0].barrierless.energy", "400 kcal/mol", "check the unit"},
+		{"E0 beyond floating point", "energy: 40 kcal/mol", "energy: 1e400 kcal/mol", "molecules.ts.energy", "1e400 kcal/mol", "exponent"},
 		{"electronic without ground level", "    optical-isomers: 1\n", "    electronic: [{energy: 100 cm-1, degeneracy: 2}]\n", "molecules.r.electronic", "", "0 cm-1"},
 		{"epsilon without unit", "epsilon: 230 K", "epsilon: 230", "molecules.r.lennard-jones.epsilon", "230", "K"},
 		{"reactant missing", "  reactant: r\n", "", "reaction.reactant", "", "r, ts"},
 		{"reactant not a molecule", "reactant: r", "reactant: q", "reaction.reactant", "q", "r, ts"},
+		{"reactant misspelt", "reactant: r", "reactant: R", "reaction.reactant", "R", "did you mean r?"},
 		{"reactant is a TS", "reactant: r", "reactant: ts", "reaction.reactant", "ts", ""},
 		{"via missing", "  via: ts\n", "", "reaction.via", "", ""},
 		{"via not a TS", "via: ts", "via: r", "reaction.via", "r", "energy:"},
@@ -312,7 +321,7 @@ func TestBadInput(t *testing.T) {
 		{"path degeneracy not a number", "path-degeneracy: auto", "path-degeneracy: many", "reaction.path-degeneracy", "many", "auto"},
 		{"unknown top-level key", "fits: [troe]\n", "fits: [troe]\ncolour: blue\n", "colour", "colour", "title"},
 		{"misspelt key", "    vibrations: {unit: cm-1, values: [3000", "    vibration: {unit: cm-1, values: [3000", "molecules.r.vibration", "vibration", "did you mean vibrations?"},
-		{"misspelt nested key", "alpha-exponent: 0.85", "alpha-exp: 0.85", "energy-transfer.alpha-exp", "alpha-exp", "alpha-exponent"},
+		{"misspelt nested key", "alpha-exponent: 0.85", "alpha-exp: 0.85", "energy-transfer.alpha-exp", "alpha-exp", "did you mean alpha-exponent?"},
 		{"key given twice", "  via: ts\n", "  via: ts\n  via: ts\n", "reaction.via", "via", ""},
 		{"key without value", "  gas: Ar", "  gas:", "bath.gas", "", ""},
 		{"zero temperature", "from: 300 K", "from: 0 K", "grid.temperatures.from", "0 K", ""},
@@ -322,7 +331,7 @@ func TestBadInput(t *testing.T) {
 		{"one point for a range", "points: 5", "points: 1", "grid.temperatures.points", "1", ""},
 		{"negative pressure", "values: [1, 0.1, 10]", "values: [1, -0.1, 10]", "grid.pressures.values[1]", "-0.1", ""},
 		{"duplicate temperature", "temperatures: {from: 300 K, to: 1500 K, points: 5}", "temperatures: {unit: K, values: [300, 400, 300]}", "grid.temperatures.values[2]", "300", ""},
-		{"range and list mixed", "points: 5}", "points: 5, unit: K}", "grid.temperatures", "", ""},
+		{"range and list mixed", "points: 5}", "points: 5, unit: K}", "grid.temperatures.unit", "K", "one form"},
 		{"temperatures missing", "  temperatures: {from: 300 K, to: 1500 K, points: 5}\n", "", "grid.temperatures", "", ""},
 		{"unknown fit", "fits: [troe]", "fits: [trow]", "fits[0]", "trow", "did you mean troe?"},
 		{"pressure fit without pressures", "  pressures: {unit: bar, values: [1, 0.1, 10]}\n", "", "fits[0]", "troe", "pressures"},
@@ -346,6 +355,7 @@ func TestBadInput(t *testing.T) {
 		{"empty file", minimal, "", "", "", ""},
 		{"only a comment", minimal, "# nothing here\n", "", "", ""},
 		{"not YAML", minimal, "title: [unclosed\nmolecules: {\n", "", "", ""},
+		{"tab indentation", "    mass: 28.05 amu\n", "\tmass: 28.05 amu\n", "", "", "tabs"},
 		{"not a mapping", minimal, "just some text\n", "", "", ""},
 	}
 	for _, tc := range cases {
@@ -379,6 +389,36 @@ func TestBadInput(t *testing.T) {
 				t.Errorf("Hint = %q, want it to mention %q", fe.Hint, tc.hint)
 			}
 		})
+	}
+}
+
+// Model.FieldError places a later check's error at the field's line with its
+// value as written; TemperaturePath names the field behind each temperature.
+func TestModelFieldError(t *testing.T) {
+	m, err := Parse(testFile, []byte(minimal))
+	if err != nil {
+		t.Fatal(err)
+	}
+	fe := m.FieldError("bath.gas", errors.New("not in the table"), "give its data")
+	if got, want := fe.Error(), `test.yaml:20: bath.gas: "Ar": not in the table (hint: give its data)`; got != want {
+		t.Errorf("got  %s\nwant %s", got, want)
+	}
+	if !m.Has("energy-grid.fine-grain") || m.Has("energy-grid.ceiling") {
+		t.Error("Has")
+	}
+	paths := []string{"grid.temperatures.from", "grid.temperatures", "grid.temperatures", "grid.temperatures", "grid.temperatures.to"}
+	for i, want := range paths {
+		if got := m.TemperaturePath(i); got != want {
+			t.Errorf("TemperaturePath(%d) = %q, want %q", i, got, want)
+		}
+	}
+	// A list is sorted on reading; the path keeps the index as written.
+	m, err = Parse(testFile, edit(t, "temperatures: {from: 300 K, to: 1500 K, points: 5}", "temperatures: {unit: K, values: [900, 300, 600]}"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := m.TemperaturePath(len(m.Temperatures) - 1); got != "grid.temperatures.values[0]" {
+		t.Errorf("path of the highest temperature %q, want grid.temperatures.values[0]", got)
 	}
 }
 

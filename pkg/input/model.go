@@ -4,6 +4,7 @@ import (
 	"os"
 
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"go.yaml.in/yaml/v3"
 )
 
 // Model is the content of an input file, checked and converted to internal
@@ -30,6 +31,9 @@ type Model struct {
 	Warnings []string
 	// Source is the file's content as read (for provenance checksums).
 	Source []byte
+
+	index     *nodeIndex // where each field is in the file, for FieldError
+	tempPaths []string   // tempPaths[i]: the field giving Temperatures[i]
 }
 
 // Molecule is a stable species or a transition state.
@@ -157,7 +161,40 @@ func Parse(name string, data []byte) (*Model, error) {
 	}
 	m.Warnings = p.warnings
 	m.Source = data
+	m.index = p.index
 	return m, nil
+}
+
+// FieldError returns a *FieldError about the field at path (a dotted path as
+// in messages, such as bath.gas) with the field's line and its value as
+// written, for checks a caller makes after Parse: against a built-in table,
+// or of the memory a calculation would take.
+func (m *Model) FieldError(path string, err error, hint string) *FieldError {
+	p := &parser{file: m.File, index: m.index}
+	var n *yaml.Node
+	if m.index != nil {
+		n = m.index.byPath[path]
+	}
+	return p.errAt(path, n, err, hint)
+}
+
+// Has reports whether the file gives the field at path.
+func (m *Model) Has(path string) bool {
+	if m.index == nil {
+		return false
+	}
+	_, ok := m.index.byPath[path]
+	return ok
+}
+
+// TemperaturePath returns the path of the field that gives Temperatures[i]:
+// grid.temperatures.from or grid.temperatures.to at the ends of a range,
+// grid.temperatures inside it, grid.temperatures.values[k] for a list.
+func (m *Model) TemperaturePath(i int) string {
+	if i < 0 || i >= len(m.tempPaths) {
+		return "grid.temperatures"
+	}
+	return m.tempPaths[i]
 }
 
 // ReadFile reads and parses the input file at path; path is used in
@@ -192,6 +229,7 @@ func (m *Model) ReactantAndTS() (reactant, ts *Molecule) {
 // the checks.
 type parser struct {
 	file     string
+	data     []byte // the file's content, for messages about its lines
 	index    *nodeIndex
 	warnings []string
 }

@@ -3,6 +3,7 @@ package input
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
@@ -60,7 +61,7 @@ func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) 
 			return nil, err
 		}
 		if !(v > 0) {
-			return nil, p.errAt(path+".mass", &r.Mass, problemf("a mass must be positive"), "")
+			return nil, p.errAt(path+".mass", &r.Mass, problemf("a mass must be positive"), "give the molar mass, e.g. mass: 70.09 amu")
 		}
 		m.Mass = v
 	}
@@ -73,6 +74,9 @@ func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) 
 		if e0 < 0 {
 			return nil, p.errAt(path+".energy", &r.Energy, problemf("negative barrier"),
 				"energy is the zero-point-corrected barrier E0, measured from the reactant's zero-point level; a transition state cannot lie below it")
+		}
+		if err := p.threshold(path+".energy", &r.Energy, "E0", e0); err != nil {
+			return nil, err
 		}
 		m.E0 = e0
 	}
@@ -160,6 +164,34 @@ func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) 
 		m.Hindered = append(m.Hindered, h)
 	}
 	return m, nil
+}
+
+// maxThresholdKcal bounds a threshold energy (a barrier E0, or the energy of
+// a barrierless channel) in kcal/mol: no reaction threshold lies above every
+// chemical bond energy. The strongest bond known, C≡O in carbon monoxide,
+// takes 1076.5 kJ/mol (257 kcal/mol) to break, N≡N 945.3 kJ/mol (226
+// kcal/mol) (bond strengths of diatomic molecules at 298 K, CRC Handbook of
+// Chemistry and Physics, 79th ed., 1998). A value above the bound is a unit
+// slip (a number in cm-1 written with kcal/mol, say), and its state count
+// would be needlessly large.
+const maxThresholdKcal = 300.0
+
+// threshold rejects a threshold energy e cm⁻¹ (the value n of the field at
+// path, called name in the message) above maxThresholdKcal.
+func (p *parser) threshold(path string, n *yaml.Node, name string, e float64) error {
+	kcal := e / units.Cm1PerKcalPerMol
+	if kcal <= maxThresholdKcal {
+		return nil
+	}
+	hint := "check the unit; the strongest chemical bond, C≡O, is about 257 kcal/mol"
+	// Say what the number would mean in cm-1, the unit most often meant.
+	num, unit := units.SplitNumber(strings.TrimSpace(n.Value))
+	if x, err := strconv.ParseFloat(num, 64); err == nil && !strings.EqualFold(unit, "cm-1") {
+		if alt := x / units.Cm1PerKcalPerMol; alt >= lowBarrierKcal && alt <= maxThresholdKcal {
+			hint += fmt.Sprintf("; if the number is in cm-1, write %q (%.3g kcal/mol)", num+" cm-1", alt)
+		}
+	}
+	return p.errAt(path, n, problemf("%s = %.6g kcal/mol is above %g kcal/mol, more than any chemical bond energy", name, kcal, maxThresholdKcal), hint)
 }
 
 // hindered reads {constant: 5.3 cm-1 (or inertia: 3.2 amu*angstrom^2),

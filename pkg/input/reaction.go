@@ -35,7 +35,11 @@ func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
 		}
 		m := byName[name]
 		if m == nil {
-			return nil, p.errAt(path, n, problemf("no molecule of this name"), inFile)
+			hint := inFile
+			if s := closest(name, names); s != "" {
+				hint = "did you mean " + s + "? " + inFile
+			}
+			return nil, p.errAt(path, n, problemf("no molecule of this name"), hint)
 		}
 		return m, nil
 	}
@@ -259,6 +263,9 @@ func (p *parser) barrierless(path string, r *rawBarrierless) (*Barrierless, erro
 		if !(b.Energy >= 0) {
 			return nil, p.errAt(path+".energy", &r.Energy, problemf("must not be negative"), "")
 		}
+		if err := p.threshold(path+".energy", &r.Energy, "the threshold", b.Energy); err != nil {
+			return nil, err
+		}
 	}
 	return b, nil
 }
@@ -279,7 +286,7 @@ func (p *parser) bath(r *rawBath) (Bath, error) {
 			return b, err
 		}
 		if !(b.Mass > 0) {
-			return b, p.errAt("bath.mass", &r.Mass, problemf("a mass must be positive"), "")
+			return b, p.errAt("bath.mass", &r.Mass, problemf("a mass must be positive"), "give the molar mass, e.g. mass: 39.95 amu")
 		}
 	}
 	if r.LennardJones != nil {

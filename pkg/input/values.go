@@ -78,7 +78,14 @@ func (p *parser) scalar(path string, n *yaml.Node, example string) error {
 	if n.Kind == yaml.ScalarNode {
 		return nil
 	}
-	return p.errAt(path, n, problemf("expected a single value such as %s, found %s", example, kindName(n)), "")
+	hint := ""
+	switch n.Kind {
+	case yaml.SequenceNode:
+		hint = "write one value, without [ ]"
+	case yaml.MappingNode:
+		hint = "write one value, without { }"
+	}
+	return p.errAt(path, n, problemf("expected a single value such as %s, found %s", example, kindName(n)), hint)
 }
 
 // quantity reads a value with its unit, such as "42.0 kcal/mol", into the
@@ -132,6 +139,9 @@ func (p *parser) unitError(path string, n *yaml.Node, text string, d units.Dimen
 	case errors.Is(err, units.ErrNoUnit):
 		return p.errAt(path, n, &problem{"no unit", err},
 			fmt.Sprintf("write it with its unit, e.g. %q; %s", num+" "+d.Internal(), list))
+	case errors.Is(nerr, strconv.ErrRange) && math.IsInf(x, 0):
+		return p.errAt(path, n, &problem{"not a finite number (beyond the range of floating point, about 1.8e308)", err},
+			"check the exponent")
 	case num == "" || nerr != nil:
 		return p.errAt(path, n, &problem{"not a number", err},
 			fmt.Sprintf("write a number and its unit, e.g. %q", example(d)))
@@ -160,22 +170,38 @@ func (p *parser) number(path string, n *yaml.Node) (float64, error) {
 	text := strings.TrimSpace(n.Value)
 	switch strings.ToLower(strings.TrimLeft(text, "+-")) {
 	case ".inf", "inf", "infinity", ".nan", "nan":
-		return 0, p.errAt(path, n, problemf("not a finite number"), "")
+		return 0, p.errAt(path, n, problemf("not a finite number"), "give a finite number")
 	}
 	x, err := strconv.ParseFloat(text, 64)
 	if err == nil && !math.IsInf(x, 0) {
 		return x, nil
 	}
-	if num, unit := units.SplitNumber(text); num != "" && unit != "" {
+	if num, unit := units.SplitNumber(text); num != "" && unit != "" && looksLikeUnit(text[len(num):], unit) {
 		if _, err := strconv.ParseFloat(num, 64); err == nil {
 			return 0, p.errAt(path, n, &problem{fmt.Sprintf("expected a plain number, found one with %q after it", unit), errHasUnit},
 				"this value takes no unit")
 		}
 	}
 	if math.IsInf(x, 0) {
-		return 0, p.errAt(path, n, problemf("not a finite number"), "")
+		return 0, p.errAt(path, n, problemf("not a finite number (beyond the range of floating point, about 1.8e308)"), "check the exponent")
 	}
-	return 0, p.errAt(path, n, problemf("not a number"), "")
+	return 0, p.errAt(path, n, problemf("not a number"), "write a plain number such as 2 or 0.85, without a unit")
+}
+
+// looksLikeUnit reports whether unit, the text after a number (rest, with
+// any space before it), is meant as a unit: set off by a space, or a unit of
+// some quantity. "1O20" (a letter O for a zero) is a mistyped number, not a
+// number with a unit.
+func looksLikeUnit(rest, unit string) bool {
+	if strings.IndexFunc(rest, isSpace) == 0 {
+		return true
+	}
+	for _, d := range dimensions {
+		if _, err := units.Factor(unit, d); err == nil {
+			return true
+		}
+	}
+	return false
 }
 
 // maxCount bounds integers that size arrays (grid points) and counts
@@ -189,10 +215,10 @@ func (p *parser) integer(path string, n *yaml.Node) (int, error) {
 		return 0, err
 	}
 	if x != math.Trunc(x) {
-		return 0, p.errAt(path, n, problemf("not a whole number"), "")
+		return 0, p.errAt(path, n, problemf("not a whole number"), fmt.Sprintf("give a whole number, e.g. %.0f", math.Max(1, math.Round(x))))
 	}
 	if math.Abs(x) > maxCount {
-		return 0, p.errAt(path, n, problemf("too large (at most %d)", maxCount), "")
+		return 0, p.errAt(path, n, problemf("too large (at most %d)", maxCount), "a count this large is a typo, or would not fit in memory")
 	}
 	return int(x), nil
 }

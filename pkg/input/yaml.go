@@ -185,6 +185,7 @@ func keysOf(t reflect.Type) []string {
 // decode reads data as a single YAML document into the node tree and into the
 // raw types, mapping every YAML error onto a FieldError.
 func (p *parser) decode(data []byte) (*rawFile, error) {
+	p.data = data
 	var doc yaml.Node
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	if err := dec.Decode(&doc); err != nil {
@@ -250,8 +251,11 @@ func (p *parser) syntaxError(err error) error {
 	} else {
 		msg = strings.TrimPrefix(msg, "yaml: ")
 	}
-	return p.fileError(line, &problem{msg: "not valid YAML: " + msg, cause: err},
-		"check the indentation and the brackets near this line")
+	hint := "check the indentation and the brackets near this line"
+	if lines := bytes.Split(p.data, []byte("\n")); line > 0 && line <= len(lines) && bytes.ContainsRune(lines[line-1], '\t') {
+		hint = "YAML indents with spaces, never tabs: replace the tab on this line with spaces"
+	}
+	return p.fileError(line, &problem{msg: "not valid YAML: " + msg, cause: err}, hint)
 }
 
 var (
@@ -295,7 +299,8 @@ func (p *parser) typeError(msg string, more int) error {
 		}
 		fe = p.errAt(path, node, problemf("expected %s, found %s", want, found), "")
 		fe.Line = line
-		if strings.HasSuffix(m[4], "rawList") && node != nil && node.Kind == yaml.SequenceNode {
+		fe.Hint = "docs/input.md shows the form of every key"
+		if strings.HasSuffix(m[4], "rawList") {
 			fe.Hint = "a list carries its unit: write {unit: cm-1, values: [...]}"
 		}
 	case reDuplicate.MatchString(msg):
@@ -324,13 +329,26 @@ func plural(n int) string {
 	return "s"
 }
 
-// closest returns the key in keys nearest to k by edit distance, if it is
-// near enough to be a likely misspelling.
+// closest returns the key in keys nearest to k by edit distance, ignoring
+// case, if it is near enough to be a likely misspelling, or else the one
+// key that k (of four letters or more) abbreviates.
 func closest(k string, keys []string) string {
 	best, bestD := "", 3
+	lk := strings.ToLower(k)
 	for _, c := range keys {
-		if d := editDistance(strings.ToLower(k), c); d < bestD {
+		if d := editDistance(lk, strings.ToLower(c)); d < bestD {
 			best, bestD = c, d
+		}
+	}
+	if best != "" || len(lk) < 4 {
+		return best
+	}
+	for _, c := range keys {
+		if strings.HasPrefix(strings.ToLower(c), lk) {
+			if best != "" {
+				return "" // ambiguous
+			}
+			best = c
 		}
 	}
 	return best
