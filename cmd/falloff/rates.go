@@ -223,8 +223,8 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 	if c := res.Convergence; !math.IsNaN(c) {
 		rep.Convergence = &c
 		if c > convergenceLimit {
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: halving the grain or raising the ceiling by 10 kT changes k by %.2g %% (more than %.2g %%); set energy-grid.master-equation-grain or --grain smaller",
-				m.File, 100*c, 100*convergenceLimit))
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: halving the grain or raising the ceiling by 10 kT changes k by %.2g %% (more than %.2g %%) at T = %s K, P = %s bar (hint: set energy-grid.master-equation-grain or --grain smaller, or raise --ceiling)",
+				m.File, 100*c, 100*convergenceLimit, num(res.ConvergenceT), num(res.ConvergenceP/units.BarPa)))
 		}
 	}
 	for _, xs := range [][]float64{rep.KInf, rep.KInfIntegrated, rep.K0, rep.Centre} {

@@ -1,13 +1,17 @@
 package main
 
 import (
+	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/falloff-kinetics/falloff/pkg/collision"
 )
 
 const ch3ncFile = "../../testdata/ch3nc-falloff.yaml"
@@ -166,5 +170,17 @@ func TestRatesConvergenceCheckEdges(t *testing.T) {
 				t.Error("no convergence figure: the check did not run")
 			}
 		})
+	}
+}
+
+// A numerical failure in the master equation exits 3 with one line that
+// names the input, the (T, P) point, the stage and a hint.
+func TestNumericalFailureMessage(t *testing.T) {
+	pe := &collision.PointError{T: 1500, P: 1e3, Stage: "k(T,P)", Err: fmt.Errorf("%w after 1000 inverse iterations", collision.ErrNoConvergence)}
+	var errb bytes.Buffer
+	code := exitCode(&numericalError{fmt.Errorf("x.yaml: master equation: %w", pe)}, &errb)
+	want := "falloff: x.yaml: master equation: T = 1500 K, P = 1000 Pa (0.01 bar): k(T,P): collision: master equation: no convergence after 1000 inverse iterations (hint: "
+	if code != exitNumerical || !strings.HasPrefix(errb.String(), want) || strings.Count(errb.String(), "\n") != 1 {
+		t.Errorf("exit %d, stderr %q", code, errb.String())
 	}
 }

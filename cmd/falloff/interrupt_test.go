@@ -1,0 +1,130 @@
+package main
+
+import (
+	"bufio"
+	"bytes"
+	"context"
+	"errors"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+)
+
+// TestMain lets the test binary stand in for the falloff binary, so that a
+// test can run it as a child process and signal it.
+func TestMain(m *testing.M) {
+	if os.Getenv("FALLOFF_RUN_MAIN") == "1" {
+		os.Exit(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr))
+	}
+	os.Exit(m.Run())
+}
+
+// slowRates is a demo run long enough (several seconds) to be interrupted in
+// the master equation.
+var slowRates = []string{"rates", "--grain", "40 cm-1", "--skip-check", "--jobs", "1"}
+
+// SIGINT during the master equation stops the run: exit code 130, one line
+// saying no file was written, and the output folder holds no file, whole or
+// partial (temporary files included).
+func TestInterruptBySignal(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a child process for seconds")
+	}
+	dir := filepath.Join(t.TempDir(), "out")
+	cmd := exec.Command(os.Args[0], append(slowRates, "--out", dir)...)
+	cmd.Env = append(os.Environ(), "FALLOFF_RUN_MAIN=1")
+	stderr, err := cmd.StderrPipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	cmd.Stdout = new(bytes.Buffer)
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	// The demo notice comes after the signal handler is installed (run).
+	lines := bufio.NewScanner(stderr)
+	var got []string
+	if !lines.Scan() || !strings.Contains(lines.Text(), "built-in demo") {
+		t.Fatalf("first stderr line %q", lines.Text())
+	}
+	time.Sleep(300 * time.Millisecond)
+	sent := time.Now()
+	if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
+		t.Fatal(err)
+	}
+	for lines.Scan() {
+		got = append(got, lines.Text())
+	}
+	err = cmd.Wait()
+	var ee *exec.ExitError
+	if !errors.As(err, &ee) || ee.ExitCode() != exitInterrupted {
+		t.Fatalf("exit: %v; want code %d (stderr %q)", err, exitInterrupted, got)
+	}
+	if len(got) != 1 || got[0] != "falloff: interrupted: no file written" {
+		t.Errorf("stderr after the signal: %q", got)
+	}
+	if d := time.Since(sent); d > 5*time.Second {
+		t.Errorf("took %v to stop", d)
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) > 0 {
+		t.Errorf("%d entries left in the output folder, first %s", len(entries), entries[0].Name())
+	}
+}
+
+// A context cancelled before the end writes nothing and says so; the same
+// in-process path a signal takes.
+func TestInterruptedRun(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "out")
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	var out, errb bytes.Buffer
+	code := runContext(ctx, []string{"rates", "-q", "--out", dir}, strings.NewReader(""), &out, &errb)
+	if code != exitInterrupted || errb.String() != "falloff: interrupted: no file written\n" {
+		t.Errorf("exit %d, stderr %q", code, errb.String())
+	}
+	if _, err := os.Stat(dir); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("output folder created: %v", err)
+	}
+}
+
+// outputSet writes whole files or none: an interruption between files
+// lists what was written and what was not; a failure to write one leaves
+// the earlier ones whole, no temporary file behind, and says which are
+// complete.
+func TestOutputSet(t *testing.T) {
+	dir := t.TempDir()
+	var o outputSet
+	o.add(filepath.Join(dir, "a.txt"), []byte("a\n"))
+	o.add(filepath.Join(dir, "b.txt"), []byte("b\n"))
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	written, err := o.commit(ctx)
+	var ie *interruptedError
+	if !errors.As(err, &ie) || len(written) != 0 || err.Error() != "interrupted: no file written; not written: "+o.paths[0]+", "+o.paths[1] {
+		t.Errorf("cancelled: written %v, err %v", written, err)
+	}
+
+	blocker := filepath.Join(dir, "file")
+	if err := os.WriteFile(blocker, nil, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var p outputSet
+	p.add(filepath.Join(dir, "a.txt"), []byte("a\n"))
+	p.add(filepath.Join(blocker, "b.txt"), []byte("b\n")) // a folder under a file cannot exist
+	written, err = p.commit(context.Background())
+	if err == nil || len(written) != 1 || !strings.Contains(err.Error(), "written, complete: "+written[0]) {
+		t.Errorf("failure: written %v, err %v", written, err)
+	}
+	entries, _ := os.ReadDir(dir)
+	var names []string
+	for _, e := range entries {
+		names = append(names, e.Name())
+	}
+	if strings.Join(names, " ") != "a.txt file" {
+		t.Errorf("folder holds %v, want a.txt and file only", names)
+	}
+}
