@@ -138,7 +138,7 @@ func TestStrongColliderMatrixPath(t *testing.T) {
 			if got/ss-1 > 1e-3 {
 				parted++
 			}
-			t.Logf("%v K, ω = %g: k/ω = %.2g, eigenvalue/steady-state − 1 = %.2g", tK, omega, got/omega, got/ss-1)
+			t.Logf("%v K, ω = %g: k/ω = %.2g, eigenvalue/steady-state − 1 = %.2g, secular/256-bit − 1 = %.2g", tK, omega, got/omega, got/ss-1, got/want-1)
 		}
 	}
 	if parted == 0 {
