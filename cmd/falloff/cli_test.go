@@ -266,3 +266,56 @@ func TestHelp(t *testing.T) {
 		t.Errorf("help: exit %d or no caution", code)
 	}
 }
+
+// For a large molecule at high temperature the thermal distribution peaks
+// far above E0; the default ceiling must reach past it, or the thermal
+// average of k(E) falls short of canonical TST (the identity of
+// TestMicroJSONDemo; 0.5 % covers the grain error). An invented 30-atom
+// molecule (84 modes) with a 25 kcal/mol barrier at 2500 K: its mean
+// thermal energy, ~50 kcal/mol, lies above E0 + 40 kT.
+func TestMicroLargeMolecule(t *testing.T) {
+	var vib, tsVib []string
+	for i := range 84 {
+		v := fmt.Sprintf("%.0f", 150*math.Pow(3200.0/150, float64(i)/83))
+		vib = append(vib, v)
+		if i != 40 {
+			tsVib = append(tsVib, v)
+		}
+	}
+	text := fmt.Sprintf(`title: large invented molecule
+molecules:
+  big:
+    mass: 180 amu
+    vibrations: {unit: cm-1, values: [%s]}
+    rotation: {constants: {unit: cm-1, values: [0.05, 0.03, 0.02]}, symmetry: 1}
+  big-TS:
+    energy: 25 kcal/mol
+    imaginary-frequency: 800 cm-1
+    mass: 180 amu
+    vibrations: {unit: cm-1, values: [%s]}
+    rotation: {constants: {unit: cm-1, values: [0.045, 0.027, 0.018]}, symmetry: 1}
+reaction: {reactant: big, via: big-TS, products: [a, b]}
+grid:
+  temperatures: {unit: K, values: [1000, 2500]}
+energy-grid:
+  grain: 50 cm-1
+`, strings.Join(vib, ", "), strings.Join(tsVib, ", "))
+	path := filepath.Join(t.TempDir(), "big.yaml")
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCLI(t, "micro", "--json", path)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var m microJSON
+	if err := json.Unmarshal([]byte(out), &m); err != nil {
+		t.Fatal(err)
+	}
+	c := m.Channels[0]
+	for i, tK := range c.Temperatures {
+		if r := c.KInfIntegrated[i] / c.KInf[i]; math.Abs(r-1) > 5e-3 {
+			t.Errorf("%v K: <k(E)>/k∞ = %v", tK, r)
+		}
+	}
+}
