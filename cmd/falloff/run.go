@@ -53,31 +53,48 @@ func (e *numericalError) Unwrap() error { return e.err }
 type verb struct {
 	name, summary string
 	run           func(args []string, s streams) error
+	writes        bool // may write files: stops cleanly on SIGINT
 }
 
 func verbs() []verb {
 	return []verb{
-		{"check", "validate an input file and summarise what it describes", runCheckCmd},
-		{"states", "partition functions, sums and densities of states", runStatesCmd},
-		{"micro", "RRKM k(E) and its thermal average beside canonical k∞(T)", runMicroCmd},
-		{"rates", "master-equation k(T,P) on the temperature and pressure grid", runRatesCmd},
-		{"compare", "the grid under strong-collider and exponential-down models side by side", runCompareCmd},
-		{"fit", "fit Arrhenius, falloff, PLOG and Chebyshev forms to a k(T,P) table (CSV)", runFitCmd},
-		{"example", "print the built-in demo input (edit it to make your own)", runExampleCmd},
+		{"check", "validate an input file and summarise what it describes", runCheckCmd, false},
+		{"states", "partition functions, sums and densities of states", runStatesCmd, false},
+		{"micro", "RRKM k(E) and its thermal average beside canonical k∞(T)", runMicroCmd, false},
+		{"rates", "master-equation k(T,P) on the temperature and pressure grid", runRatesCmd, true},
+		{"compare", "the grid under strong-collider and exponential-down models side by side", runCompareCmd, true},
+		{"fit", "fit Arrhenius, falloff, PLOG and Chebyshev forms to a k(T,P) table (CSV)", runFitCmd, false},
+		{"example", "print the built-in demo input (edit it to make your own)", runExampleCmd, false},
 	}
 }
 
-// run runs the command line args. The first SIGINT or SIGTERM cancels the
-// work, which stops at the next temperature or pressure and writes no
-// further file; a second one ends the process at once.
+// run runs the command line args. For a verb that writes files the first
+// SIGINT or SIGTERM cancels the work, which stops at the next temperature or
+// pressure and writes no further file; a second one ends the process at
+// once. Other verbs write only to stdout and keep the default action.
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
-	go func() {
-		<-ctx.Done()
-		stop() // restore the default action for a second signal
-	}()
+	ctx := context.Background()
+	if len(args) > 0 && writesFiles(args[0]) {
+		var stop context.CancelFunc
+		ctx, stop = signal.NotifyContext(ctx, os.Interrupt, syscall.SIGTERM)
+		defer stop()
+		go func() {
+			<-ctx.Done()
+			stop() // restore the default action for a second signal
+		}()
+	}
 	return runContext(ctx, args, stdin, stdout, stderr)
+}
+
+// writesFiles reports whether a verb may write files (and so stops cleanly
+// on a signal rather than at once).
+func writesFiles(name string) bool {
+	for _, v := range verbs() {
+		if v.name == name {
+			return v.writes
+		}
+	}
+	return false
 }
 
 // runContext is run under a context of the caller's.
