@@ -35,13 +35,13 @@ func (e *CSVError) Error() string {
 	if e.Column > 0 {
 		fmt.Fprintf(&b, ": column %d", e.Column)
 		if e.Header != "" {
-			fmt.Fprintf(&b, " (%s)", e.Header)
+			fmt.Fprintf(&b, " (%s)", oneLine(e.Header))
 		}
 	}
 	if e.Value != "" {
 		fmt.Fprintf(&b, ": %q", e.Value)
 	}
-	fmt.Fprintf(&b, ": %v", e.Err)
+	fmt.Fprintf(&b, ": %s", oneLine(fmt.Sprint(e.Err)))
 	if e.Hint != "" {
 		b.WriteString("; ")
 		b.WriteString(e.Hint)
@@ -50,6 +50,15 @@ func (e *CSVError) Error() string {
 }
 
 func (e *CSVError) Unwrap() error { return e.Err }
+
+// oneLine folds line breaks, which a quoted header may hold, so that a
+// message stays on one line.
+func oneLine(s string) string {
+	if !strings.ContainsAny(s, "\r\n") {
+		return s
+	}
+	return strings.Join(strings.Fields(s), " ")
+}
 
 // minCSVRows is the fewest data rows ReadCSV accepts: no form can be fitted
 // to fewer than three rate constants.
@@ -218,7 +227,9 @@ func ReadCSV(name string, r io.Reader) (*Table, error) {
 				if v <= 0 {
 					return nil, fail(line, i+1, head[i], s, errors.New("pressure must be positive"), "the fits work in log P")
 				}
-				pt.P = v * pFactor
+				if pt.P = v * pFactor; math.IsInf(pt.P, 0) {
+					return nil, fail(line, i+1, head[i], s, errors.New("pressure beyond the float64 range in Pa"), "check the number and the header's unit")
+				}
 			case colK:
 				if v <= 0 {
 					return nil, fail(line, i+1, head[i], s, errors.New("non-positive k"), "the fits work in log k; drop the row or fix its sign")

@@ -116,6 +116,14 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) (vals []float
 	}
 	out[0], out[n-1] = from, to
 	paths[0], paths[n-1] = path+".from", path+".to"
+	// Ends only ulps apart, or a 1/T beyond the float64 range, leave the
+	// points not distinct or not numbers.
+	for i := 1; i < n; i++ {
+		if !(out[i] > out[i-1]) {
+			return nil, nil, p.errAt(pp, &r.Points, problemf("%d points cannot be spaced apart between %s and %s", n, r.From.Value, r.To.Value),
+				"use fewer points or a wider range, or list the values: "+shape)
+		}
+	}
 	return out, paths, nil
 }
 

@@ -319,7 +319,10 @@ func (p *parser) rotation(path string, r *rawRotation) (rrkm.Rotor, int, error) 
 		}
 		if list == r.Inertia {
 			// B = h/(8π²cI) (Herzberg 1945).
-			xs[i] = units.RotConstFromInertia / x
+			if xs[i] = units.RotConstFromInertia / x; math.IsInf(xs[i], 0) {
+				return rot, 0, p.errAt(fmt.Sprintf("%s.values[%d]", lp, i), nodes[i],
+					problemf("too small: the rotational constant h/(8π²cI) is beyond the float64 range"), "check the number and the list's unit")
+			}
 		}
 	}
 	rot = rrkm.Rotor{Dim: 3, Consts: xs, Symmetry: 1}
@@ -405,6 +408,9 @@ func (p *parser) lennardJones(path string, r *rawLJ) (*LennardJones, error) {
 	}
 	if !(eps > 0) {
 		return nil, p.errAt(path+".epsilon", &r.Epsilon, problemf("must be positive"), "")
+	}
+	if math.IsInf(eps/units.KelvinToCm1, 0) {
+		return nil, p.errAt(path+".epsilon", &r.Epsilon, problemf("too large: ε/k_B is beyond the float64 range in K"), "check the number and its unit")
 	}
 	return &LennardJones{Sigma: sigma, Epsilon: eps / units.KelvinToCm1}, nil
 }

@@ -147,6 +147,9 @@ func (p *parser) unitError(path string, n *yaml.Node, text string, d units.Dimen
 			fmt.Sprintf("write a number and its unit, e.g. %q", example(d)))
 	case math.IsInf(x, 0) || math.IsNaN(x):
 		return p.errAt(path, n, &problem{"not a finite number", err}, "")
+	case errors.Is(err, units.ErrRange):
+		return p.errAt(path, n, &problem{fmt.Sprintf("too large: beyond the float64 range in %s", d.Internal()), err},
+			"check the number and its unit")
 	}
 	for _, other := range dimensions {
 		if other == d {
@@ -292,7 +295,11 @@ func (p *parser) list(path string, r *rawList, d units.Dimension) ([]float64, []
 			}
 			return nil, nil, err
 		}
-		xs[i] = x * f
+		if xs[i] = x * f; math.IsInf(xs[i], 0) {
+			return nil, nil, p.errAt(fmt.Sprintf("%s.values[%d]", path, i), n,
+				problemf("too large: %s %s is beyond the float64 range in %s", n.Value, r.Unit.Value, d.Internal()),
+				"check the number and the list's unit")
+		}
 	}
 	return xs, r.Values.Content, nil
 }

@@ -95,6 +95,10 @@ func newTable(names []string, f map[string]float64) unitTable {
 // ErrNoUnit reports a number written without its unit.
 var ErrNoUnit = errors.New("no unit")
 
+// ErrRange reports a finite number whose value in the internal unit is not
+// (1e308 kcal/mol is beyond the float64 range in cm⁻¹).
+var ErrRange = errors.New("out of range")
+
 // UnitError reports a unit that is missing, unknown or of the wrong dimension.
 type UnitError struct {
 	Text string    // the value as written
@@ -135,7 +139,8 @@ func Factor(u string, d Dimension) (float64, error) {
 
 // Parse reads a value with its unit, such as "38.4 kcal/mol" or "1 atm", and
 // returns it in the internal unit of d. A bare number is an error (ErrNoUnit),
-// as is an unknown unit or a number that is not finite.
+// as is an unknown unit or a number that is not finite, written or once
+// converted (ErrRange).
 func Parse(s string, d Dimension) (float64, error) {
 	text := strings.TrimSpace(s)
 	num, unit := SplitNumber(text)
@@ -157,7 +162,11 @@ func Parse(s string, d Dimension) (float64, error) {
 		}
 		return 0, err
 	}
-	return x * f, nil
+	v := x * f
+	if math.IsInf(v, 0) {
+		return 0, &UnitError{Text: s, Dim: d, Err: fmt.Errorf("%w: %s %s is beyond the float64 range in %s", ErrRange, num, unit, d.Internal())}
+	}
+	return v, nil
 }
 
 // SplitNumber splits "38.4 kcal/mol" into "38.4" and "kcal/mol". The number is

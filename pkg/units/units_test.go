@@ -130,3 +130,23 @@ func TestFormatRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// A finite number whose value in the internal unit overflows is an error,
+// not +Inf: 1e308 kcal/mol is 3.5e310 cm⁻¹, beyond math.MaxFloat64.
+func TestParseRange(t *testing.T) {
+	cases := []struct {
+		text string
+		dim  Dimension
+	}{
+		{"1e308 kcal/mol", Energy},
+		{"-1e308 hartree", Energy},
+		{"1e300 g*cm^2", Inertia},
+		{"1e306 atm", Pressure},
+	}
+	for _, tc := range cases {
+		v, err := Parse(tc.text, tc.dim)
+		if !errors.Is(err, ErrRange) {
+			t.Errorf("Parse(%q, %v) = %v, %v; want ErrRange", tc.text, tc.dim, v, err)
+		}
+	}
+}
