@@ -46,6 +46,7 @@ var catalogue = map[string]struct{ field, value string }{
 	"frequency-no-unit":                        {"molecules.ring-TS.imaginary-frequency", "650"},
 	"frequency-unknown-unit":                   {"molecules.ring.vibrations.unit", "wavenumbers"},
 	"frequency-zero":                           {"molecules.ring.vibrations.values[17]", "0"},
+	"hindered-inertia-tiny":                    {"molecules.ring.hindered-rotors[0].inertia", "3.2e-6 amu*angstrom^2"},
 	"huge-number":                              {"molecules.ring-TS.energy", "1e400 kcal/mol"},
 	"imaginary-frequency-zero":                 {"molecules.ring-TS.imaginary-frequency", "0 cm-1"},
 	"key-without-value":                        {"molecules.ring.mass", ""},

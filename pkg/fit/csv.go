@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"bufio"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -87,10 +88,15 @@ const (
 //	sigma      optional relative uncertainty of k as a fraction (0.05), or
 //	sigma/%, uncertainty/%  the same in per cent (5)
 //
-// "name [unit]" and "name (unit)" are accepted too. name is used in error
-// messages. Every error is a *CSVError naming the line and column.
+// "name [unit]" and "name (unit)" are accepted too. A UTF-8 byte-order mark
+// at the start (as spreadsheet programs write) is skipped. name is used in
+// error messages. Every error is a *CSVError naming the line and column.
 func ReadCSV(name string, r io.Reader) (*Table, error) {
-	cr := csv.NewReader(r)
+	br := bufio.NewReader(r)
+	if b, err := br.Peek(3); err == nil && string(b) == "\ufeff" {
+		br.Discard(3)
+	}
+	cr := csv.NewReader(br)
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
 	cr.TrimLeadingSpace = true

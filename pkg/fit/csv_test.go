@@ -33,6 +33,7 @@ func TestReadCSVGood(t *testing.T) {
 		{"sigma fraction", "T/K,P/kPa,k/s-1,sigma\n300,100,1,0.1\n400,100,2,0.2\n500,100,3,0.1\n", "s-1", Point{T: 300, P: 1e5, K: 1, Sigma: 0.1}, 3},
 		{"uncertainty per cent", "T/K,P/hPa,k/s-1,uncertainty/%\n300,1000,1,10\n400,1000,2,20\n500,1000,3,10\n", "s-1", Point{T: 300, P: 1e5, K: 1, Sigma: 0.1}, 3},
 		{"Pa and mbar", "T/K,P/mbar,k/s-1\n300,1000,1\n400,1000,2\n500,1000,3\n", "s-1", Point{T: 300, P: 1e5, K: 1}, 3},
+		{"byte-order mark (spreadsheet export)", "\ufeffT/K,P/atm,k/s-1\r\n300,1,2.5e3\r\n400,1,3e3\r\n500,2,4e3\r\n", "s-1", Point{T: 300, P: units.AtmPa, K: 2.5e3}, 3},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			tab, err := ReadCSV("in.csv", strings.NewReader(c.in))

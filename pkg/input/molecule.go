@@ -197,6 +197,10 @@ func (p *parser) threshold(path string, n *yaml.Node, name string, e float64) er
 // hindered reads {constant: 5.3 cm-1 (or inertia: 3.2 amu*angstrom^2),
 // barrier: 1000 cm-1, fold: 3, symmetry: 3, fourier: {unit: cm-1, values: [..]}}.
 func (p *parser) hindered(path string, r *rawHindered) (rrkm.HinderedRotor, error) {
+	// maxTorsionB bounds a torsion's rotational constant: the lightest
+	// possible internal rotor, H2's relative motion, has B ≈ 61 cm⁻¹ (from
+	// memory); an OH torsion about 20.
+	const maxTorsionB = 100.0
 	var h rrkm.HinderedRotor
 	var err error
 	switch {
@@ -205,6 +209,10 @@ func (p *parser) hindered(path string, r *rawHindered) (rrkm.HinderedRotor, erro
 	case given(&r.Constant):
 		if h.B, err = p.quantity(path+".constant", &r.Constant, units.RotConst); err != nil {
 			return h, err
+		}
+		if h.B > maxTorsionB {
+			return h, p.errAt(path+".constant", &r.Constant, problemf("%.4g cm-1 is above any torsion's rotational constant (at most about %g cm-1)", h.B, maxTorsionB),
+				"check the unit; a methyl torsion has about 5.3 cm-1")
 		}
 	case given(&r.Inertia):
 		i, err := p.quantity(path+".inertia", &r.Inertia, units.Inertia)
@@ -215,6 +223,10 @@ func (p *parser) hindered(path string, r *rawHindered) (rrkm.HinderedRotor, erro
 			return h, p.errAt(path+".inertia", &r.Inertia, problemf("must be positive"), "")
 		}
 		h.B = units.RotConstFromInertia / i
+		if !(h.B <= maxTorsionB) {
+			return h, p.errAt(path+".inertia", &r.Inertia, problemf("gives a rotational constant of %.4g cm-1, above any torsion's (at most about %g cm-1)", h.B, maxTorsionB),
+				"check the unit; a methyl torsion has about 3.2 amu*angstrom^2 (5.3 cm-1)")
+		}
 	default:
 		return h, p.missing(path+".constant", "give the torsion's rotational constant (e.g. constant: 5.3 cm-1) or its reduced moment (inertia: 3.2 amu*angstrom^2)")
 	}
