@@ -114,6 +114,11 @@ func (o *energyOptions) resolve(m *input.Model, e0 float64) (grain, ceiling floa
 	if ceiling <= e0+grain {
 		return 0, 0, usagef("ceiling %g cm-1 is not above the threshold %g cm-1", ceiling, e0)
 	}
+	if bins := fineBins(m.EnergyGrid.Fine, ceiling); o.ceiling != "" && bins > rrkm.MaxFineBins {
+		limit := float64(rrkm.MaxFineBins)
+		return 0, 0, usagef("--ceiling %q: the state count would need %s bins of %s cm-1, %s of memory; the limit is %s (hint: a ceiling of at most %s cm-1)",
+			o.ceiling, num(bins), num(m.EnergyGrid.Fine), byteSize(bins*bytesPerEntry), byteSize(limit*bytesPerEntry), num(math.Floor((limit-2)*m.EnergyGrid.Fine)))
+	}
 	return grain, ceiling, nil
 }
 
