@@ -245,7 +245,9 @@ func ReadCSV(name string, r io.Reader) (*Table, error) {
 				if v <= 0 {
 					return nil, fail(line, i+1, head[i], s, errors.New("uncertainty must be positive"), "give every row an uncertainty, or drop the column")
 				}
-				pt.Sigma = v * sigmaFactor
+				if pt.Sigma = v * sigmaFactor; !(pt.Sigma > 0) {
+					return nil, fail(line, i+1, head[i], s, errors.New("uncertainty too small to represent"), "give a relative uncertainty of at least 1e-300")
+				}
 			}
 		}
 		k := key{pt.T, pt.P}

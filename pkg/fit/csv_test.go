@@ -68,6 +68,7 @@ func TestReadCSVBad(t *testing.T) {
 		{"unknown column", "T/K,P/atm,k/s-1,note\n300,1,1,a\n", []string{"in.csv:1", "column 4", "unknown column"}},
 		{"no P column", "T/K,k/s-1\n300,1\n400,2\n500,3\n", []string{"in.csv:1", "no P/<unit> column"}},
 		{"too few points", "T/K,P/atm,k/s-1\n300,1,1\n400,1,2\n", []string{"in.csv", "2 data rows", "at least 3"}},
+		{"uncertainty below representation", "T/K,P/atm,k/s-1,sigma/%\n300,1,1,3e-323\n400,1,2,5\n500,1,3,5\n", []string{"in.csv:2", "column 4", "too small"}},
 		{"non-positive k", "T/K,P/atm,k/s-1\n300,1,1\n400,1,0\n500,1,3\n", []string{"in.csv:3", "column 3 (k/s-1)", `"0"`, "non-positive k"}},
 		{"negative k", "T/K,P/atm,k/s-1\n300,1,1\n400,1,2\n500,1,-3\n", []string{"in.csv:4", "column 3", "non-positive k"}},
 		{"NaN k", "T/K,P/atm,k/s-1\n300,1,1\n400,1,NaN\n500,1,3\n", []string{"in.csv:3", "column 3", "not a finite number"}},
