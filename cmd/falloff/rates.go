@@ -128,6 +128,16 @@ type channelReport struct {
 	Fits           *fit.Results `json:"fits,omitempty"`
 }
 
+// separationLimit is the k0/Z above which rates warns that the reaction is
+// not slow beside collisional relaxation. In the low-pressure limit the
+// reaction takes k0/Z of all collisions, and the strong collider relaxes
+// at the collision rate, so k0/Z > 0.1 means the slowest (chemical) mode
+// is less than ten times slower than relaxation: a phenomenological rate
+// coefficient presumes that separation of time scales (Bartis & Widom,
+// J. Chem. Phys. 60, 3474, 1974; from memory). The factor ten is common
+// practice, no source.
+const separationLimit = 0.1
+
 // convergenceLimit is the change on halving the grain or raising the
 // ceiling above which rates warns.
 const convergenceLimit = 0.005
@@ -219,6 +229,21 @@ func computeRates(o ratesOptions, m *input.Model, s streams) (*ratesReport, erro
 			}
 			rep.Channels = append(rep.Channels, cr)
 		}
+	}
+	var poor []string
+	worst, worstT := 0.0, 0.0
+	for _, row := range res.Rows {
+		if f := row.K0 / row.Z; f > separationLimit {
+			poor = append(poor, num(row.T))
+			if f > worst {
+				worst, worstT = f, row.T
+			}
+		}
+	}
+	if len(poor) > 0 {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: at %s K the low-pressure rate is more than %g of the collision rate (k0/Z = %.2g at %s K): "+
+			"the reaction is not slow beside collisional relaxation, so k(T,P) there, at low pressure above all, is not a well-defined thermal rate coefficient (hint: treat those temperatures with care, or leave them out of the grid)",
+			m.File, strings.Join(poor, ", "), separationLimit, worst, num(worstT)))
 	}
 	if c := res.Convergence; !math.IsNaN(c) {
 		rep.Convergence = &c

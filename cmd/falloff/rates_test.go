@@ -184,3 +184,46 @@ func TestNumericalFailureMessage(t *testing.T) {
 		t.Errorf("exit %d, stderr %q", code, errb.String())
 	}
 }
+
+// rates warns where the low-pressure rate is a sizeable share of the
+// collision rate (k0/Z > 0.1: chemical and relaxation time scales not
+// separated), naming those temperatures: on the demo (42 kcal/mol, 18
+// modes) only at 2500 K, where k0/Z recomputed from the JSON is above 0.1
+// and below it at 1500 K; CH3NC below 1200 K never.
+func TestSeparationWarning(t *testing.T) {
+	for _, tc := range []struct {
+		args []string
+		want string // "" for no warning
+	}{
+		{[]string{"rates", "--json", "--skip-check"}, "at 2500 K the low-pressure rate is more than 0.1 of the collision rate"},
+		{[]string{"rates", "--json", "--skip-check", ch3ncFile}, ""},
+	} {
+		code, out, errs := runCLI(t, tc.args...)
+		if code != exitOK {
+			t.Fatalf("exit %d: %s", code, errs)
+		}
+		var r ratesReport
+		if err := json.Unmarshal([]byte(out), &r); err != nil {
+			t.Fatal(err)
+		}
+		var got []string
+		for _, w := range r.Warnings {
+			if strings.Contains(w, "collision rate") {
+				got = append(got, w)
+			}
+		}
+		switch {
+		case tc.want == "" && len(got) > 0:
+			t.Errorf("%v: unexpected warning %q", tc.args, got)
+		case tc.want != "" && (len(got) != 1 || !strings.Contains(got[0], tc.want)):
+			t.Errorf("%v: warnings %q, want one containing %q", tc.args, got, tc.want)
+		}
+		for i, tK := range r.Temperatures {
+			// k0 in cm3 molecule-1 s-1 against Z = ω/[M] at 1 Pa.
+			f := r.K0[i] / (r.CollisionFreq[i] / collision.Concentration(1, tK))
+			if warned := tc.want != "" && tK == 2500; warned != (f > separationLimit) {
+				t.Errorf("%v: %v K: k0/Z = %.3g, warned %v", tc.args, tK, f, warned)
+			}
+		}
+	}
+}
