@@ -64,7 +64,7 @@ func (o *energyOptions) addFlags(fs interface {
 	StringVar(p *string, name, value, usage string)
 }) {
 	fs.StringVar(&o.grain, "grain", "", `reporting grain with its unit, e.g. "20 cm-1" (default: the file's energy-grid.grain, else 10 cm-1)`)
-	fs.StringVar(&o.ceiling, "ceiling", "", `highest energy with its unit, e.g. "60000 cm-1" (default: E0 + 40 kT at the highest temperature)`)
+	fs.StringVar(&o.ceiling, "ceiling", "", `highest energy with its unit, e.g. "60000 cm-1" (default: E0 + 40 kT at the highest temperature, more for a large molecule)`)
 }
 
 // check parses the flags' values, so a mistake is reported before any work.
