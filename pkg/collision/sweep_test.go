@@ -118,6 +118,9 @@ func newSweepMolecule(rng *rand.Rand) (sweepMolecule, error) {
 //     J. Chem. Phys. 66, 4745), to 1e-9;
 //   - results are bit-identical whatever the number of worker goroutines.
 func TestPhysicsSweep(t *testing.T) {
+	if testing.Short() {
+		t.Skip("about a minute on two cores; CI runs it (go test without -short)")
+	}
 	var mu sync.Mutex
 	cases, worstGrid := 0, 0.0
 	var wg sync.WaitGroup
