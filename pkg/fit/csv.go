@@ -44,8 +44,7 @@ func (e *CSVError) Error() string {
 	}
 	fmt.Fprintf(&b, ": %s", oneLine(fmt.Sprint(e.Err)))
 	if e.Hint != "" {
-		b.WriteString("; ")
-		b.WriteString(e.Hint)
+		b.WriteString(" (hint: " + oneLine(e.Hint) + ")")
 	}
 	return b.String()
 }
