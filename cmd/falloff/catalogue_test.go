@@ -31,6 +31,7 @@ var catalogue = map[string]struct{ field, value string }{
 	"alpha-tiny-grain":                         {"energy-transfer.alpha-300", "2 cm-1"},
 	"bath-missing":                             {"bath", ""},
 	"ceiling-below-barrier":                    {"energy-grid.ceiling", "10000 cm-1"},
+	"ceiling-below-barrierless":                {"energy-grid.ceiling", "10000 cm-1"},
 	"ceiling-too-high-memory":                  {"energy-grid.ceiling", "1e8 cm-1"},
 	"duplicate-key-frequencies":                {"molecules.ring.vibrations", "vibrations"},
 	"duplicate-molecule":                       {"molecules.ring", "ring"},

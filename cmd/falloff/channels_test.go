@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"github.com/falloff-kinetics/falloff/pkg/job"
 	"math"
 	"os"
 	"path/filepath"
@@ -25,7 +26,7 @@ func TestChannelsRates(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var r ratesReport
+	var r job.RatesResult
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatal(err)
 	}
@@ -77,7 +78,7 @@ func TestBarrierlessRates(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var r ratesReport
+	var r job.RatesResult
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatal(err)
 	}

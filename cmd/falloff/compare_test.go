@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/json"
 	"encoding/xml"
+	"github.com/falloff-kinetics/falloff/pkg/job"
 	"io"
 	"os"
 	"path/filepath"
@@ -23,7 +24,7 @@ func TestCompareOrdering(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var r compareReport
+	var r job.CompareResult
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatal(err)
 	}

@@ -13,19 +13,20 @@ import (
 
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 )
 
 const recombFile = "../../testdata/ring-recombination.yaml"
 
 // readSummary reads summary.json back into the report type.
-func readSummary(t *testing.T, dir string) ratesReport {
+func readSummary(t *testing.T, dir string) job.RatesResult {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join(dir, "summary.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	var r ratesReport
+	var r job.RatesResult
 	if err := json.Unmarshal(b, &r); err != nil {
 		t.Fatal(err)
 	}
@@ -39,7 +40,7 @@ func readSummary(t *testing.T, dir string) ratesReport {
 func TestRatesOutFiles(t *testing.T) {
 	for _, tc := range []struct {
 		file, direction string
-	}{{ch3ncFile, forward}, {recombFile, recombination}} {
+	}{{ch3ncFile, string(job.Forward)}, {recombFile, string(job.Recombination)}} {
 		t.Run(tc.direction, func(t *testing.T) {
 			dir := filepath.Join(t.TempDir(), "out")
 			code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--direction", tc.direction, "--out", dir, "--plots", dir, "--skeleton", tc.file)
@@ -79,7 +80,7 @@ func TestRatesOutFiles(t *testing.T) {
 				t.Fatalf("grid.csv has %d points", len(tab.Points))
 			}
 			for name, rep := range sum.Fits.Reports() {
-				ev := evaluatorOf(sum.Fits.Form(name))
+				ev := sum.Fits.Form(name)
 				for _, p := range tab.Points {
 					if d := math.Abs(ev.Eval(p.T, p.P)/p.K - 1); !(d <= rep.MaxError()*(1+1e-6)+1e-9) {
 						t.Fatalf("%s at %v K, %v Pa: error %.3g above the reported %.3g", name, p.T, p.P, d, rep.MaxError())
@@ -104,11 +105,11 @@ func TestRatesOutFiles(t *testing.T) {
 // partition functions (rrkm.EquilibriumConstant): k_f/k_r = K_c to rounding
 // (1e-12) at every grid point.
 func TestRecombinationDetailedBalance(t *testing.T) {
-	var fwd, rev ratesReport
+	var fwd, rev job.RatesResult
 	for _, c := range []struct {
 		dir string
-		r   *ratesReport
-	}{{forward, &fwd}, {recombination, &rev}} {
+		r   *job.RatesResult
+	}{{string(job.Forward), &fwd}, {string(job.Recombination), &rev}} {
 		code, out, errs := runCLI(t, "rates", "--json", "--skip-check", "--direction", c.dir, recombFile)
 		if code != exitOK {
 			t.Fatalf("exit %d: %s", code, errs)
@@ -117,7 +118,7 @@ func TestRecombinationDetailedBalance(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
-	if rev.Direction != recombination || rev.KUnits != "cm3 molecule-1 s-1" || rev.K0Units != "cm6 molecule-2 s-1" {
+	if rev.Direction != string(job.Recombination) || rev.KUnits != "cm3 molecule-1 s-1" || rev.K0Units != "cm6 molecule-2 s-1" {
 		t.Errorf("recombination labels: %q %q %q", rev.Direction, rev.KUnits, rev.K0Units)
 	}
 	src, _ := os.ReadFile(recombFile)
@@ -143,7 +144,7 @@ func TestRecombinationDetailedBalance(t *testing.T) {
 // Golden file of the recombination mechanism text (reviewed by hand once).
 func TestRecombinationGolden(t *testing.T) {
 	dir := t.TempDir()
-	if code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--direction", recombination, "--energy-unit", "kJ/mol", "--out", dir, recombFile); code != exitOK {
+	if code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--direction", string(job.Recombination), "--energy-unit", "kJ/mol", "--out", dir, recombFile); code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	for _, n := range []string{"reactions-troe.txt", "reactions-plog.yaml"} {
@@ -157,8 +158,8 @@ func TestRecombinationGolden(t *testing.T) {
 
 func TestRecombinationErrors(t *testing.T) {
 	checkFailures(t, []failCase{
-		{"isomerization", []string{"rates", "--direction", recombination, ch3ncFile}, exitInput, "reaction.products"},
-		{"no reaction energy", []string{"rates", "-q", "--direction", recombination}, exitInput, "reaction-energy"},
+		{"isomerization", []string{"rates", "--direction", string(job.Recombination), ch3ncFile}, exitInput, "reaction.products"},
+		{"no reaction energy", []string{"rates", "-q", "--direction", string(job.Recombination)}, exitInput, "reaction-energy"},
 		{"bad direction", []string{"rates", "--direction", "sideways", ch3ncFile}, exitUsage, "forward or recombination"},
 		{"bad unit", []string{"rates", "--energy-unit", "erg", ch3ncFile}, exitUsage, "erg"},
 	})

@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
+	"github.com/falloff-kinetics/falloff/pkg/job"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -34,7 +35,7 @@ func TestRatesJSON(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var r ratesReport
+	var r job.RatesResult
 	dec := json.NewDecoder(strings.NewReader(out))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&r); err != nil {
@@ -162,7 +163,7 @@ func TestRatesConvergenceCheckEdges(t *testing.T) {
 			if code != exitOK {
 				t.Fatalf("exit %d: %s", code, errs)
 			}
-			var r ratesReport
+			var r job.RatesResult
 			if err := json.Unmarshal([]byte(out), &r); err != nil {
 				t.Fatal(err)
 			}
@@ -178,7 +179,7 @@ func TestRatesConvergenceCheckEdges(t *testing.T) {
 func TestNumericalFailureMessage(t *testing.T) {
 	pe := &collision.PointError{T: 1500, P: 1e3, Stage: "k(T,P)", Err: fmt.Errorf("%w after 1000 inverse iterations", collision.ErrNoConvergence)}
 	var errb bytes.Buffer
-	code := exitCode(&numericalError{fmt.Errorf("x.yaml: master equation: %w", pe)}, &errb)
+	code := exitCode(&job.NumericalError{Err: fmt.Errorf("x.yaml: master equation: %w", pe)}, &errb)
 	want := "falloff: x.yaml: master equation: T = 1500 K, P = 1000 Pa (0.01 bar): k(T,P): collision: master equation: no convergence after 1000 inverse iterations (hint: "
 	if code != exitNumerical || !strings.HasPrefix(errb.String(), want) || strings.Count(errb.String(), "\n") != 1 {
 		t.Errorf("exit %d, stderr %q", code, errb.String())
@@ -202,7 +203,7 @@ func TestSeparationWarning(t *testing.T) {
 		if code != exitOK {
 			t.Fatalf("exit %d: %s", code, errs)
 		}
-		var r ratesReport
+		var r job.RatesResult
 		if err := json.Unmarshal([]byte(out), &r); err != nil {
 			t.Fatal(err)
 		}
@@ -221,9 +222,18 @@ func TestSeparationWarning(t *testing.T) {
 		for i, tK := range r.Temperatures {
 			// k0 in cm3 molecule-1 s-1 against Z = ω/[M] at 1 Pa.
 			f := r.K0[i] / (r.CollisionFreq[i] / collision.Concentration(1, tK))
-			if warned := tc.want != "" && tK == 2500; warned != (f > separationLimit) {
+			if warned := tc.want != "" && tK == 2500; warned != (f > job.SeparationLimit) {
 				t.Errorf("%v: %v K: k0/Z = %.3g, warned %v", tc.args, tK, f, warned)
 			}
 		}
 	}
+}
+
+// rates checks its --grain against the fine grain and the memory limit
+// before counting states.
+func TestRatesGrainFlag(t *testing.T) {
+	checkFailures(t, []failCase{
+		{"grain below the fine grain", []string{"rates", "--grain", "0.5 cm-1", ch3ncFile}, exitUsage, "below the fine counting grain"},
+		{"convergence grid too large", []string{"rates", "--grain", "5 cm-1", ch3ncFile}, exitInput, "--skip-check"},
+	})
 }

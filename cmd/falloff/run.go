@@ -12,9 +12,10 @@ import (
 
 	"github.com/spf13/pflag"
 
-	"github.com/falloff-kinetics/falloff/pkg/fit"
+	"github.com/falloff-kinetics/falloff/internal/demo"
+	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/input"
-	"github.com/falloff-kinetics/falloff/pkg/units"
+	"github.com/falloff-kinetics/falloff/pkg/job"
 )
 
 // Exit codes (documented in README.md and `falloff help`).
@@ -43,12 +44,6 @@ type usageError struct{ msg string }
 func (e *usageError) Error() string { return e.msg }
 
 func usagef(format string, a ...any) error { return &usageError{fmt.Sprintf(format, a...)} }
-
-// numericalError is a computation that failed on valid input.
-type numericalError struct{ err error }
-
-func (e *numericalError) Error() string { return e.err.Error() }
-func (e *numericalError) Unwrap() error { return e.err }
 
 type verb struct {
 	name, summary string
@@ -108,7 +103,7 @@ func runContext(ctx context.Context, args []string, stdin io.Reader, stdout, std
 		return exitOK
 	}
 	if args[0] == "version" || args[0] == "--version" {
-		fmt.Fprintln(stdout, "falloff", version)
+		fmt.Fprintln(stdout, "falloff", job.Version)
 		return exitOK
 	}
 	for _, v := range verbs() {
@@ -122,36 +117,28 @@ func runContext(ctx context.Context, args []string, stdin io.Reader, stdout, std
 
 // exitCode prints err on one line and maps it to an exit code.
 func exitCode(err error, stderr io.Writer) int {
-	if err == nil {
+	if err == nil || errors.Is(err, pflag.ErrHelp) {
 		return exitOK
 	}
-	if errors.Is(err, pflag.ErrHelp) {
-		return exitOK
-	}
-	var ie *interruptedError
+	var ie *export.InterruptedError
 	if errors.As(err, &ie) || errors.Is(err, context.Canceled) {
 		if ie == nil {
-			ie = &interruptedError{} // stopped before any file was due
+			ie = &export.InterruptedError{} // stopped before any file was due
 		}
 		fmt.Fprintln(stderr, "falloff:", ie)
 		return exitInterrupted
 	}
-	msg := strings.ReplaceAll(err.Error(), "\n", " ")
-	fmt.Fprintln(stderr, "falloff:", msg)
+	fmt.Fprintln(stderr, "falloff:", strings.ReplaceAll(err.Error(), "\n", " "))
 	var ue *usageError
-	var fe *input.FieldError
-	var unitErr *units.UnitError
-	var ne *numericalError
-	var ce *fit.CSVError
+	var oe *job.OptionError
+	var ne *job.NumericalError
 	switch {
-	case errors.As(err, &ue):
+	case errors.As(err, &ue), errors.As(err, &oe):
 		return exitUsage
 	case errors.As(err, &ne):
 		return exitNumerical
-	case errors.As(err, &fe), errors.As(err, &unitErr), errors.As(err, &ce):
-		return exitInput
 	}
-	return exitInput
+	return exitInput // *input.FieldError, *units.UnitError, *fit.CSVError, a file that cannot be read
 }
 
 func printUsage(w io.Writer) {
@@ -160,7 +147,7 @@ func printUsage(w io.Writer) {
 Usage: falloff <command> [flags] [FILE]
 
 Commands:
-`, version)
+`, job.Version)
 	for _, v := range verbs() {
 		fmt.Fprintf(w, "  %-9s %s\n", v.name, v.summary)
 	}
@@ -177,18 +164,11 @@ remain subject to local codes and qualified review.
 `)
 }
 
-// caution goes with every report of rate coefficients.
-const caution = "Caution: computed rate coefficients are model estimates; validate them against experiment " +
-	"before using them in safety, hazard or design decisions, which remain subject to local codes and qualified review."
-
-// version is the program version, written into output headers.
-const version = "0.1.0-dev"
-
 // newFlags returns a flag set for a verb whose --help prints the usage line,
 // the flags and a worked example.
 func newFlags(name, usage, example string, s streams) *pflag.FlagSet {
 	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
-	fs.SetOutput(s.err)
+	fs.SetOutput(io.Discard)
 	fs.SortFlags = false
 	fs.Usage = func() {
 		fmt.Fprintf(s.out, "Usage: falloff %s\n\nFlags:\n%s\nExample:\n%s\n", usage, fs.FlagUsages(), example)
@@ -199,8 +179,12 @@ func newFlags(name, usage, example string, s streams) *pflag.FlagSet {
 // parseVerb parses a verb's flags and validates the remaining arguments, so
 // that every verb reads parse → validate → run.
 func parseVerb(fs *pflag.FlagSet, args []string, validate func([]string) error) ([]string, error) {
-	if err := parseFlags(fs, args); err != nil {
-		return nil, err
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, pflag.ErrHelp) {
+			fs.Usage()
+			return nil, err
+		}
+		return nil, usagef("%s: %v (hint: falloff %s --help)", fs.Name(), err, fs.Name())
 	}
 	if err := validate(fs.Args()); err != nil {
 		return nil, err
@@ -209,25 +193,41 @@ func parseVerb(fs *pflag.FlagSet, args []string, validate func([]string) error) 
 }
 
 // parseAndLoad parses a verb's flags, validates its arguments and loads the
-// model they name (the built-in demo when none), quietly if quiet, asked
-// after the flags are parsed, says so.
-func parseAndLoad(fs *pflag.FlagSet, args []string, validate func([]string) error, quiet func() bool, s streams) (*input.Model, error) {
+// network of the file they name (the built-in demo when none), quietly if
+// quiet, asked after the flags are parsed, says so.
+func parseAndLoad(fs *pflag.FlagSet, args []string, validate func([]string) error, quiet func() bool, s streams) (*job.Network, error) {
 	args, err := parseVerb(fs, args, validate)
 	if err != nil {
 		return nil, err
 	}
-	return loadModel(args, quiet(), s)
+	return loadNetwork(args, quiet(), s)
 }
 
-// parseFlags parses args and wraps a flag error as a usage error.
-func parseFlags(fs *pflag.FlagSet, args []string) error {
-	fs.SetOutput(io.Discard)
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, pflag.ErrHelp) {
-			fs.Usage()
-			return err
+// loadNetwork reads the file named in args, or the built-in demo when there
+// is none (and says so on stderr unless quiet), prints its warnings to
+// stderr unless quiet, and builds its network (job.New), which refuses what
+// any calculation would refuse of the file.
+func loadNetwork(args []string, quiet bool, s streams) (*job.Network, error) {
+	var m *input.Model
+	var err error
+	switch len(args) {
+	case 0:
+		if !quiet {
+			fmt.Fprintln(s.err, "falloff: no input file given; running the built-in demo (an invented molecule; see `falloff example`)")
 		}
-		return usagef("%s: %v (hint: falloff %s --help)", fs.Name(), err, fs.Name())
+		m, err = input.Parse(demo.Name, demo.Text)
+	case 1:
+		m, err = input.ReadFile(args[0])
+	default:
+		return nil, usagef("expected one input file, got %d arguments", len(args))
 	}
-	return nil
+	if err != nil {
+		return nil, err
+	}
+	if !quiet {
+		for _, w := range m.Warnings {
+			fmt.Fprintln(s.err, "warning:", w)
+		}
+	}
+	return job.New(m)
 }

@@ -9,6 +9,8 @@ import (
 	"github.com/olekukonko/tablewriter"
 	"github.com/olekukonko/tablewriter/renderer"
 	"github.com/olekukonko/tablewriter/tw"
+
+	"github.com/falloff-kinetics/falloff/pkg/job"
 )
 
 // renderTable writes an aligned ASCII table with the given header (units in
@@ -48,7 +50,7 @@ func num6(x float64) string { return strconv.FormatFloat(x, 'f', 6, 64) }
 func writeJSON(w io.Writer, v any) error {
 	b, err := json.MarshalIndent(v, "", "  ")
 	if err != nil {
-		return &numericalError{fmt.Errorf("writing JSON: %w", err)}
+		return &job.NumericalError{Err: fmt.Errorf("writing JSON: %w", err)}
 	}
 	_, err = fmt.Fprintf(w, "%s\n", b)
 	return err

@@ -1,7 +1,12 @@
 // Package collision computes collision rates and solves the energy-grained
-// master equation of one well with one reactive channel, giving the
-// pressure-dependent unimolecular rate coefficient k(T,P), its low-pressure
-// limit k0(T) and the falloff centre.
+// master equation of one well with one or more reactive channels (Channel
+// and its Competing list), giving the pressure-dependent unimolecular rate
+// coefficient k(T,P), its low-pressure limit k0(T) and the falloff centre,
+// in total and per channel (the shares of one slowest mode, so they sum to
+// the total). A channel's k(E) is RRKM from its transition-state counter,
+// or any k(E) a caller supplies (Channel.Micro: tunnelling-corrected or
+// from an inverse Laplace transform). pkg/job builds the channels from an
+// input file.
 //
 // Units: energies in cm⁻¹, temperatures in K, pressures in Pa, rate
 // constants in s⁻¹, collision rate constants and k0 in cm³ molecule⁻¹ s⁻¹,

@@ -93,13 +93,17 @@ const tailTol = 1e-10
 // for a channel whose thermal distributions end below it (CeilingBound).
 const CeilingKTMax = 60
 
+// HeadroomKT is how far, in kT, the convergence check raises the ceiling:
+// state counts must reach this far above the largest ceiling a grid uses.
+const HeadroomKT = 10
+
 // CeilingBound returns the highest automatic ceiling for one channel at tK:
 // E0 + CeilingKTMax·kT, or higher where the reactant's or the transition
 // state's thermal distribution extends further (rrkm.Species.ThermalCeiling:
 // a large molecule at high temperature holds most of its population far
 // above E0). ts is nil for a channel without a transition state. Counters
 // built to the largest CeilingBound over a grid's temperatures, plus 10 kT
-// for the convergence check, suffice for Run.
+// (HeadroomKT) for the convergence check, suffice for Run.
 func CeilingBound(reactant, ts *rrkm.Species, e0, tK float64) float64 {
 	top := math.Max(e0+CeilingKTMax*units.KT(tK), reactant.ThermalCeiling(tK))
 	if ts != nil {
@@ -287,7 +291,7 @@ func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res
 		t := row.T
 		for _, v := range []struct{ grain, ceiling float64 }{
 			{row.Grain / 2, row.Ceiling},
-			{row.Grain, row.Ceiling + 10*units.KT(t)},
+			{row.Grain, row.Ceiling + HeadroomKT*units.KT(t)},
 		} {
 			if v.ceiling > ch.countedTop() {
 				continue // counters do not reach; the automatic ceiling has headroom

@@ -382,19 +382,7 @@ func testForms() []Reaction {
 	return []Reaction{troe, troe3, sri, lind, plog, cheb, arr}
 }
 
-func evalForm(r Reaction, t, p float64) float64 {
-	switch f := r.Form.(type) {
-	case *fit.Falloff:
-		return f.Eval(t, p)
-	case *fit.PLOG:
-		return f.Eval(t, p)
-	case *fit.Chebyshev:
-		return f.Eval(t, p)
-	case *fit.Arrhenius:
-		return f.Eval(t)
-	}
-	panic("form")
-}
+func evalForm(r Reaction, t, p float64) float64 { return r.Form.Eval(t, p) }
 
 // Every written entry, read back with a YAML library or the text parser and
 // evaluated by the formulas above, reproduces the form it was written from
@@ -404,7 +392,7 @@ func TestRoundTripAllForms(t *testing.T) {
 	forms := testForms()
 	temps := []float64{300, 500, 900, 1500, 2500}
 	ps := []float64{1000, 3e4, 1e5, 2e6, 1e7}
-	for _, u := range []Units{{"cal/mol", "mol"}, {"kcal/mol", "mol"}, {"J/mol", "molecule"}, {"kJ/mol", "mol"}, {"K", "molecule"}} {
+	for _, u := range []Units{{CalPerMol, Mole}, {KcalPerMol, Mole}, {JPerMol, Molecule}, {KJPerMol, Mole}, {Kelvin, Molecule}} {
 		for _, format := range []string{"yaml", "text"} {
 			var b []byte
 			var err error
@@ -427,7 +415,7 @@ func TestRoundTripAllForms(t *testing.T) {
 			if len(ents) != len(forms) {
 				t.Fatalf("%s %v: %d entries read back, %d written", format, u, len(ents), len(forms))
 			}
-			eaPerK, _ := energyPerK(eaUnit)
+			eaPerK, _ := energyPerK(EnergyUnit(eaUnit))
 			for i, r := range forms {
 				// Back to per molecule: divide by N_A^(order−1).
 				conv := 1.0
@@ -482,7 +470,8 @@ func TestRejects(t *testing.T) {
 		{Reactants: []string{"A"}, Products: []string{"C"}, Order: 3, Form: &fit.Arrhenius{A: 1}},
 		{Reactants: []string{"A"}, Products: []string{"C"}, Order: 1, Form: &fit.Arrhenius{A: math.NaN()}},
 		{Reactants: []string{"A"}, Products: []string{"C"}, Order: 1, Form: &fit.PLOG{Entries: []fit.PlogEntry{{P: 1}}}},
-		{Reactants: []string{"A"}, Products: []string{"C"}, Order: 1, Form: "troe"},
+		{Reactants: []string{"A"}, Products: []string{"C"}, Order: 1, Form: nil},
+		{Reactants: []string{"A"}, Products: []string{"C"}, Order: 1, Form: otherForm{}},
 		{Reactants: []string{strings.Repeat("X", 60)}, Products: []string{"C"}, Order: 1, Form: &fit.Arrhenius{A: 1}},
 	}
 	for i, r := range bad {
@@ -494,6 +483,36 @@ func TestRejects(t *testing.T) {
 	}
 	if _, err := YAML(testHeader(), Units{Energy: "erg"}, nil); err == nil {
 		t.Error("unknown energy unit accepted")
+	}
+}
+
+// otherForm is a fit.Form the writers do not know.
+type otherForm struct{}
+
+func (otherForm) Eval(_, _ float64) float64 { return 1 }
+func (otherForm) Name() fit.FormName        { return "other" }
+func (otherForm) NParams() int              { return 0 }
+func (otherForm) Describe() string          { return "" }
+
+func TestParseUnits(t *testing.T) {
+	for _, c := range []struct {
+		name             string
+		energy, quantity string
+		want             Units
+		ok               bool
+	}{
+		{"defaults", "", "", DefaultUnits, true},
+		{"kJ per molecule", "kJ/mol", "molecule", Units{KJPerMol, Molecule}, true},
+		{"Ea/R", "K", "mol", Units{Kelvin, Mole}, true},
+		{"unknown energy", "erg", "mol", Units{}, false},
+		{"unknown quantity", "cal/mol", "mole", Units{}, false},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			got, err := ParseUnits(c.energy, c.quantity)
+			if got != c.want || (err == nil) != c.ok {
+				t.Errorf("ParseUnits(%q, %q) = %+v, %v; want %+v, ok %v", c.energy, c.quantity, got, err, c.want, c.ok)
+			}
+		})
 	}
 }
 

@@ -17,8 +17,9 @@ type Reaction struct {
 	// Order is the molecularity of the written direction (1 or 2): it fixes
 	// the units of A (see the package comment).
 	Order int
-	// Form is one of *fit.Falloff, *fit.PLOG, *fit.Chebyshev, *fit.Arrhenius.
-	Form any
+	// Form is the fitted form: *fit.Arrhenius, *fit.Falloff, *fit.PLOG or
+	// *fit.Chebyshev (as fit.Results.Form returns them).
+	Form fit.Form
 	// Note is a one-line comment written above the entry (the fit error).
 	Note string
 }
@@ -88,6 +89,9 @@ func (r Reaction) check() error {
 		if n == "" || strings.ContainsAny(n, " \t=<>+!/") {
 			return fmt.Errorf("export: species name %q: names in mechanism files cannot be empty or contain spaces or = < > + ! /", n)
 		}
+	}
+	if r.Form == nil {
+		return fmt.Errorf("export: %s: no fitted form", strings.Join(r.Reactants, "+"))
 	}
 	ok := true
 	check := func(xs ...float64) {

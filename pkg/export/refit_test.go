@@ -24,13 +24,13 @@ func TestWrittenFitsReproduceTable(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	res, err := fit.FitAll(tab, []string{"lindemann", "troe", "sri", "plog", "chebyshev"}, fit.Options{})
+	res, err := fit.FitAll(tab, []fit.FormName{fit.FormLindemann, fit.FormTroe, fit.FormSRI, fit.FormPLOG, fit.FormChebyshev}, fit.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	// The table is in cm³ mol⁻¹ s⁻¹ and fit works in the table's units; the
 	// export package wants per molecule, so divide A by N_A (order 2).
-	perMolecule := func(form any) any {
+	perMolecule := func(form fit.Form) fit.Form {
 		na := units.Avogadro
 		switch f := form.(type) {
 		case *fit.Falloff:
@@ -80,7 +80,7 @@ func TestWrittenFitsReproduceTable(t *testing.T) {
 			if !perMol {
 				t.Fatal("default units should be per mol")
 			}
-			eaPerK, _ := energyPerK(eaUnit)
+			eaPerK, _ := energyPerK(EnergyUnit(eaUnit))
 			worst := 0.0
 			for _, p := range tab.Points {
 				got := ents[0].eval(p.T, p.P/units.AtmPa, eaPerK, true) // cm³ mol⁻¹ s⁻¹, as the table

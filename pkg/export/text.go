@@ -15,10 +15,10 @@ const MaxLine = 80
 
 // textUnitWords returns the REACTIONS line's unit words.
 func textUnitWords(u Units) string {
-	e := map[string]string{"cal/mol": "CAL/MOLE", "kcal/mol": "KCAL/MOLE", "J/mol": "JOULES/MOLE",
-		"kJ/mol": "KJOULES/MOLE", "K": "KELVINS"}[u.Energy]
+	e := map[EnergyUnit]string{CalPerMol: "CAL/MOLE", KcalPerMol: "KCAL/MOLE", JPerMol: "JOULES/MOLE",
+		KJPerMol: "KJOULES/MOLE", Kelvin: "KELVINS"}[u.Energy]
 	q := "MOLES"
-	if u.Quantity == "molecule" {
+	if u.Quantity == Molecule {
 		q = "MOLECULES"
 	}
 	return e + " " + q

@@ -8,30 +8,65 @@ import (
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
-// Units are the output units of a mechanism file.
+// EnergyUnit is the unit of activation energies in a mechanism file.
+type EnergyUnit string
+
+// Activation-energy units.
+const (
+	CalPerMol  EnergyUnit = "cal/mol"
+	KcalPerMol EnergyUnit = "kcal/mol"
+	JPerMol    EnergyUnit = "J/mol"
+	KJPerMol   EnergyUnit = "kJ/mol"
+	Kelvin     EnergyUnit = "K" // Ea/R
+)
+
+// QuantityUnit is the unit of quantity of a mechanism file: it sets the
+// concentration unit in A (mol cm⁻³ or molecules cm⁻³).
+type QuantityUnit string
+
+// Quantity units.
+const (
+	Mole     QuantityUnit = "mol"
+	Molecule QuantityUnit = "molecule"
+)
+
+// Units are the output units of a mechanism file. A zero field means the
+// field of DefaultUnits.
 type Units struct {
-	Energy   string // "cal/mol" (default), "kcal/mol", "J/mol", "kJ/mol" or "K"
-	Quantity string // "mol" (default) or "molecule"
+	Energy   EnergyUnit   // CalPerMol (default), KcalPerMol, JPerMol, KJPerMol or Kelvin
+	Quantity QuantityUnit // Mole (default) or Molecule
 }
 
 // DefaultUnits are the units of most open mechanisms.
-var DefaultUnits = Units{Energy: "cal/mol", Quantity: "mol"}
+var DefaultUnits = Units{Energy: CalPerMol, Quantity: Mole}
+
+// ParseUnits returns the units named energy ("cal/mol", "kcal/mol",
+// "J/mol", "kJ/mol" or "K") and quantity ("mol" or "molecule"), as a
+// command line gives them; "" means the default. An unknown name is an
+// error (see Units.Check).
+func ParseUnits(energy, quantity string) (Units, error) {
+	u := Units{Energy: EnergyUnit(energy), Quantity: QuantityUnit(quantity)}
+	if err := u.Check(); err != nil {
+		return Units{}, err
+	}
+	return u.withDefaults(), nil
+}
 
 // gasConstant is R in J mol⁻¹ K⁻¹ (N_A·k_B, exact since 2019).
 const gasConstant = units.Avogadro * units.Boltzmann
 
 // energyPerK returns the activation energy, in the unit, of Ea/R = 1 K.
-func energyPerK(unit string) (float64, error) {
+func energyPerK(unit EnergyUnit) (float64, error) {
 	switch unit {
-	case "cal/mol":
+	case CalPerMol:
 		return gasConstant / units.Calorie, nil
-	case "kcal/mol":
+	case KcalPerMol:
 		return gasConstant / units.Calorie / 1000, nil
-	case "J/mol":
+	case JPerMol:
 		return gasConstant, nil
-	case "kJ/mol":
+	case KJPerMol:
 		return gasConstant / 1000, nil
-	case "K":
+	case Kelvin:
 		return 1, nil
 	}
 	return 0, fmt.Errorf("export: unknown activation-energy unit %q (use cal/mol, kcal/mol, J/mol, kJ/mol or K)", unit)
@@ -53,7 +88,7 @@ func (u Units) Check() error {
 	if _, err := energyPerK(u.Energy); err != nil {
 		return err
 	}
-	if u.Quantity != "mol" && u.Quantity != "molecule" {
+	if u.Quantity != Mole && u.Quantity != Molecule {
 		return fmt.Errorf("export: unknown quantity %q (use mol or molecule)", u.Quantity)
 	}
 	return nil
@@ -62,7 +97,7 @@ func (u Units) Check() error {
 // aFactor is the factor that converts an A (or k) with `order` powers of
 // cm³ molecule⁻¹ to the output quantity: N_A^order for mol.
 func (u Units) aFactor(order int) float64 {
-	if u.withDefaults().Quantity == "mol" {
+	if u.withDefaults().Quantity == Mole {
 		return math.Pow(units.Avogadro, float64(order))
 	}
 	return 1

@@ -27,7 +27,7 @@ func TestFitArrheniusExact(t *testing.T) {
 			temps := linGrid(c.lo, c.hi, 15)
 			ks := make([]float64, len(temps))
 			for i, T := range temps {
-				ks[i] = c.want.Eval(T)
+				ks[i] = c.want.At(T)
 			}
 			got, err := FitArrhenius(temps, ks, nil)
 			if err != nil {
@@ -47,7 +47,7 @@ func TestFitArrheniusTwoTemperatures(t *testing.T) {
 	const tol = 1e-12
 	want := Arrhenius{A: 2e-11, Ta: 1500}
 	temps := []float64{300, 300, 600}
-	ks := []float64{want.Eval(300), want.Eval(300), want.Eval(600)}
+	ks := []float64{want.At(300), want.At(300), want.At(600)}
 	got, err := FitArrhenius(temps, ks, nil)
 	if err != nil {
 		t.Fatal(err)
@@ -66,7 +66,7 @@ func TestFitArrheniusWeights(t *testing.T) {
 	ks := make([]float64, len(temps))
 	sig := make([]float64, len(temps))
 	for i, T := range temps {
-		ks[i], sig[i] = want.Eval(T), 0.01
+		ks[i], sig[i] = want.At(T), 0.01
 	}
 	ks[6] *= 3
 	sig[6] = 1000
@@ -78,13 +78,13 @@ func TestFitArrheniusWeights(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if d := math.Abs(un.Eval(temps[6])/want.Eval(temps[6]) - 1); d < 0.05 {
+	if d := math.Abs(un.At(temps[6])/want.At(temps[6]) - 1); d < 0.05 {
 		t.Errorf("unweighted fit moved k at the outlier by only %.3g; the test needs a visible outlier", d)
 	}
 	if d := math.Abs(w.A/want.A - 1); d > 1e-6 {
 		t.Errorf("weighted fit moved A by %.3g (got %+v)", d, w)
 	}
-	t.Logf("outlier: unweighted k moves %.3g %%, weighted A moves %.2g", 100*math.Abs(un.Eval(temps[6])/want.Eval(temps[6])-1), math.Abs(w.A/want.A-1))
+	t.Logf("outlier: unweighted k moves %.3g %%, weighted A moves %.2g", 100*math.Abs(un.At(temps[6])/want.At(temps[6])-1), math.Abs(w.A/want.A-1))
 }
 
 func TestFitArrheniusErrors(t *testing.T) {

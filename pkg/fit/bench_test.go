@@ -27,7 +27,7 @@ func BenchmarkFitAll(b *testing.B) {
 func BenchmarkFitTroe(b *testing.B) {
 	tab := benchTable(30, 20)
 	for b.Loop() {
-		if _, err := FitFalloff(tab, "troe", Options{}); err != nil {
+		if _, err := FitFalloff(tab, FormTroe, Options{}); err != nil {
 			b.Fatal(err)
 		}
 	}

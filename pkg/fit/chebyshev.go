@@ -122,7 +122,7 @@ func chebyshevFit(t *Table, nT, nP int) (*ChebyshevResult, error) {
 			c.Coef[k][l] = v
 		}
 	}
-	rep, err := NewReport(t, c, nT*nP)
+	rep, err := formReport(t, &c)
 	if err != nil {
 		return nil, err
 	}

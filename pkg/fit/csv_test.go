@@ -203,7 +203,7 @@ func TestFitCSVFiles(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			res, err := FitAll(tab, []string{"troe"}, Options{})
+			res, err := FitAll(tab, []FormName{FormTroe}, Options{})
 			if err != nil {
 				t.Fatal(err)
 			}

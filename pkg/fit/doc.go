@@ -26,6 +26,9 @@
 // fits weight ln k by 1/σ when the table gives relative uncertainties σ.
 // Each fit returns a Report of its relative errors over the table and the
 // range of the data; FitAll fits several forms and Recommend picks one.
+// Forms are named by FormName (FormTroe, …) and each fitted form is a Form:
+// it evaluates k(T,P) and gives its name, parameter count and a one-line
+// description.
 // docs/fitting.md describes the procedures and defaults.
 //
 // Errors wrap the sentinels ErrTooFewData, ErrBadData, ErrNoConvergence,

@@ -30,7 +30,7 @@ func ExampleFitAll() {
 			k[i] = append(k[i], gri.Eval(T, P))
 		}
 	}
-	res, err := fit.FitAll(fit.FromGrid(temps, press, k, "cm3/mol/s"), []string{"troe", "plog", "chebyshev"}, fit.Options{})
+	res, err := fit.FitAll(fit.FromGrid(temps, press, k, "cm3/mol/s"), []fit.FormName{fit.FormTroe, fit.FormPLOG, fit.FormChebyshev}, fit.Options{})
 	if err != nil {
 		fmt.Println(err)
 		return

@@ -317,9 +317,9 @@ type FalloffResult struct {
 	kind falloffKind
 }
 
-// FitFalloff fits a Lindemann, Troe or SRI form (kind "lindemann", "troe"
-// or "sri") to the table by nonlinear least squares in ln k. See
-// docs/fitting.md for the procedure; in short:
+// FitFalloff fits a Lindemann, Troe or SRI form (kind FormLindemann,
+// FormTroe or FormSRI; any other kind panics) to the table by nonlinear
+// least squares in ln k. See docs/fitting.md for the procedure; in short:
 //
 //   - k0 and k∞ are modified Arrhenius expressions. Without opt.Limits
 //     they start from Lindemann extrapolations of the two lowest and two
@@ -335,18 +335,18 @@ type FalloffResult struct {
 //
 // The table needs at least 3 temperatures, 2 pressures and more points
 // than parameters.
-func FitFalloff(t *Table, kind string, opt Options) (*FalloffResult, error) {
+func FitFalloff(t *Table, kind FormName, opt Options) (*FalloffResult, error) {
 	opt = opt.withDefaults()
 	if err := t.Validate(); err != nil {
 		return nil, err
 	}
 	var base falloffKind
 	switch kind {
-	case "lindemann":
+	case FormLindemann:
 		base = kindLindemann
-	case "troe":
+	case FormTroe:
 		base = kindTroe3
-	case "sri":
+	case FormSRI:
 		base = kindSRI3
 	default:
 		panic(fmt.Sprintf("fit: FitFalloff: unknown kind %q", kind))
@@ -516,7 +516,7 @@ func falloffResult(t *Table, m *falloffModel) (*FalloffResult, error) {
 	if !finite(vals...) || f.Low.A == 0 || f.High.A == 0 {
 		return nil, fmt.Errorf("%w: %s fit gave non-finite parameters", ErrNoConvergence, f.Kind())
 	}
-	rep, err := NewReport(t, f, 6+m.kind.nBroad())
+	rep, err := formReport(t, &f)
 	if err != nil {
 		return nil, err
 	}

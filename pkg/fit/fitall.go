@@ -8,9 +8,9 @@ import (
 	"strings"
 )
 
-// Forms are the names FitAll accepts, in the order of preference of
+// Forms are the forms FitAll fits, in the order of preference of
 // Recommend: the simplest, most widely read and safest to extrapolate first.
-var Forms = []string{"arrhenius", "lindemann", "troe", "sri", "chebyshev", "plog"}
+var Forms = []FormName{FormArrhenius, FormLindemann, FormTroe, FormSRI, FormChebyshev, FormPLOG}
 
 // DefaultTolerance is the default maximum relative error of a fit (1 %).
 const DefaultTolerance = 0.01
@@ -46,101 +46,99 @@ type ArrheniusResult struct {
 // Results holds every form FitAll was asked for: a nil field is a form not
 // asked for or one that failed, with its error text in Errors.
 type Results struct {
-	KUnits       string            `json:"k_units"`
-	TolerancePct float64           `json:"tolerance_pct"`
-	Arrhenius    *ArrheniusResult  `json:"arrhenius,omitempty"`
-	Lindemann    *FalloffResult    `json:"lindemann,omitempty"`
-	Troe         *FalloffResult    `json:"troe,omitempty"`
-	SRI          *FalloffResult    `json:"sri,omitempty"`
-	PLOG         *PLOGResult       `json:"plog,omitempty"`
-	Chebyshev    *ChebyshevResult  `json:"chebyshev,omitempty"`
-	Errors       map[string]string `json:"errors,omitempty"` // form → why it failed
-	Recommended  string            `json:"recommended"`      // a name from Forms, or "" if none fitted
-	Reason       string            `json:"reason"`
+	KUnits       string              `json:"k_units"`
+	TolerancePct float64             `json:"tolerance_pct"`
+	Arrhenius    *ArrheniusResult    `json:"arrhenius,omitempty"`
+	Lindemann    *FalloffResult      `json:"lindemann,omitempty"`
+	Troe         *FalloffResult      `json:"troe,omitempty"`
+	SRI          *FalloffResult      `json:"sri,omitempty"`
+	PLOG         *PLOGResult         `json:"plog,omitempty"`
+	Chebyshev    *ChebyshevResult    `json:"chebyshev,omitempty"`
+	Errors       map[FormName]string `json:"errors,omitempty"` // form → why it failed
+	Recommended  FormName            `json:"recommended"`      // one of Forms, or "" if none fitted
+	Reason       string              `json:"reason"`
+}
+
+// fitted returns the form of the given name and its report; ok is false,
+// and f a nil interface, if it was not fitted.
+func (r *Results) fitted(name FormName) (f Form, rep Report, ok bool) {
+	switch name {
+	case FormArrhenius:
+		if r.Arrhenius != nil {
+			return &r.Arrhenius.Rate, r.Arrhenius.Report, true
+		}
+	case FormLindemann, FormTroe, FormSRI:
+		fr := map[FormName]*FalloffResult{FormLindemann: r.Lindemann, FormTroe: r.Troe, FormSRI: r.SRI}[name]
+		if fr != nil {
+			return &fr.Falloff, fr.Report, true
+		}
+	case FormPLOG:
+		if r.PLOG != nil {
+			return &r.PLOG.PLOG, r.PLOG.Report, true
+		}
+	case FormChebyshev:
+		if r.Chebyshev != nil {
+			return &r.Chebyshev.Chebyshev, r.Chebyshev.Report, true
+		}
+	}
+	return nil, Report{}, false
 }
 
 // Reports returns the report of each fitted form by name.
-func (r *Results) Reports() map[string]Report {
-	m := map[string]Report{}
-	if r.Arrhenius != nil {
-		m["arrhenius"] = r.Arrhenius.Report
-	}
-	for name, f := range map[string]*FalloffResult{"lindemann": r.Lindemann, "troe": r.Troe, "sri": r.SRI} {
-		if f != nil {
-			m[name] = f.Report
+func (r *Results) Reports() map[FormName]Report {
+	m := map[FormName]Report{}
+	for _, name := range Forms {
+		if _, rep, ok := r.fitted(name); ok {
+			m[name] = rep
 		}
-	}
-	if r.PLOG != nil {
-		m["plog"] = r.PLOG.Report
-	}
-	if r.Chebyshev != nil {
-		m["chebyshev"] = r.Chebyshev.Report
 	}
 	return m
 }
 
 // Form returns the fitted form of the given name (*Arrhenius, *Falloff,
 // *PLOG or *Chebyshev), or nil if it was not fitted.
-func (r *Results) Form(name string) any {
-	switch name {
-	case "arrhenius":
-		if r.Arrhenius != nil {
-			return &r.Arrhenius.Rate
-		}
-	case "lindemann", "troe", "sri":
-		f := map[string]*FalloffResult{"lindemann": r.Lindemann, "troe": r.Troe, "sri": r.SRI}[name]
-		if f != nil {
-			return &f.Falloff
-		}
-	case "plog":
-		if r.PLOG != nil {
-			return &r.PLOG.PLOG
-		}
-	case "chebyshev":
-		if r.Chebyshev != nil {
-			return &r.Chebyshev.Chebyshev
-		}
-	}
-	return nil
+func (r *Results) Form(name FormName) Form {
+	f, _, _ := r.fitted(name)
+	return f
 }
 
-// FitAll fits each of forms (names from Forms; nil means all) to the
+// FitAll fits each of forms (from Forms; nil means all) to the
 // table and recommends one. A form that cannot be fitted is recorded in
 // Results.Errors and does not stop the others. FitAll returns an error for
 // an unknown form name or a table with bad values (wrapping ErrBadData),
 // and, together with the Results, an error wrapping ErrNoForm if no form
 // could be fitted.
-func FitAll(t *Table, forms []string, opt Options) (*Results, error) {
+func FitAll(t *Table, forms []FormName, opt Options) (*Results, error) {
 	opt = opt.withDefaults()
 	if forms == nil {
 		forms = Forms
 	}
 	for _, f := range forms {
-		if !slices.Contains(Forms, f) {
-			return nil, fmt.Errorf("fit: unknown form %q (known: %s)", f, strings.Join(Forms, ", "))
+		if _, err := ParseFormName(string(f)); err != nil {
+			return nil, err
 		}
 	}
 	if err := t.Validate(); err != nil {
 		return nil, err
 	}
-	res := &Results{KUnits: t.KUnits, TolerancePct: 100 * opt.Tolerance, Errors: map[string]string{}}
+	res := &Results{KUnits: t.KUnits, TolerancePct: 100 * opt.Tolerance, Errors: map[FormName]string{}}
 	for _, f := range Forms {
 		if !slices.Contains(forms, f) {
 			continue
 		}
 		var err error
 		switch f {
-		case "arrhenius":
+		case FormArrhenius:
 			res.Arrhenius, err = fitArrheniusTable(t)
-		case "lindemann":
+		case FormLindemann:
 			res.Lindemann, err = FitFalloff(t, f, opt)
-		case "troe":
+		case FormTroe:
 			res.Troe, err = FitFalloff(t, f, opt)
-		case "sri":
+		case FormSRI:
 			res.SRI, err = FitFalloff(t, f, opt)
-		case "plog":
+		case FormPLOG:
 			res.PLOG, err = FitPLOG(t, opt)
-		case "chebyshev":
+		case FormChebyshev:
 			res.Chebyshev, err = FitChebyshev(t, opt)
 		}
 		if err != nil {
@@ -177,18 +175,14 @@ func fitArrheniusTable(t *Table) (*ArrheniusResult, error) {
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", t.name(), err)
 	}
-	np := 3
-	if len(t.Temperatures()) == 2 {
-		np = 2
-	}
-	rep, err := NewReport(t, arrheniusEval{a}, np)
+	rep, err := formReport(t, &a)
 	if err != nil {
 		return nil, err
 	}
 	return &ArrheniusResult{Rate: a, Report: rep}, nil
 }
 
-// Recommend picks a form from reports (by name from Forms) for the
+// Recommend picks a form from reports (keyed by names from Forms) for the
 // maximum relative error tol (a fraction; 0 means DefaultTolerance). Rule:
 // the first form in the order of Forms — arrhenius, lindemann, troe, sri,
 // chebyshev, plog — whose maximum error is within tol. The falloff forms
@@ -198,7 +192,7 @@ func fitArrheniusTable(t *Table) (*ArrheniusResult, error) {
 // pressures, so its figure says nothing of the interpolation between them.
 // If no form is within tol, the one with the smallest maximum error. It
 // returns "" if reports is empty. reason says why, in one sentence.
-func Recommend(reports map[string]Report, tol float64) (form, reason string) {
+func Recommend(reports map[FormName]Report, tol float64) (form FormName, reason string) {
 	if tol <= 0 || math.IsNaN(tol) {
 		tol = DefaultTolerance
 	}
@@ -218,7 +212,7 @@ func Recommend(reports map[string]Report, tol float64) (form, reason string) {
 		}
 		failed = append(failed, fmt.Sprintf("%s (%.3g %%)", f, r.MaxErrorPct))
 	}
-	best := ""
+	var best FormName
 	for _, f := range Forms {
 		if r, ok := reports[f]; ok && (best == "" || r.MaxErrorPct < reports[best].MaxErrorPct) {
 			best = f

@@ -17,14 +17,14 @@ func TestDegenerateTables(t *testing.T) {
 	for _, c := range []struct {
 		name    string
 		tab     *Table
-		failing map[string]string // form → substring of its error
-		noForm  bool              // no form fits at all
+		failing map[FormName]string // form → substring of its error
+		noForm  bool                // no form fits at all
 	}{
-		{"one temperature", oneT, map[string]string{
+		{"one temperature", oneT, map[FormName]string{
 			"arrhenius": "at least 2 temperatures", "lindemann": "at least 3 temperatures",
 			"troe": "at least 3 temperatures", "sri": "at least 3 temperatures", "plog": "at least 3 temperatures",
 			"chebyshev": "range of temperature"}, true},
-		{"one pressure", oneP, map[string]string{
+		{"one pressure", oneP, map[FormName]string{
 			"lindemann": "at least 2 pressures", "troe": "at least 2 pressures", "sri": "at least 2 pressures",
 			"plog": "at least 2 pressures", "chebyshev": "range of temperature and of pressure"}, false},
 	} {
@@ -70,7 +70,7 @@ func TestDegenerateTables(t *testing.T) {
 			if !errors.Is(err, ErrBadData) || res != nil {
 				t.Errorf("got %v, %v; want ErrBadData", res, err)
 			}
-			for _, kind := range []string{"troe", "sri", "lindemann"} {
+			for _, kind := range []FormName{FormTroe, FormSRI, FormLindemann} {
 				if _, err := FitFalloff(tab, kind, Options{}); !errors.Is(err, ErrBadData) {
 					t.Errorf("%s: %v, want ErrBadData", kind, err)
 				}
@@ -85,11 +85,11 @@ func TestDegenerateTables(t *testing.T) {
 	}
 
 	// No form fits: ErrNoForm, with the per-form errors.
-	res, err := FitAll(oneT, []string{"troe", "plog"}, Options{})
+	res, err := FitAll(oneT, []FormName{FormTroe, FormPLOG}, Options{})
 	if !errors.Is(err, ErrNoForm) || res == nil || res.Recommended != "" || len(res.Errors) != 2 {
 		t.Errorf("got %+v, %v; want ErrNoForm with two errors", res, err)
 	}
-	if _, err := FitAll(oneT, []string{"troe", "cubic"}, Options{}); err == nil || !strings.Contains(err.Error(), `"cubic"`) {
+	if _, err := FitAll(oneT, []FormName{FormTroe, "cubic"}, Options{}); err == nil || !strings.Contains(err.Error(), `"cubic"`) {
 		t.Errorf("unknown form: %v", err)
 	}
 }
@@ -103,9 +103,9 @@ func TestFalloffLimits(t *testing.T) {
 	tab := gridTable(f, temps, atm(logGrid(0.01, 100, 7)...), "cm3/mol/s")
 	k0, kinf := make([]float64, len(temps)), make([]float64, len(temps))
 	for i, T := range temps {
-		k0[i], kinf[i] = f.Low.Eval(T), f.High.Eval(T)
+		k0[i], kinf[i] = f.Low.At(T), f.High.At(T)
 	}
-	r, err := FitFalloff(tab, "troe", Options{Limits: &Limits{K0: k0, KInf: kinf}})
+	r, err := FitFalloff(tab, FormTroe, Options{Limits: &Limits{K0: k0, KInf: kinf}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -117,14 +117,14 @@ func TestFalloffLimits(t *testing.T) {
 	for i := range kinf {
 		kinf[i] *= 2
 	}
-	r, err = FitFalloff(tab, "troe", Options{Limits: &Limits{K0: k0, KInf: kinf}})
+	r, err = FitFalloff(tab, FormTroe, Options{Limits: &Limits{K0: k0, KInf: kinf}})
 	if err != nil {
 		t.Fatal(err)
 	}
 	if !r.LimitsRefined || r.MaxErrorPct > 1 {
 		t.Errorf("wrong k∞: refined %v, max error %.3g %%", r.LimitsRefined, r.MaxErrorPct)
 	}
-	if _, err := FitFalloff(tab, "troe", Options{Limits: &Limits{K0: k0[:3], KInf: kinf}}); !errors.Is(err, ErrBadData) {
+	if _, err := FitFalloff(tab, FormTroe, Options{Limits: &Limits{K0: k0[:3], KInf: kinf}}); !errors.Is(err, ErrBadData) {
 		t.Errorf("short limits: %v, want ErrBadData", err)
 	}
 }
@@ -133,17 +133,17 @@ func TestRecommend(t *testing.T) {
 	rep := func(pct float64) Report { return Report{MaxErrorPct: pct} }
 	for _, c := range []struct {
 		name    string
-		reports map[string]Report
+		reports map[FormName]Report
 		tol     float64
-		want    string
+		want    FormName
 	}{
-		{"troe within", map[string]Report{"troe": rep(0.5), "plog": rep(0.1), "chebyshev": rep(0.2)}, 0.01, "troe"},
-		{"lindemann simplest", map[string]Report{"lindemann": rep(0.9), "troe": rep(0.1)}, 0.01, "lindemann"},
-		{"chebyshev before plog", map[string]Report{"troe": rep(3), "plog": rep(0.1), "chebyshev": rep(0.8)}, 0.01, "chebyshev"},
-		{"plog last resort", map[string]Report{"troe": rep(3), "plog": rep(0.1), "chebyshev": rep(1.5)}, 0.01, "plog"},
-		{"none within: smallest", map[string]Report{"troe": rep(3), "plog": rep(2), "chebyshev": rep(2.5)}, 0.01, "plog"},
-		{"default tolerance", map[string]Report{"troe": rep(0.99)}, 0, "troe"},
-		{"nothing", map[string]Report{}, 0.01, ""},
+		{"troe within", map[FormName]Report{"troe": rep(0.5), "plog": rep(0.1), "chebyshev": rep(0.2)}, 0.01, "troe"},
+		{"lindemann simplest", map[FormName]Report{"lindemann": rep(0.9), "troe": rep(0.1)}, 0.01, "lindemann"},
+		{"chebyshev before plog", map[FormName]Report{"troe": rep(3), "plog": rep(0.1), "chebyshev": rep(0.8)}, 0.01, "chebyshev"},
+		{"plog last resort", map[FormName]Report{"troe": rep(3), "plog": rep(0.1), "chebyshev": rep(1.5)}, 0.01, "plog"},
+		{"none within: smallest", map[FormName]Report{"troe": rep(3), "plog": rep(2), "chebyshev": rep(2.5)}, 0.01, "plog"},
+		{"default tolerance", map[FormName]Report{"troe": rep(0.99)}, 0, "troe"},
+		{"nothing", map[FormName]Report{}, 0.01, ""},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			got, why := Recommend(c.reports, c.tol)

@@ -2,7 +2,11 @@ package fit
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
+	"slices"
+	"strconv"
+	"strings"
 
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
@@ -11,6 +15,59 @@ import (
 // cm⁻³, activation energies as activation temperatures Ta = Ea/R in K.
 // Rate constants are in whatever units the table has ("k units"); a
 // low-pressure rate constant k0 is in k units × cm³ molecule⁻¹.
+
+// FormName names a fitted form, as written in reports, JSON results and
+// input files.
+type FormName string
+
+// The forms this package fits.
+const (
+	FormArrhenius FormName = "arrhenius" // pressure-independent modified Arrhenius
+	FormLindemann FormName = "lindemann" // falloff without broadening
+	FormTroe      FormName = "troe"      // falloff with Troe broadening
+	FormSRI       FormName = "sri"       // falloff with SRI broadening
+	FormPLOG      FormName = "plog"      // log k interpolated in log P
+	FormChebyshev FormName = "chebyshev" // Chebyshev series in 1/T and log P
+)
+
+// ParseFormName returns the form named s, one of Forms, or an error naming
+// the known forms.
+func ParseFormName(s string) (FormName, error) {
+	if f := FormName(s); slices.Contains(Forms, f) {
+		return f, nil
+	}
+	known := make([]string, len(Forms))
+	for i, f := range Forms {
+		known[i] = string(f)
+	}
+	return "", fmt.Errorf("fit: unknown form %q (known: %s)", s, strings.Join(known, ", "))
+}
+
+// Form is a fitted k(T,P) expression. *Arrhenius, *Falloff, *PLOG and
+// *Chebyshev implement it; Name, NParams and Describe have pointer
+// receivers so that a Form always holds one of those pointers, the types
+// pkg/export writes.
+type Form interface {
+	// Eval returns k at tK K and pPa Pa in the table's units.
+	Eval(tK, pPa float64) float64
+	// Name says which form it is.
+	Name() FormName
+	// NParams returns the number of fitted parameters, as in Report.NParams.
+	NParams() int
+	// Describe returns the parameters on one line, for reports: numbers to
+	// 4 significant digits, Ea as Ea/R in K, pressures in bar.
+	Describe() string
+}
+
+var (
+	_ Form = (*Arrhenius)(nil)
+	_ Form = (*Falloff)(nil)
+	_ Form = (*PLOG)(nil)
+	_ Form = (*Chebyshev)(nil)
+)
+
+// g4 formats x to 4 significant digits, as Describe writes numbers.
+func g4(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
 
 // Concentration returns the gas number density [M] = P/(k_B·T) in molecules
 // cm⁻³ for P in Pa.
@@ -23,8 +80,28 @@ type Arrhenius struct {
 	Ta float64 `json:"Ea_K"` // Ea/R in K
 }
 
-// Eval returns k at t K.
-func (a Arrhenius) Eval(t float64) float64 { return a.A * math.Pow(t, a.N) * math.Exp(-a.Ta/t) }
+// At returns k at t K.
+func (a Arrhenius) At(t float64) float64 { return a.A * math.Pow(t, a.N) * math.Exp(-a.Ta/t) }
+
+// Eval returns k at t K; it does not depend on the pressure.
+func (a Arrhenius) Eval(t, _ float64) float64 { return a.At(t) }
+
+// Name returns FormArrhenius.
+func (a *Arrhenius) Name() FormName { return FormArrhenius }
+
+// NParams returns 3, or 2 for n = 0: the two-parameter form FitArrhenius
+// fits to two temperatures.
+func (a *Arrhenius) NParams() int {
+	if a.N == 0 {
+		return 2
+	}
+	return 3
+}
+
+// Describe returns "A=… n=… Ea/R=… K".
+func (a *Arrhenius) Describe() string {
+	return fmt.Sprintf("A=%s n=%s Ea/R=%s K", g4(a.A), g4(a.N), g4(a.Ta))
+}
 
 // Troe holds the broadening parameters of Gilbert, Luther & Troe (Ber.
 // Bunsenges. Phys. Chem. 87, 169, 1983): Fcent = (1−A)exp(−T/T3) +
@@ -118,21 +195,61 @@ type Falloff struct {
 	SRI  *SRI      `json:"sri,omitempty"`  // nil unless SRI
 }
 
-// Kind names the form: "lindemann", "troe" or "sri".
-func (f Falloff) Kind() string {
+// Kind names the form: "lindemann", "troe" or "sri" (Name as a string).
+func (f Falloff) Kind() string { return string(f.Name()) }
+
+// Name returns FormLindemann, FormTroe or FormSRI.
+func (f *Falloff) Name() FormName {
 	switch {
 	case f.Troe != nil:
-		return "troe"
+		return FormTroe
 	case f.SRI != nil:
-		return "sri"
+		return FormSRI
 	}
-	return "lindemann"
+	return FormLindemann
+}
+
+// NParams returns 6 (k0 and k∞) plus the broadening parameters: 3 for
+// Troe, 4 with T2; 3 for SRI, 5 with d and e (d ≠ 0).
+func (f *Falloff) NParams() int {
+	n := 6
+	if f.Troe != nil {
+		n += 3
+		if f.Troe.HasT2 {
+			n++
+		}
+	}
+	if f.SRI != nil {
+		n += 3
+		if f.SRI.D != 0 {
+			n += 2
+		}
+	}
+	return n
+}
+
+// Describe returns k∞ and k0 ("high: …; low: …") and the broadening.
+func (f *Falloff) Describe() string {
+	s := "high: " + f.High.Describe() + "; low: " + f.Low.Describe()
+	if t := f.Troe; t != nil {
+		s += fmt.Sprintf("; Troe a=%s T3=%s T1=%s", g4(t.A), g4(t.T3), g4(t.T1))
+		if t.HasT2 {
+			s += " T2=" + g4(t.T2)
+		}
+	}
+	if r := f.SRI; r != nil {
+		s += fmt.Sprintf("; SRI a=%s b=%s c=%s", g4(r.A), g4(r.B), g4(r.C))
+		if r.D != 0 {
+			s += fmt.Sprintf(" d=%s e=%s", g4(r.D), g4(r.E))
+		}
+	}
+	return s
 }
 
 // Eval returns k at t K and p Pa.
 func (f Falloff) Eval(t, p float64) float64 {
-	kinf := f.High.Eval(t)
-	pr := f.Low.Eval(t) * Concentration(p, t) / kinf
+	kinf := f.High.At(t)
+	pr := f.Low.At(t) * Concentration(p, t) / kinf
 	k := kinf * pr / (1 + pr)
 	switch {
 	case f.Troe != nil:
@@ -159,7 +276,7 @@ type PLOG struct {
 func (e PlogEntry) eval(t float64) float64 {
 	s := 0.0
 	for _, a := range e.Terms {
-		s += a.Eval(t)
+		s += a.At(t)
 	}
 	return s
 }
@@ -181,6 +298,25 @@ func (pl PLOG) Eval(t, p float64) float64 {
 		}
 	}
 	return es[len(es)-1].eval(t)
+}
+
+// Name returns FormPLOG.
+func (pl *PLOG) Name() FormName { return FormPLOG }
+
+// NParams returns 3 per Arrhenius term.
+func (pl *PLOG) NParams() int { return 3 * pl.nTerms() }
+
+func (pl *PLOG) nTerms() int {
+	n := 0
+	for _, e := range pl.Entries {
+		n += len(e.Terms)
+	}
+	return n
+}
+
+// Describe returns the numbers of pressures and of Arrhenius terms.
+func (pl *PLOG) Describe() string {
+	return fmt.Sprintf("%d pressures, %d Arrhenius terms", len(pl.Entries), pl.nTerms())
 }
 
 // Chebyshev is log10 k = Σ_t Σ_p Coef[t][p]·φ_t(T̃)·φ_p(P̃) with Chebyshev
@@ -242,4 +378,28 @@ func (c Chebyshev) Eval(t, p float64) float64 {
 		}
 	}
 	return math.Pow(10, s)
+}
+
+// Name returns FormChebyshev.
+func (c *Chebyshev) Name() FormName { return FormChebyshev }
+
+// NParams returns the number of coefficients, N_T·N_P.
+func (c *Chebyshev) NParams() int {
+	nT, nP := c.order()
+	return nT * nP
+}
+
+// order returns N_T and N_P.
+func (c *Chebyshev) order() (nT, nP int) {
+	if len(c.Coef) == 0 {
+		return 0, 0
+	}
+	return len(c.Coef), len(c.Coef[0])
+}
+
+// Describe returns the order and the range in T and P (bar).
+func (c *Chebyshev) Describe() string {
+	nT, nP := c.order()
+	return fmt.Sprintf("%d x %d coefficients over %s-%s K, %s-%s bar", nT, nP,
+		g4(c.Tmin), g4(c.Tmax), g4(c.Pmin/units.BarPa), g4(c.Pmax/units.BarPa))
 }

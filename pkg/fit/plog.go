@@ -72,16 +72,14 @@ func FitPLOG(t *Table, opt Options) (*PLOGResult, error) {
 	close(next)
 	wg.Wait()
 	res := &PLOGResult{}
-	nParams := 0
 	for _, f := range out {
 		if f.err != nil {
 			return nil, f.err
 		}
 		res.Entries = append(res.Entries, f.entry)
 		res.Pressures = append(res.Pressures, f.rep)
-		nParams += 3 * len(f.entry.Terms)
 	}
-	rep, err := NewReport(t, res.PLOG, nParams)
+	rep, err := formReport(t, &res.PLOG)
 	if err != nil {
 		return nil, err
 	}
@@ -112,7 +110,7 @@ func fitPlogPressure(t *Table, P, tol float64) (PlogEntry, PlogPressure, error) 
 		return PlogEntry{}, PlogPressure{}, fmt.Errorf("PLOG at P = %g Pa: %w", P, err)
 	}
 	terms := []Arrhenius{a}
-	r, err := NewReport(&sub, arrheniusEval{a}, 3)
+	r, err := NewReport(&sub, a, 3)
 	if err != nil {
 		return PlogEntry{}, PlogPressure{}, fmt.Errorf("PLOG at P = %g Pa: %w", P, err)
 	}
@@ -235,7 +233,7 @@ func fitTwoArrhenius(ts, ks, sig []float64) ([]Arrhenius, error) {
 func peel(a Arrhenius, ts, ks []float64) (Arrhenius, error) {
 	var pt, pk []float64
 	for i, T := range ts {
-		if r := ks[i] - a.Eval(T); r > 0 {
+		if r := ks[i] - a.At(T); r > 0 {
 			pt, pk = append(pt, T), append(pk, r)
 		}
 	}

@@ -44,8 +44,8 @@ func TestFitPLOGOneTerm(t *testing.T) {
 			t.Errorf("P = %g Pa: per-pressure report %+v", e.P, r.Pressures[i])
 		}
 	}
-	if r.NParams != 3*len(press) {
-		t.Errorf("n_params = %d, want %d", r.NParams, 3*len(press))
+	if r.Report.NParams != 3*len(press) {
+		t.Errorf("n_params = %d, want %d", r.Report.NParams, 3*len(press))
 	}
 }
 

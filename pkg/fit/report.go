@@ -5,16 +5,12 @@ import (
 	"math"
 )
 
-// Evaluator is a fitted form: k at t K and p Pa in the table's units.
-// *Falloff, *PLOG and *Chebyshev (and their values) are Evaluators.
+// Evaluator gives k at t K and p Pa in the table's units. Every Form is
+// an Evaluator, and so are the values Arrhenius, Falloff, PLOG and
+// Chebyshev.
 type Evaluator interface {
 	Eval(t, p float64) float64
 }
-
-// arrheniusEval evaluates a pressure-independent Arrhenius form.
-type arrheniusEval struct{ Arrhenius }
-
-func (a arrheniusEval) Eval(t, _ float64) float64 { return a.Arrhenius.Eval(t) }
 
 // Report describes how well a form reproduces a table: relative errors
 // |k_fit/k − 1| over all points, unweighted, in per cent, and the extent
@@ -54,6 +50,10 @@ func NewReport(t *Table, f Evaluator, nParams int) (Report, error) {
 	}
 	return r, nil
 }
+
+// formReport compares the fitted form f with the table; the report's
+// NParams is f.NParams().
+func formReport(t *Table, f Form) (Report, error) { return NewReport(t, f, f.NParams()) }
 
 // MaxError returns the largest relative error as a fraction.
 func (r Report) MaxError() float64 { return r.MaxErrorPct / 100 }

@@ -112,6 +112,17 @@ func (p *parser) crossCheck(m *Model, raw *rawFile) error {
 			problemf("at or below the barrier E0 = %s cm-1 of %s", fmtCm1(ts.E0), ts.Name),
 			"the ceiling must lie well above E0; delete it to have it chosen automatically")
 	}
+	// Every other channel's threshold too: a channel above the ceiling would
+	// silently never react.
+	if g.Ceiling > 0 {
+		for _, th := range m.thresholds() {
+			if g.Ceiling <= th.e0 {
+				return p.errAt("energy-grid.ceiling", p.index.byPath["energy-grid.ceiling"],
+					problemf("at or below the threshold E0 = %s cm-1 of %s", fmtCm1(th.e0), th.name),
+					"the ceiling must lie well above every channel's threshold; delete it to have it chosen automatically")
+			}
+		}
+	}
 	// The fine grain must resolve every vibration (rrkm.NewCounter refuses
 	// a frequency below it).
 	for _, mol := range m.Molecules {

@@ -1,6 +1,7 @@
 package input
 
 import (
+	"fmt"
 	"os"
 
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
@@ -64,8 +65,8 @@ type Reaction struct {
 	// the file gave it.
 	ReactionEnergy    float64
 	HasReactionEnergy bool
-	// Tunnelling is "none" (default), "wigner" or "eckart".
-	Tunnelling string
+	// Tunnelling is NoTunnelling (default), Wigner or Eckart.
+	Tunnelling Tunnelling
 	// Barrierless, if set, makes the main channel barrierless (Via is then
 	// empty): k(E) from the inverse Laplace transform of its k∞(T).
 	Barrierless *Barrierless
@@ -73,11 +74,14 @@ type Reaction struct {
 	Competing []Channel
 }
 
+// Tunnelling names a tunnelling correction, as written in the input file.
+type Tunnelling string
+
 // Tunnelling corrections.
 const (
-	NoTunnelling = "none"
-	Wigner       = "wigner"
-	Eckart       = "eckart"
+	NoTunnelling Tunnelling = "none"
+	Wigner       Tunnelling = "wigner"
+	Eckart       Tunnelling = "eckart"
 )
 
 // Channel is a competing channel: through a transition state (Via) or
@@ -90,7 +94,7 @@ type Channel struct {
 	PathDegeneracy    float64 // 0 = auto
 	ReactionEnergy    float64
 	HasReactionEnergy bool
-	Tunnelling        string
+	Tunnelling        Tunnelling
 }
 
 // Barrierless is a channel without a barrier, given by
@@ -115,7 +119,7 @@ type Bath struct {
 
 // EnergyTransfer names the collisional energy-transfer model.
 type EnergyTransfer struct {
-	Model string // "exponential-down" or "strong-collider"; "" if not given
+	Model TransferModel // ExponentialDown or StrongCollider; "" if not given
 	// Alpha300 is α at 300 K in cm⁻¹ (exponential-down), ⟨ΔE⟩down.
 	Alpha300 float64
 	// AlphaExponent is n in α(T) = α300·(T/300 K)^n (exponential-down).
@@ -125,10 +129,14 @@ type EnergyTransfer struct {
 	Efficiency float64
 }
 
-// Energy-transfer model names.
+// TransferModel names a collisional energy-transfer model, as written in
+// the input file.
+type TransferModel string
+
+// Energy-transfer models.
 const (
-	ExponentialDown = "exponential-down"
-	StrongCollider  = "strong-collider"
+	ExponentialDown TransferModel = "exponential-down"
+	StrongCollider  TransferModel = "strong-collider"
 )
 
 // EnergyGrid sets the grains of state counting and of the master equation.
@@ -232,4 +240,33 @@ type parser struct {
 	data     []byte // the file's content, for messages about its lines
 	index    *nodeIndex
 	warnings []string
+}
+
+// threshold is one channel's threshold energy, for checks.
+type threshold struct {
+	name string  // the transition state, or "the barrierless channel NAME"
+	e0   float64 // cm⁻¹
+}
+
+// thresholds lists the threshold of every channel out of the reactant: the
+// main channel first, then the competing ones.
+func (m *Model) thresholds() []threshold {
+	var out []threshold
+	add := func(via string, b *Barrierless, label string) {
+		switch {
+		case b != nil:
+			out = append(out, threshold{label, b.Energy})
+		case m.Molecule(via) != nil:
+			out = append(out, threshold{via, m.Molecule(via).E0})
+		}
+	}
+	add(m.Reaction.Via, m.Reaction.Barrierless, "the barrierless main channel")
+	for i, c := range m.Reaction.Competing {
+		label := fmt.Sprintf("the barrierless channel reaction.competing[%d]", i)
+		if c.Name != "" {
+			label = "the barrierless channel " + c.Name
+		}
+		add(c.Via, c.Barrierless, label)
+	}
+	return out
 }

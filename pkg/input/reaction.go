@@ -136,15 +136,15 @@ func (p *parser) pathDegeneracy(dp string, n *yaml.Node) (float64, error) {
 
 // tunnelling reads none, wigner or eckart. Eckart needs the reverse barrier,
 // so the reaction energy, and the transition state's imaginary frequency.
-func (p *parser) tunnelling(path string, n *yaml.Node, hasEnergy bool, ts *Molecule) (string, error) {
+func (p *parser) tunnelling(path string, n *yaml.Node, hasEnergy bool, ts *Molecule) (Tunnelling, error) {
 	if !given(n) {
 		return NoTunnelling, nil
 	}
-	v, err := p.name(path, n)
+	name, err := p.name(path, n)
 	if err != nil {
 		return "", err
 	}
-	switch v {
+	switch v := Tunnelling(name); v {
 	case NoTunnelling:
 		return v, nil
 	case Wigner, Eckart:
@@ -330,7 +330,7 @@ func (p *parser) collisionRate(path string, n *yaml.Node) (float64, error) {
 // transfer converts the energy-transfer section.
 func (p *parser) transfer(r *rawTransfer) (EnergyTransfer, error) {
 	et := EnergyTransfer{Efficiency: 1}
-	models := []string{ExponentialDown, StrongCollider}
+	models := []string{string(ExponentialDown), string(StrongCollider)}
 	if !given(&r.Model) {
 		return et, p.missing("energy-transfer.model", "the models are: "+strings.Join(models, ", "))
 	}
@@ -345,9 +345,9 @@ func (p *parser) transfer(r *rawTransfer) (EnergyTransfer, error) {
 		}
 		return et, p.errAt("energy-transfer.model", &r.Model, problemf("unknown energy-transfer model"), hint)
 	}
-	et.Model = model
+	et.Model = TransferModel(model)
 
-	switch model {
+	switch et.Model {
 	case ExponentialDown:
 		if given(&r.Efficiency) {
 			return et, p.errAt("energy-transfer.efficiency", &r.Efficiency, problemf("efficiency belongs to the strong-collider model"),

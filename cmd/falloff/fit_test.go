@@ -4,7 +4,10 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"slices"
 	"testing"
+
+	"github.com/spf13/pflag"
 
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 )
@@ -24,7 +27,7 @@ func TestFitGRITable(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &res); err != nil {
 		t.Fatal(err)
 	}
-	if res.Recommended != "troe" || res.Troe == nil || res.Troe.Troe == nil {
+	if res.Recommended != fit.FormTroe || res.Troe == nil || res.Troe.Troe == nil {
 		t.Fatalf("recommended %q, troe %+v", res.Recommended, res.Troe)
 	}
 	tr := res.Troe.Troe
@@ -53,4 +56,31 @@ func TestFitErrors(t *testing.T) {
 		{"bad order", []string{"fit", "--chebyshev-order", "seven", griTable}, exitUsage, "N_TxN_P"},
 		{"missing", []string{"fit", filepath.Join(dir, "none.csv")}, exitInput, "none.csv"},
 	})
+}
+
+// validate turns --forms into form names once, for runFit to use.
+func TestFitOptionsForms(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		args []string
+		want []fit.FormName
+	}{
+		{"default", nil, []fit.FormName{fit.FormArrhenius, fit.FormLindemann, fit.FormTroe, fit.FormSRI, fit.FormPLOG, fit.FormChebyshev}},
+		{"two", []string{"--forms", "chebyshev,troe"}, []fit.FormName{fit.FormChebyshev, fit.FormTroe}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			var o fitOptions
+			fs := pflag.NewFlagSet("fit", pflag.ContinueOnError)
+			o.addFlags(fs)
+			if err := fs.Parse(c.args); err != nil {
+				t.Fatal(err)
+			}
+			if err := o.validate([]string{griTable}); err != nil {
+				t.Fatal(err)
+			}
+			if !slices.Equal(o.forms, c.want) {
+				t.Errorf("forms %q, want %q", o.forms, c.want)
+			}
+		})
+	}
 }

@@ -1,4 +1,4 @@
-package main
+package job
 
 import (
 	"errors"
@@ -40,19 +40,10 @@ func TestPreflightSentinels(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		err = preflight(m)
+		_, err = New(m)
 		var fe *input.FieldError
 		if !errors.As(err, &fe) || !errors.Is(err, c.sentinel) {
 			t.Errorf("%s: %v, want a *input.FieldError wrapping %v", c.grid, err, c.sentinel)
 		}
 	}
-}
-
-// rates checks its --grain against the fine grain and the memory limit
-// before counting states.
-func TestRatesGrainFlag(t *testing.T) {
-	checkFailures(t, []failCase{
-		{"grain below the fine grain", []string{"rates", "--grain", "0.5 cm-1", ch3ncFile}, exitUsage, "below the fine counting grain"},
-		{"convergence grid too large", []string{"rates", "--grain", "5 cm-1", ch3ncFile}, exitInput, "--skip-check"},
-	})
 }

@@ -3,25 +3,29 @@ package main
 import (
 	"errors"
 	"fmt"
+	"maps"
 	"os"
+	"slices"
 	"strings"
 
 	"github.com/spf13/pflag"
 
 	"github.com/falloff-kinetics/falloff/pkg/fit"
+	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
 type fitOptions struct {
 	json, quiet  bool
-	forms        []string
+	formNames    []string       // --forms as given
+	forms        []fit.FormName // formNames, checked by validate
 	tolerancePct float64
 	order        string // N_TxN_P for Chebyshev, "" = automatic
 }
 
 func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.json, "json", false, "print the fits as one JSON object")
-	fs.StringSliceVar(&o.forms, "forms", []string{"arrhenius", "lindemann", "troe", "sri", "plog", "chebyshev"},
+	fs.StringSliceVar(&o.formNames, "forms", []string{"arrhenius", "lindemann", "troe", "sri", "plog", "chebyshev"},
 		"forms to fit, comma-separated: arrhenius, lindemann, troe, sri, plog, chebyshev")
 	fs.Float64Var(&o.tolerancePct, "tolerance", 1, "largest acceptable fit error in per cent")
 	fs.StringVar(&o.order, "chebyshev-order", "", `Chebyshev order N_T x N_P, e.g. "7x4" (default: the smallest that meets the tolerance)`)
@@ -32,14 +36,13 @@ func (o *fitOptions) validate(args []string) error {
 	if len(args) != 1 {
 		return usagef("fit takes one table file (CSV with columns T, P, k and units in the header), got %d arguments", len(args))
 	}
-	for _, f := range o.forms {
-		known := false
-		for _, k := range fit.Forms {
-			known = known || f == k
+	o.forms = make([]fit.FormName, 0, len(o.formNames))
+	for _, name := range o.formNames {
+		f, err := fit.ParseFormName(name)
+		if err != nil {
+			return usagef("--forms: %v", err)
 		}
-		if !known {
-			return usagef("--forms: unknown form %q (use %s)", f, strings.Join(fit.Forms, ", "))
-		}
+		o.forms = append(o.forms, f)
 	}
 	if !(o.tolerancePct > 0) || o.tolerancePct > 100 {
 		return usagef("--tolerance %v: give a percentage between 0 and 100", o.tolerancePct)
@@ -89,7 +92,7 @@ func runFit(o fitOptions, path string, s streams) error {
 		if err == nil {
 			err = errors.New("no form could be fitted")
 		}
-		return &numericalError{fmt.Errorf("%s: %w", path, err)}
+		return &job.NumericalError{Err: fmt.Errorf("%s: %w", path, err)}
 	} else if err != nil {
 		return err
 	}
@@ -99,7 +102,7 @@ func runFit(o fitOptions, path string, s streams) error {
 	ts, ps := t.Temperatures(), t.Pressures()
 	fmt.Fprintf(s.out, "%s: %d points, %d temperatures %s-%s K, %d pressures %s-%s bar, k in %s\n\n", path, len(t.Points),
 		len(ts), num(ts[0]), num(ts[len(ts)-1]), len(ps), num(ps[0]/units.BarPa), num(ps[len(ps)-1]/units.BarPa), t.KUnits)
-	if err := renderTable(s.out, []string{"form", "max error / %", "rms error / %", "worst point", "parameters", ""}, fitRows(res)); err != nil {
+	if err := renderTable(s.out, fitHeader, fitRows(res)); err != nil {
 		return err
 	}
 	if res.Recommended != "" {
@@ -110,42 +113,31 @@ func runFit(o fitOptions, path string, s streams) error {
 	fmt.Fprintln(s.out, "\nparameters (Ea as Ea/R in K; low-pressure A in k units × cm3 molecule-1):")
 	for _, name := range fit.Forms {
 		if form := res.Form(name); form != nil {
-			fmt.Fprintf(s.out, "  %-10s %s\n", name, describeForm(form))
+			fmt.Fprintf(s.out, "  %-10s %s\n", name, form.Describe())
 		}
 	}
 	return nil
 }
 
-// describeForm prints a form's parameters on one line.
-func describeForm(form any) string {
-	arr := func(a fit.Arrhenius) string { return fmt.Sprintf("A=%s n=%s Ea/R=%s K", num(a.A), num(a.N), num(a.Ta)) }
-	switch f := form.(type) {
-	case *fit.Arrhenius:
-		return arr(*f)
-	case *fit.Falloff:
-		s := "high: " + arr(f.High) + "; low: " + arr(f.Low)
-		if t := f.Troe; t != nil {
-			s += fmt.Sprintf("; Troe a=%s T3=%s T1=%s", num(t.A), num(t.T3), num(t.T1))
-			if t.HasT2 {
-				s += " T2=" + num(t.T2)
-			}
+// fitHeader heads the table of fit reports.
+var fitHeader = []string{"form", "max error / %", "rms error / %", "worst point", "parameters", ""}
+
+// fitRows returns the fit report as table rows: fitted forms sorted by
+// name, then the forms that failed, sorted by name.
+func fitRows(res *fit.Results) [][]string {
+	reps := res.Reports()
+	var rows [][]string
+	for _, n := range slices.Sorted(maps.Keys(reps)) {
+		r := reps[n]
+		mark := ""
+		if n == res.Recommended {
+			mark = "recommended"
 		}
-		if r := f.SRI; r != nil {
-			s += fmt.Sprintf("; SRI a=%s b=%s c=%s", num(r.A), num(r.B), num(r.C))
-			if r.D != 0 {
-				s += fmt.Sprintf(" d=%s e=%s", num(r.D), num(r.E))
-			}
-		}
-		return s
-	case *fit.PLOG:
-		n := 0
-		for _, e := range f.Entries {
-			n += len(e.Terms)
-		}
-		return fmt.Sprintf("%d pressures, %d Arrhenius terms", len(f.Entries), n)
-	case *fit.Chebyshev:
-		return fmt.Sprintf("%d x %d coefficients over %s-%s K, %s-%s bar", len(f.Coef), len(f.Coef[0]),
-			num(f.Tmin), num(f.Tmax), num(f.Pmin/units.BarPa), num(f.Pmax/units.BarPa))
+		rows = append(rows, []string{string(n), num(r.MaxErrorPct), num(r.RMSErrorPct),
+			fmt.Sprintf("%s K, %s bar", num(r.WorstT), num(r.WorstP/units.BarPa)), fmt.Sprint(r.NParams), mark})
 	}
-	return fmt.Sprintf("%T", form)
+	for _, n := range slices.Sorted(maps.Keys(res.Errors)) {
+		rows = append(rows, []string{string(n), "-", "-", "failed: " + res.Errors[n], "-", ""})
+	}
+	return rows
 }

@@ -1,4 +1,4 @@
-package main
+package job
 
 import (
 	"errors"
@@ -9,8 +9,8 @@ import (
 	"github.com/falloff-kinetics/falloff/pkg/input"
 )
 
-// bathInfo describes the collider for reports.
-type bathInfo struct {
+// BathInfo describes the collider for reports.
+type BathInfo struct {
 	Gas    string  `json:"gas"`
 	Mass   float64 `json:"mass_amu"`
 	Sigma  float64 `json:"sigma_angstrom,omitempty"`
@@ -18,12 +18,12 @@ type bathInfo struct {
 	Source string  `json:"source"`
 }
 
-// newCollider combines the reactant's and the bath gas's data into the
+// collider combines the reactant's and the bath gas's data into the
 // collision rate constant, from the built-in table unless the file overrides
 // them or gives the rate constant itself.
-func newCollider(m *input.Model) (collision.Collider, bathInfo, error) {
+func collider(m *input.Model) (collision.Collider, BathInfo, error) {
 	b := m.Bath
-	info := bathInfo{Gas: b.Gas, Mass: b.Mass, Source: "input file"}
+	info := BathInfo{Gas: b.Gas, Mass: b.Mass, Source: "input file"}
 	if b.CollisionRate > 0 {
 		info.Source = fmt.Sprintf("collision rate %g cm3/molecule/s given in the input file", b.CollisionRate)
 		return collision.Collider{Fixed: b.CollisionRate}, info, nil
@@ -60,8 +60,8 @@ func newCollider(m *input.Model) (collision.Collider, bathInfo, error) {
 	return collision.Collider{LJ: pair, Mu: collision.ReducedMass(r.Mass, info.Mass)}, info, nil
 }
 
-// newTransfer maps the input's energy-transfer model.
-func newTransfer(m *input.Model) collision.Transfer {
+// transfer maps the input's energy-transfer model.
+func transfer(m *input.Model) collision.Transfer {
 	t := m.Transfer
 	if t.Model == input.StrongCollider {
 		return collision.Transfer{Strong: true, Efficiency: t.Efficiency}

@@ -1,0 +1,326 @@
+package job
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/falloff-kinetics/falloff/pkg/collision"
+	"github.com/falloff-kinetics/falloff/pkg/fit"
+	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// Options control Rates. The zero Options run the file as it is: its grids,
+// automatic grains and ceilings, the convergence check, the forward
+// direction and the default fit tolerance.
+type Options struct {
+	// Grain and Ceiling override the master-equation grain and ceiling at
+	// every temperature (energy-grid.master-equation-grain and
+	// energy-grid.ceiling of the file).
+	Grain, Ceiling Setting
+	// Jobs is the number of worker goroutines over temperatures; 0 means
+	// GOMAXPROCS. Results do not depend on it.
+	Jobs int
+	// SkipCheck skips the grain and ceiling convergence check.
+	SkipCheck bool
+	// Direction is the direction the results are written in; "" means
+	// Forward.
+	Direction Direction
+	// Tolerance is the largest acceptable relative fit error (a fraction;
+	// 0 means fit.DefaultTolerance).
+	Tolerance float64
+	// Progress, if set, is called (from worker goroutines) after each
+	// temperature of the master equation.
+	Progress func()
+}
+
+// RatesResult is the whole result of Rates: the k(T,P) grid and its limits
+// in the chosen direction, the fits, and per channel their shares. Its JSON
+// is the `rates --json` contract (docs/output.md).
+type RatesResult struct {
+	File           string        `json:"file"`
+	Reaction       string        `json:"reaction"`
+	Direction      string        `json:"direction"` // isomerization, dissociation or recombination
+	KUnits         string        `json:"k_units"`
+	Temperatures   []float64     `json:"temperatures_K"`
+	Pressures      []float64     `json:"pressures_Pa"`
+	K              [][]float64   `json:"k"` // K[iT][iP] in KUnits
+	KInf           []float64     `json:"k_inf"`
+	KInfIntegrated []float64     `json:"k_inf_integrated"`
+	K0             []float64     `json:"k0"`
+	K0Units        string        `json:"k0_units"`
+	CollisionFreq  []float64     `json:"collision_frequency_per_s_per_Pa"`
+	CollisionRate  []float64     `json:"collision_rate_constant_cm3_per_molecule_per_s"`
+	Centre         []float64     `json:"falloff_centre_Pa"`
+	Grain          []float64     `json:"grain_cm-1"`
+	Ceiling        []float64     `json:"ceiling_cm-1"`
+	Convergence    *float64      `json:"convergence_max_change,omitempty"`
+	Transfer       string        `json:"energy_transfer"`
+	Bath           BathInfo      `json:"bath"`
+	PathDegeneracy float64       `json:"path_degeneracy"`
+	Fits           *fit.Results  `json:"fits,omitempty"`
+	Channels       []ChannelRate `json:"channels,omitempty"`
+	// Warnings are the input file's warnings followed by those of the run
+	// (NewWarnings).
+	Warnings []string `json:"warnings"`
+	Caution  string   `json:"caution"`
+
+	// Order is the molecularity of the written direction (1 or 2).
+	Order int `json:"-"`
+	// Reactants and Products of the written direction, as in mechanism
+	// equations.
+	Reactants, Products []string `json:"-"`
+	// Entries are the mechanism entries: the reaction, or one per channel
+	// with competing channels.
+	Entries []Entry `json:"-"`
+
+	model      *input.Model
+	fileWarned int // how many of Warnings are the input file's
+}
+
+// ChannelRate is one channel's share of the grid (competing channels).
+type ChannelRate struct {
+	Name           string       `json:"name"`
+	Products       []string     `json:"products"`
+	K              [][]float64  `json:"k"`
+	KInf           []float64    `json:"k_inf"`
+	KInfIntegrated []float64    `json:"k_inf_integrated"`
+	K0             []float64    `json:"k0"`
+	Branching      [][]float64  `json:"branching"`
+	Fits           *fit.Results `json:"fits,omitempty"`
+}
+
+// Entry is one reaction to write to a mechanism: a channel in its
+// direction with its fits.
+type Entry struct {
+	Label               string
+	Reactants, Products []string
+	Order               int
+	Fits                *fit.Results
+}
+
+// NewWarnings returns the warnings of the run itself, after the input
+// file's.
+func (r *RatesResult) NewWarnings() []string { return r.Warnings[r.fileWarned:] }
+
+// SeparationLimit is the k0/Z above which Rates warns that the reaction is
+// not slow beside collisional relaxation. In the low-pressure limit the
+// reaction takes k0/Z of all collisions, and the strong collider relaxes
+// at the collision rate, so k0/Z > 0.1 means the slowest (chemical) mode
+// is less than ten times slower than relaxation: a phenomenological rate
+// coefficient presumes that separation of time scales (Bartis & Widom,
+// J. Chem. Phys. 60, 3474, 1974; from memory). The factor ten is common
+// practice, no source.
+const SeparationLimit = 0.1
+
+// ConvergenceLimit is the change on halving the grain or raising the
+// ceiling above which Rates warns.
+const ConvergenceLimit = 0.005
+
+// DefaultFits are fitted when the input file names none.
+var DefaultFits = []fit.FormName{fit.FormTroe, fit.FormPLOG, fit.FormChebyshev}
+
+// Rates runs the whole job on the network: the master equation over the
+// file's temperatures and pressures with k∞, k0 and the falloff centre, the
+// convergence check, the direction asked for, and the fits (the file's
+// forms, or DefaultFits) of the reaction and of each channel. It stops,
+// returning ctx.Err(), when ctx is cancelled. Errors are *input.FieldError
+// (the file), *OptionError (opt), *NumericalError (a failed computation),
+// or wrap collision.ErrTooLarge.
+func (n *Network) Rates(ctx context.Context, opt Options) (*RatesResult, error) {
+	m := n.Model
+	if err := n.needPressures("rates"); err != nil {
+		return nil, err
+	}
+	dir := opt.Direction
+	if dir == "" {
+		dir = Forward
+	}
+	if dir != Forward && dir != Recombination {
+		return nil, &OptionError{Option: "direction", Text: string(dir), Err: errors.New("use forward or recombination")}
+	}
+	if dir == Recombination {
+		if _, err := n.recombinationProducts(); err != nil {
+			return nil, err // before the master equation, not after
+		}
+		if len(n.Channels) > 1 {
+			return nil, &OptionError{Option: "direction", Text: string(dir),
+				Err: errors.New("the recombination direction is for a single channel; with competing channels write them forward")}
+		}
+	}
+	grain := opt.Grain.or(m.EnergyGrid.MEGrain)
+	ceiling := opt.Ceiling.or(m.EnergyGrid.Ceiling)
+	if opt.Ceiling.given() && ceiling <= n.highestE0() {
+		return nil, opt.Ceiling.optionError("", "not above the threshold %.0f cm-1", n.highestE0())
+	}
+	if err := n.checkMatrixSize(grain, ceiling, opt.Grain, opt.Ceiling, !opt.SkipCheck); err != nil {
+		return nil, err // before counting any states
+	}
+	well, err := n.masterEquation(ceiling)
+	if err != nil {
+		return nil, err
+	}
+	res, err := collision.RunContext(ctx, well, n.Collider, n.Transfer, m.Temperatures, m.Pressures,
+		collision.Options{Grain: grain, Ceiling: ceiling, Jobs: opt.Jobs, SkipConvergence: opt.SkipCheck, Progress: opt.Progress})
+	switch {
+	case errors.Is(err, collision.ErrTooLarge):
+		return nil, fmt.Errorf("%s: master equation: %w", m.File, err) // a request too large: bad input
+	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
+		return nil, err
+	case err != nil:
+		return nil, &NumericalError{fmt.Errorf("%s: master equation: %w", m.File, err)}
+	}
+	out, err := n.forward(res)
+	if err != nil {
+		return nil, err
+	}
+	if dir == Recombination {
+		if err := n.recombine(out); err != nil {
+			return nil, err
+		}
+	}
+	if err := n.fitAll(out, opt.Tolerance); err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// forward assembles the result of the master equation in the direction
+// computed, with the warnings on time-scale separation and convergence.
+func (n *Network) forward(res *collision.Result) (*RatesResult, error) {
+	m := n.Model
+	r := n.reactant()
+	out := &RatesResult{File: m.File, Direction: n.forwardName(), KUnits: "s-1", K0Units: "cm3 molecule-1 s-1",
+		Reaction:     r.Name + " -> " + strings.Join(m.Reaction.Products, " + "),
+		Temperatures: m.Temperatures, Pressures: m.Pressures, K: res.K(), Transfer: n.Transfer.String(), Bath: n.Bath,
+		PathDegeneracy: n.Main().L, Warnings: append([]string{}, m.Warnings...), Caution: Caution,
+		Order: 1, Reactants: []string{r.Name}, Products: m.Reaction.Products,
+		model: m, fileWarned: len(m.Warnings)}
+	if len(out.Products) == 0 {
+		out.Products = []string{r.Name + "-products"}
+	}
+	for _, row := range res.Rows {
+		out.KInf = append(out.KInf, n.KInf(row.T))
+		out.KInfIntegrated = append(out.KInfIntegrated, row.KInfME)
+		out.K0 = append(out.K0, row.K0)
+		out.CollisionRate = append(out.CollisionRate, row.Z)
+		out.CollisionFreq = append(out.CollisionFreq, row.Z*collision.Concentration(1, row.T))
+		out.Centre = append(out.Centre, row.Centre)
+		out.Grain = append(out.Grain, row.Grain)
+		out.Ceiling = append(out.Ceiling, row.Ceiling)
+	}
+	if len(n.Channels) > 1 {
+		for c, ch := range n.Channels {
+			cr := ChannelRate{Name: ch.Label(), Products: ch.Products}
+			for _, row := range res.Rows {
+				cr.K = append(cr.K, row.KC[c])
+				cr.KInf = append(cr.KInf, ch.KInf(&r.Species, row.T))
+				cr.KInfIntegrated = append(cr.KInfIntegrated, row.KInfC[c])
+				cr.K0 = append(cr.K0, row.K0C[c])
+				b := make([]float64, len(row.K))
+				for j, k := range row.K {
+					b[j] = row.KC[c][j] / k
+				}
+				cr.Branching = append(cr.Branching, b)
+			}
+			out.Channels = append(out.Channels, cr)
+		}
+	}
+	var poor []string
+	worst, worstT := 0.0, 0.0
+	for _, row := range res.Rows {
+		if f := row.K0 / row.Z; f > SeparationLimit {
+			poor = append(poor, num(row.T))
+			if f > worst {
+				worst, worstT = f, row.T
+			}
+		}
+	}
+	if len(poor) > 0 {
+		out.Warnings = append(out.Warnings, fmt.Sprintf("%s: at %s K the low-pressure rate is more than %g of the collision rate (k0/Z = %.2g at %s K): "+
+			"the reaction is not slow beside collisional relaxation, so k(T,P) there, at low pressure above all, is not a well-defined thermal rate coefficient (hint: treat those temperatures with care, or leave them out of the grid)",
+			m.File, strings.Join(poor, ", "), SeparationLimit, worst, num(worstT)))
+	}
+	if c := res.Convergence; !math.IsNaN(c) {
+		out.Convergence = &c
+		if c > ConvergenceLimit {
+			out.Warnings = append(out.Warnings, fmt.Sprintf("%s: halving the grain or raising the ceiling by %d kT changes k by %.2g %% (more than %.2g %%) at T = %s K, P = %s bar (hint: set energy-grid.master-equation-grain or --grain smaller, or raise --ceiling)",
+				m.File, collision.HeadroomKT, 100*c, 100*ConvergenceLimit, num(res.ConvergenceT), num(res.ConvergenceP/units.BarPa)))
+		}
+	}
+	for _, xs := range [][]float64{out.KInf, out.KInfIntegrated, out.K0, out.Centre} {
+		if err := finite("rates", xs...); err != nil {
+			return nil, err
+		}
+	}
+	for _, xs := range out.K {
+		if err := finite("k", xs...); err != nil {
+			return nil, err
+		}
+	}
+	return out, nil
+}
+
+// forwardName names the computed direction: isomerization with one
+// product, dissociation otherwise.
+func (n *Network) forwardName() string {
+	if len(n.Model.Reaction.Products) == 1 {
+		return "isomerization"
+	}
+	return "dissociation"
+}
+
+// fitAll fits the reaction and, with competing channels, each channel, and
+// sets the mechanism entries.
+func (n *Network) fitAll(out *RatesResult, tol float64) error {
+	var err error
+	if out.Fits, err = n.fit(out.K, out.KInfIntegrated, out.K0, out.KUnits, tol); err != nil {
+		return err
+	}
+	out.Entries = []Entry{{Label: out.Reaction, Reactants: out.Reactants, Products: out.Products, Order: out.Order, Fits: out.Fits}}
+	if len(out.Channels) > 0 {
+		out.Entries = out.Entries[:0]
+		r := n.reactant()
+		for i := range out.Channels {
+			cr := &out.Channels[i]
+			if cr.Fits, err = n.fit(cr.K, cr.KInfIntegrated, cr.K0, "s-1", tol); err != nil {
+				return err
+			}
+			prods := cr.Products
+			if len(prods) == 0 {
+				prods = []string{fmt.Sprintf("%s-products-%d", r.Name, i+1)}
+			}
+			out.Entries = append(out.Entries, Entry{Label: cr.Name, Reactants: []string{r.Name}, Products: prods, Order: 1, Fits: cr.Fits})
+		}
+	}
+	if out.Fits.Recommended == "" {
+		out.Warnings = append(out.Warnings, n.Model.File+": no fitted form meets the tolerance: "+out.Fits.Reason)
+	}
+	return nil
+}
+
+// fit fits the file's forms (or DefaultFits) to a k(T,P) grid, with the
+// computed limits given to the falloff fits.
+func (n *Network) fit(k [][]float64, kInf, k0 []float64, kUnits string, tol float64) (*fit.Results, error) {
+	m := n.Model
+	forms := DefaultFits
+	if len(m.Fits) > 0 {
+		forms = nil
+		for _, s := range m.Fits {
+			f, err := fit.ParseFormName(s)
+			if err != nil {
+				return nil, fmt.Errorf("%s: fits: %w", m.File, err) // input.Parse checked the names
+			}
+			forms = append(forms, f)
+		}
+	}
+	t := fit.FromGrid(m.Temperatures, m.Pressures, k, kUnits)
+	res, err := fit.FitAll(t, forms, fit.Options{Tolerance: tol, Limits: &fit.Limits{K0: k0, KInf: kInf}})
+	if res == nil {
+		return nil, &NumericalError{fmt.Errorf("%s: fitting: %w", m.File, err)}
+	}
+	return res, nil
+}

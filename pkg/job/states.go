@@ -1,0 +1,213 @@
+package job
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+)
+
+// Caution goes with every report of rate coefficients.
+const Caution = "Caution: computed rate coefficients are model estimates; validate them against experiment " +
+	"before using them in safety, hazard or design decisions, which remain subject to local codes and qualified review."
+
+// ReportGrid overrides the file's reporting grid (energy-grid.grain and
+// energy-grid.ceiling) for States and Micro.
+type ReportGrid struct {
+	Grain, Ceiling Setting
+}
+
+// counted is the main channel's reactant and transition state with their
+// state counts on the reporting grains.
+type counted struct {
+	name         string
+	reactant, ts *input.Molecule
+	l            float64
+	grains       rrkm.Grains
+	rc, tc       *rrkm.Counter
+}
+
+// countMain counts the states of the reactant and the main channel's
+// transition state up to the reporting ceiling: the one given, or
+// AutoCeiling at the highest temperature.
+func (n *Network) countMain(opt ReportGrid) (*counted, error) {
+	m := n.Model
+	main := n.Main()
+	if main.TS == nil {
+		return nil, n.errBarrierless()
+	}
+	fine := m.EnergyGrid.Fine
+	grain, ceiling := opt.Grain.or(m.EnergyGrid.Grain), opt.Ceiling.or(m.EnergyGrid.Ceiling)
+	if !(grain > 0) {
+		return nil, opt.Grain.optionError("", "the grain must be positive")
+	}
+	if grain < fine {
+		return nil, opt.Grain.optionError("", "below the fine counting grain %g cm-1", fine)
+	}
+	if ceiling == 0 {
+		ts := m.Temperatures
+		ceiling = n.AutoCeiling(ts[len(ts)-1])
+	}
+	if ceiling <= main.E0+grain {
+		err := fmt.Errorf("ceiling %g cm-1 is not above the threshold %g cm-1 by a grain", ceiling, main.E0)
+		switch {
+		case opt.Ceiling.given():
+			return nil, &OptionError{Option: opt.Ceiling.Option, Text: opt.Ceiling.Text, Err: err}
+		case opt.Grain.given():
+			return nil, &OptionError{Option: opt.Grain.Option, Text: opt.Grain.Text, Err: err}
+		}
+		return nil, m.FieldError("energy-grid.ceiling", err, "raise the ceiling, or delete it to have it chosen automatically")
+	}
+	if bins := fineBins(fine, ceiling); opt.Ceiling.given() && bins > rrkm.MaxFineBins {
+		limit := float64(rrkm.MaxFineBins)
+		return nil, opt.Ceiling.optionError(fmt.Sprintf("a ceiling of at most %s cm-1", num(math.Floor((limit-2)*fine))),
+			"the state count would need %s bins of %s cm-1, %s of memory; the limit is %s",
+			num(bins), num(fine), byteSize(bins*bytesPerEntry), byteSize(limit*bytesPerEntry))
+	}
+	r := n.reactant()
+	c := &counted{name: r.Name + " -> " + main.TS.Name, reactant: r, ts: main.TS, l: main.L, grains: rrkm.GrainsTo(grain, ceiling)}
+	top := c.grains.Top()
+	var err error
+	if c.rc, err = rrkm.NewCounter(&r.Species, fine, top); err != nil {
+		return nil, fmt.Errorf("%s: %w", m.File, err)
+	}
+	if c.tc, err = rrkm.NewCounter(&main.TS.Species, fine, math.Max(top-main.E0, fine)); err != nil {
+		return nil, fmt.Errorf("%s: %w", m.File, err)
+	}
+	return c, nil
+}
+
+// PartitionFunction is one species' partition function at one temperature
+// and its factors.
+type PartitionFunction struct {
+	T       float64 `json:"T_K"`
+	Q       float64 `json:"Q"`
+	Vib     float64 `json:"Q_vib"`
+	Rot     float64 `json:"Q_rot"`
+	El      float64 `json:"Q_el"`
+	Hind    float64 `json:"Q_hindered"`
+	Counted float64 `json:"Q_from_counts"` // the Boltzmann sum over the reported grains
+}
+
+// SpeciesStates are one species' partition functions, densities and sums
+// of states on the reporting grains (energies from its own zero-point
+// level).
+type SpeciesStates struct {
+	Name      string              `json:"name"`
+	Q         []PartitionFunction `json:"partition_function"`
+	Grain     float64             `json:"grid_cm-1"`
+	Energies  []float64           `json:"energies_cm-1"`
+	Density   []float64           `json:"density_per_cm-1"`
+	SumStates []float64           `json:"sum_of_states"`
+}
+
+// StatesResult is the result of States (the JSON of `falloff states`).
+type StatesResult struct {
+	File    string          `json:"file"`
+	Note    string          `json:"note"`
+	Species []SpeciesStates `json:"species"`
+}
+
+// StatesNote says what the partition functions of States include.
+const StatesNote = "Q excludes external symmetry numbers and optical isomers (they enter through the path degeneracy); " +
+	"energies are measured from each species' own zero-point level; Q_from_counts is the Boltzmann sum over the reported grains"
+
+// States counts the states of the reactant and the main channel's
+// transition state and returns their partition functions at the file's
+// temperatures, with densities and sums of states on the reporting grains.
+func (n *Network) States(opt ReportGrid) (*StatesResult, error) {
+	c, err := n.countMain(opt)
+	if err != nil {
+		return nil, err
+	}
+	tsGrains := rrkm.GrainsTo(c.grains.Width, c.tc.Ceiling())
+	res := &StatesResult{File: n.Model.File, Note: StatesNote}
+	for _, x := range []struct {
+		sp *rrkm.Species
+		c  *rrkm.Counter
+		g  rrkm.Grains
+	}{{&c.reactant.Species, c.rc, c.grains}, {&c.ts.Species, c.tc, tsGrains}} {
+		st, err := statesOf(x.sp, x.c, x.g, n.Model.Temperatures)
+		if err != nil {
+			return nil, err
+		}
+		res.Species = append(res.Species, st)
+	}
+	return res, nil
+}
+
+// statesOf reports one counted species on grains g.
+func statesOf(sp *rrkm.Species, c *rrkm.Counter, g rrkm.Grains, temps []float64) (SpeciesStates, error) {
+	out := SpeciesStates{Name: sp.Name, Grain: g.Width,
+		Density: c.Densities(g), SumStates: c.SumsAt(g), Energies: make([]float64, g.N)}
+	counts := c.Counts(g, 0)
+	for i := range out.Energies {
+		out.Energies[i] = g.Energy(i)
+	}
+	for _, t := range temps {
+		q := PartitionFunction{T: t, Q: sp.InternalQ(t), Vib: sp.VibrationalQ(t), Rot: sp.RotationalQ(t), El: sp.ElectronicQ(t), Hind: sp.HinderedQ(t),
+			Counted: rrkm.CountedQ(counts, g, t)}
+		if err := finite(sp.Name+" partition function", q.Q, q.Counted); err != nil {
+			return out, err
+		}
+		out.Q = append(out.Q, q)
+	}
+	if err := finite(sp.Name+" density", out.Density...); err != nil {
+		return out, err
+	}
+	return out, finite(sp.Name+" sum of states", out.SumStates...)
+}
+
+// MicroChannel is one channel's RRKM k(E) on the reporting grains, with
+// canonical k∞(T) beside the Boltzmann average of k(E).
+type MicroChannel struct {
+	Name           string    `json:"name"`
+	E0             float64   `json:"E0_cm-1"`
+	L              float64   `json:"path_degeneracy"`
+	Grain          float64   `json:"grid_cm-1"`
+	Energies       []float64 `json:"energies_cm-1"`
+	K              []float64 `json:"k_per_s"`
+	Temperatures   []float64 `json:"temperatures_K"`
+	KInf           []float64 `json:"k_inf"`
+	KInfIntegrated []float64 `json:"k_inf_integrated"`
+}
+
+// MicroResult is the result of Micro (the JSON of `falloff micro`).
+type MicroResult struct {
+	File     string         `json:"file"`
+	Note     string         `json:"note"`
+	Caution  string         `json:"caution"`
+	Channels []MicroChannel `json:"channels"`
+}
+
+// MicroNote says what Micro reports.
+const MicroNote = "energies from the reactant zero-point level; k in s-1; k_inf is canonical TST, " +
+	"k_inf_integrated the Boltzmann average of k(E) on the same grains"
+
+// Micro returns the main channel's RRKM k(E), without tunnelling, and the
+// TST check: canonical k∞(T) beside the thermal average of k(E) on the same
+// grains, which must agree.
+func (n *Network) Micro(opt ReportGrid) (*MicroResult, error) {
+	c, err := n.countMain(opt)
+	if err != nil {
+		return nil, err
+	}
+	mi := rrkm.RRKM(c.rc, c.tc, c.l, c.grains)
+	temps := n.Model.Temperatures
+	mc := MicroChannel{Name: c.name, E0: c.ts.E0, L: c.l, Grain: c.grains.Width,
+		Energies: make([]float64, c.grains.N), K: mi.K, Temperatures: temps}
+	for i := range mc.Energies {
+		mc.Energies[i] = c.grains.Energy(i)
+	}
+	for _, t := range temps {
+		mc.KInf = append(mc.KInf, rrkm.KInf(&c.reactant.Species, &c.ts.Species, c.l, t))
+		mc.KInfIntegrated = append(mc.KInfIntegrated, mi.ThermalK(t))
+	}
+	for _, xs := range [][]float64{mc.K, mc.KInf, mc.KInfIntegrated} {
+		if err := finite("k", xs...); err != nil {
+			return nil, err
+		}
+	}
+	return &MicroResult{File: n.Model.File, Note: MicroNote, Caution: Caution, Channels: []MicroChannel{mc}}, nil
+}
