@@ -24,7 +24,7 @@ func TestOmega22(t *testing.T) {
 		{100, 0.5887, 0.005},
 	}
 	for _, tc := range cases {
-		if got := Omega22(tc.tStar); !scalar.EqualWithinRel(got, tc.want, tc.tol) {
+		if got := omega22(tc.tStar); !scalar.EqualWithinRel(got, tc.want, tc.tol) {
 			t.Errorf("Ω(2,2)*(%v) = %.5f, table %.5f (tol %g)", tc.tStar, got, tc.want, tc.tol)
 		}
 	}
@@ -41,8 +41,8 @@ func TestLJRateConstant(t *testing.T) {
 		t.Errorf("combining like parameters changed them: %v", pair)
 	}
 	mu := ReducedMass(ar.Mass, ar.Mass)
-	got := LJRateConstant(pair, mu, 300)
-	want := 3.9413e-15 * 5.6392e4 * Omega22(300/93.3)
+	got := lJRateConstant(pair, mu, 300)
+	want := 3.9413e-15 * 5.6392e4 * omega22(300/93.3)
 	if !scalar.EqualWithinRel(got, want, 1e-4) {
 		t.Errorf("Z(Ar+Ar, 300 K) = %.5g, hand value %.5g", got, want)
 	}
@@ -281,7 +281,7 @@ func TestBandedMatchesDense(t *testing.T) {
 // MatrixSize, with which callers check a request before counting states,
 // puts a grain edge on E0 as Run does and counts the banded kernel's
 // entries: N grains × (band + 1), the band reaching where exp(−ΔE/α) falls
-// below BandTolerance (16.1 α for 1e-7), one entry a grain for the strong
+// below bandTolerance (16.1 α for 1e-7), one entry a grain for the strong
 // collider.
 func TestMatrixSize(t *testing.T) {
 	const e0, ceiling = 14689.7, 60000.0

@@ -342,13 +342,13 @@ func edgeGrain(grain, e0 float64) float64 {
 
 // matrixEntries is the number of stored entries of the master equation on
 // grains g at tK: the banded kernel's grains × band for exponential-down (the
-// band reaching where exp(−ΔE/α) falls below BandTolerance), one per grain
+// band reaching where exp(−ΔE/α) falls below bandTolerance), one per grain
 // for the strong collider.
 func matrixEntries(tr Transfer, tK float64, g rrkm.Grains) float64 {
 	if tr.Strong {
 		return float64(g.N)
 	}
-	return float64(g.N) * math.Ceil(tr.Alpha(tK)*-math.Log(BandTolerance)/g.Width+1)
+	return float64(g.N) * math.Ceil(tr.Alpha(tK)*-math.Log(bandTolerance)/g.Width+1)
 }
 
 // MatrixSize returns the grains and the number of matrix entries (8 bytes

@@ -6,12 +6,12 @@ import (
 	"sync"
 )
 
-// BandTolerance is where the exponential-down kernel is cut: transfers with
+// bandTolerance is where the exponential-down kernel is cut: transfers with
 // exp(−ΔE/α) below it (ΔE > 16α) are dropped, in detailed-balance pairs, so
 // the kernel stays exactly balanced and normalised. Cutting at 1e-10
 // instead changes k, k0 and the falloff centre by less than 1e-6 (measured on
 // the benchmark grid) and costs twice the time.
-const BandTolerance = 1e-7
+const bandTolerance = 1e-7
 
 // minDownShare is the least total downward probability a grain keeps when the
 // top-down normalisation meets a grain whose upward probabilities from
@@ -50,7 +50,7 @@ func ExponentialDown(w *Well, alpha float64) (*Kernel, error) {
 		return nil, fmt.Errorf("collision: alpha = %v cm-1 must be positive", alpha)
 	}
 	n := w.N()
-	cut := alpha * -math.Log(BandTolerance)
+	cut := alpha * -math.Log(bandTolerance)
 	band := 0
 	for j := range n {
 		i := j

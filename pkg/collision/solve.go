@@ -192,19 +192,19 @@ func (s *system) eigen() (Solution, error) {
 	return Solution{}, fmt.Errorf("%w after %d inverse iterations", ErrNoConvergence, maxIterations)
 }
 
-// ReactiveFloor is the k(E) in s⁻¹ below which a grain under the classical
+// reactiveFloor is the k(E) in s⁻¹ below which a grain under the classical
 // threshold counts as non-reactive in the low-pressure limit. Without
 // tunnelling such grains have k = 0 exactly; with it, grains deep under the
 // barrier have tiny k(E) > 0, and they react far more slowly than molecules
 // collide at any pressure of interest (ω is above 1 s⁻¹ even at 1e-9 bar), so
 // k0 is the limit for ω well above the floor.
-const ReactiveFloor = 1e-6
+const reactiveFloor = 1e-6
 
 // belowFloor returns the number of leading non-reactive grains: k = 0, or,
 // below the lowest classical threshold E0 (tunnelling), k below the floor.
 func (w *Well) belowFloor() int {
 	nk := 0
-	for nk < w.N() && (w.K[nk] == 0 || w.E[nk] < w.E0 && w.K[nk] < ReactiveFloor) {
+	for nk < w.N() && (w.K[nk] == 0 || w.E[nk] < w.E0 && w.K[nk] < reactiveFloor) {
 		nk++
 	}
 	return nk

@@ -62,5 +62,5 @@ func (c Collider) Z(tK float64) float64 {
 	if c.Fixed > 0 {
 		return c.Fixed
 	}
-	return LJRateConstant(c.LJ, c.Mu, tK)
+	return lJRateConstant(c.LJ, c.Mu, tK)
 }

@@ -6,10 +6,10 @@ import (
 	"path/filepath"
 )
 
-// WriteFileAtomic writes data to path through a temporary file in the same
+// writeFileAtomic writes data to path through a temporary file in the same
 // directory, synced and renamed into place: the file is either the old one
 // or the whole new one, never a part.
-func WriteFileAtomic(path string, data []byte) (err error) {
+func writeFileAtomic(path string, data []byte) (err error) {
 	dir := filepath.Dir(path)
 	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
 	if err != nil {

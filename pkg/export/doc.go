@@ -14,6 +14,6 @@
 // molecule.
 //
 // Every file is written whole to a temporary file in the target directory
-// and renamed into place (WriteFileAtomic), so a reader never sees half a
+// and renamed into place (writeFileAtomic), so a reader never sees half a
 // file.
 package export

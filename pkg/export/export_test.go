@@ -286,8 +286,8 @@ func parseText(t *testing.T, b []byte) (ents []parsedEntry, eaUnit string, perMo
 	sc := bufio.NewScanner(bytes.NewReader(b))
 	for sc.Scan() {
 		l := sc.Text()
-		if len(l) > MaxLine {
-			t.Errorf("line longer than %d: %q", MaxLine, l)
+		if len(l) > maxLine {
+			t.Errorf("line longer than %d: %q", maxLine, l)
 		}
 		if i := strings.Index(l, "!"); i >= 0 {
 			l = l[:i]
@@ -519,10 +519,10 @@ func TestParseUnits(t *testing.T) {
 func TestWriteFileAtomic(t *testing.T) {
 	dir := t.TempDir()
 	p := filepath.Join(dir, "a.txt")
-	if err := WriteFileAtomic(p, []byte("one")); err != nil {
+	if err := writeFileAtomic(p, []byte("one")); err != nil {
 		t.Fatal(err)
 	}
-	if err := WriteFileAtomic(p, []byte("two")); err != nil {
+	if err := writeFileAtomic(p, []byte("two")); err != nil {
 		t.Fatal(err)
 	}
 	b, _ := os.ReadFile(p)
@@ -530,7 +530,7 @@ func TestWriteFileAtomic(t *testing.T) {
 	if string(b) != "two" || len(entries) != 1 {
 		t.Errorf("content %q, %d files left", b, len(entries))
 	}
-	if err := WriteFileAtomic(filepath.Join(dir, "missing", "x"), nil); err == nil {
+	if err := writeFileAtomic(filepath.Join(dir, "missing", "x"), nil); err == nil {
 		t.Error("write into a missing directory succeeded")
 	}
 }

@@ -10,7 +10,7 @@ import (
 
 // FileSet collects the files of one run, rendered in memory, and writes them
 // together at the end (Commit), each through a temporary file renamed into
-// place (WriteFileAtomic): a failure or an interruption leaves every file
+// place (writeFileAtomic): a failure or an interruption leaves every file
 // whole or absent, never part-written, and the caller is told which were
 // written.
 type FileSet struct {
@@ -40,7 +40,7 @@ func (s *FileSet) Commit(ctx context.Context) ([]string, error) {
 		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
 			return written, fmt.Errorf("creating the folder for %s: %w%s", p, err, writtenNote(written))
 		}
-		if err := WriteFileAtomic(p, s.data[i]); err != nil {
+		if err := writeFileAtomic(p, s.data[i]); err != nil {
 			return written, fmt.Errorf("%w%s", err, writtenNote(written))
 		}
 		written = append(written, p)

@@ -10,8 +10,8 @@ import (
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
-// MaxLine is the longest line the keyword-style text may have.
-const MaxLine = 80
+// maxLine is the longest line the keyword-style text may have.
+const maxLine = 80
 
 // textUnitWords returns the REACTIONS line's unit words.
 func textUnitWords(u Units) string {
@@ -34,7 +34,7 @@ func tn(x float64) string { return fmt.Sprintf("%9s", strconv.FormatFloat(x, 'g'
 // a REACTIONS line with unit words, each reaction line (equation, A, n, Ea)
 // with its auxiliary lines (LOW, TROE, SRI, PLOG, TCHEB, PCHEB, CHEB), and
 // END; comments start with '!'. Pressures on auxiliary lines are in atm.
-// No line exceeds MaxLine characters and no auxiliary line contains '='.
+// No line exceeds maxLine characters and no auxiliary line contains '='.
 func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
 	if err := u.Check(); err != nil {
 		return nil, err
@@ -42,7 +42,7 @@ func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
 	u = u.withDefaults()
 	var b bytes.Buffer
 	for _, l := range h.lines() {
-		for _, w := range wrap(l, MaxLine-2) {
+		for _, w := range wrap(l, maxLine-2) {
 			fmt.Fprintf(&b, "! %s\n", w)
 		}
 	}
@@ -52,7 +52,7 @@ func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
 			return nil, err
 		}
 		if r.Note != "" {
-			for _, w := range wrap(r.Note, MaxLine-2) {
+			for _, w := range wrap(r.Note, maxLine-2) {
 				fmt.Fprintf(&b, "! %s\n", w)
 			}
 		}
@@ -109,8 +109,8 @@ func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
 	}
 	b.WriteString("END\n")
 	for i, l := range strings.Split(b.String(), "\n") {
-		if len(l) > MaxLine {
-			return nil, fmt.Errorf("export: text line %d has %d characters (at most %d): %q; shorten the species names", i+1, len(l), MaxLine, l)
+		if len(l) > maxLine {
+			return nil, fmt.Errorf("export: text line %d has %d characters (at most %d): %q; shorten the species names", i+1, len(l), maxLine, l)
 		}
 	}
 	return b.Bytes(), nil

@@ -12,16 +12,16 @@ import (
 type CompareOptions struct {
 	// Alpha300 lists ⟨ΔE⟩down at 300 K (cm⁻¹) of the exponential-down
 	// models to compare; nil means the file's value × 0.5, 1 and 1.5 (or
-	// DefaultAlpha300 × those with a strong-collider file).
+	// defaultAlpha300 × those with a strong-collider file).
 	Alpha300 []float64
 	Jobs     int    // worker goroutines over temperatures; 0 means GOMAXPROCS
 	Progress func() // called after each temperature of each model
 }
 
-// DefaultAlpha300 is used for the comparison when the file has the strong
+// defaultAlpha300 is used for the comparison when the file has the strong
 // collider and no α is given (cm⁻¹; a typical value for Ar, common
 // practice, no source).
-const DefaultAlpha300 = 250
+const defaultAlpha300 = 250
 
 // ModelRates is the grid under one energy-transfer model.
 type ModelRates struct {
@@ -65,7 +65,7 @@ func (n *Network) Compare(ctx context.Context, opt CompareOptions) (*CompareResu
 	if len(alphas) == 0 {
 		a := base.Alpha300
 		if base.Strong {
-			a = DefaultAlpha300
+			a = defaultAlpha300
 		}
 		alphas = []float64{0.5 * a, a, 1.5 * a}
 	}

@@ -120,7 +120,7 @@ func (n *Network) checkCountSize() error {
 		return nil
 	}
 	limit := float64(rrkm.MaxFineBins)
-	err := &SizeError{rrkm.ErrTooLarge, fmt.Sprintf("the state count up to %s cm-1 on a fine grain of %s cm-1 would need %s bins, %s of memory; the limit is %s",
+	err := &sizeError{rrkm.ErrTooLarge, fmt.Sprintf("the state count up to %s cm-1 on a fine grain of %s cm-1 would need %s bins, %s of memory; the limit is %s",
 		num(top), num(g.Fine), num(bins), byteSize(bins*bytesPerEntry), byteSize(limit*bytesPerEntry))}
 	switch {
 	case m.Has("energy-grid.fine-grain") && fineBins(input.DefaultFineGrain, top) <= limit:
@@ -251,7 +251,7 @@ func (n *Network) checkMatrixSize(grain, ceiling float64, grainSet, ceilingSet S
 	if band := worst.entries / float64(worst.g.N); band > 1 {
 		shape += fmt.Sprintf(" × a band of %.0f", band)
 	}
-	err := &SizeError{collision.ErrTooLarge, fmt.Sprintf("%s at %s K would need %s entries (%s), %s of memory; the limit is %s",
+	err := &sizeError{collision.ErrTooLarge, fmt.Sprintf("%s at %s K would need %s entries (%s), %s of memory; the limit is %s",
 		what, num(tK), num(worst.entries), shape, byteSize(worst.entries*bytesPerEntry), byteSize(limit*bytesPerEntry))}
 	// The grain at which the run's own grids fit: entries ≈ (ceiling/w)·
 	// (16.1 α/w), so the grain grows as the square root of the excess (5 %

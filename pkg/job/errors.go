@@ -40,16 +40,16 @@ func numericalf(format string, a ...any) error {
 	return &NumericalError{fmt.Errorf(format, a...)}
 }
 
-// SizeError is a request too large for memory. It unwraps to the sentinel of
+// sizeError is a request too large for memory. It unwraps to the sentinel of
 // the package that would refuse it (rrkm.ErrTooLarge, collision.ErrTooLarge)
 // without repeating that package's text.
-type SizeError struct {
+type sizeError struct {
 	Sentinel error
 	Msg      string
 }
 
-func (e *SizeError) Error() string { return e.Msg }
-func (e *SizeError) Unwrap() error { return e.Sentinel }
+func (e *sizeError) Error() string { return e.Msg }
+func (e *sizeError) Unwrap() error { return e.Sentinel }
 
 // finite reports a numerical failure if any value is NaN or infinite.
 func finite(what string, xs ...float64) error {

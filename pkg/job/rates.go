@@ -116,17 +116,17 @@ func (r *RatesResult) NewWarnings() []string { return r.Warnings[r.fileWarned:] 
 // practice, no source.
 const SeparationLimit = 0.1
 
-// ConvergenceLimit is the change on halving the grain or raising the
+// convergenceLimit is the change on halving the grain or raising the
 // ceiling above which Rates warns.
-const ConvergenceLimit = 0.005
+const convergenceLimit = 0.005
 
-// DefaultFits are fitted when the input file names none.
-var DefaultFits = []fit.FormName{fit.FormTroe, fit.FormPLOG, fit.FormChebyshev}
+// defaultFits are fitted when the input file names none.
+var defaultFits = []fit.FormName{fit.FormTroe, fit.FormPLOG, fit.FormChebyshev}
 
 // Rates runs the whole job on the network: the master equation over the
 // file's temperatures and pressures with k∞, k0 and the falloff centre, the
 // convergence check, the direction asked for, and the fits (the file's
-// forms, or DefaultFits) of the reaction and of each channel. It stops,
+// forms, or defaultFits) of the reaction and of each channel. It stops,
 // returning ctx.Err(), when ctx is cancelled. Errors are *input.FieldError
 // (the file), *OptionError (opt), *NumericalError (a failed computation),
 // or wrap collision.ErrTooLarge.
@@ -246,9 +246,9 @@ func (n *Network) forward(res *collision.Result) (*RatesResult, error) {
 	}
 	if c := res.Convergence; !math.IsNaN(c) {
 		out.Convergence = &c
-		if c > ConvergenceLimit {
+		if c > convergenceLimit {
 			out.Warnings = append(out.Warnings, fmt.Sprintf("%s: halving the grain or raising the ceiling by %d kT changes k by %.2g %% (more than %.2g %%) at T = %s K, P = %s bar (hint: set energy-grid.master-equation-grain or --grain smaller, or raise --ceiling)",
-				m.File, collision.HeadroomKT, 100*c, 100*ConvergenceLimit, num(res.ConvergenceT), num(res.ConvergenceP/units.BarPa)))
+				m.File, collision.HeadroomKT, 100*c, 100*convergenceLimit, num(res.ConvergenceT), num(res.ConvergenceP/units.BarPa)))
 		}
 	}
 	for _, xs := range [][]float64{out.KInf, out.KInfIntegrated, out.K0, out.Centre} {
@@ -302,11 +302,11 @@ func (n *Network) fitAll(out *RatesResult, tol float64) error {
 	return nil
 }
 
-// fit fits the file's forms (or DefaultFits) to a k(T,P) grid, with the
+// fit fits the file's forms (or defaultFits) to a k(T,P) grid, with the
 // computed limits given to the falloff fits.
 func (n *Network) fit(k [][]float64, kInf, k0 []float64, kUnits string, tol float64) (*fit.Results, error) {
 	m := n.Model
-	forms := DefaultFits
+	forms := defaultFits
 	if len(m.Fits) > 0 {
 		forms = nil
 		for _, s := range m.Fits {

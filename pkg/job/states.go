@@ -109,8 +109,8 @@ type StatesResult struct {
 	Species []SpeciesStates `json:"species"`
 }
 
-// StatesNote says what the partition functions of States include.
-const StatesNote = "Q excludes external symmetry numbers and optical isomers (they enter through the path degeneracy); " +
+// statesNote says what the partition functions of States include.
+const statesNote = "Q excludes external symmetry numbers and optical isomers (they enter through the path degeneracy); " +
 	"energies are measured from each species' own zero-point level; Q_from_counts is the Boltzmann sum over the reported grains"
 
 // States counts the states of the reactant and the main channel's
@@ -122,7 +122,7 @@ func (n *Network) States(opt ReportGrid) (*StatesResult, error) {
 		return nil, err
 	}
 	tsGrains := rrkm.GrainsTo(c.grains.Width, c.tc.Ceiling())
-	res := &StatesResult{File: n.Model.File, Note: StatesNote}
+	res := &StatesResult{File: n.Model.File, Note: statesNote}
 	for _, x := range []struct {
 		sp *rrkm.Species
 		c  *rrkm.Counter
@@ -181,8 +181,8 @@ type MicroResult struct {
 	Channels []MicroChannel `json:"channels"`
 }
 
-// MicroNote says what Micro reports.
-const MicroNote = "energies from the reactant zero-point level; k in s-1; k_inf is canonical TST, " +
+// microNote says what Micro reports.
+const microNote = "energies from the reactant zero-point level; k in s-1; k_inf is canonical TST, " +
 	"k_inf_integrated the Boltzmann average of k(E) on the same grains"
 
 // Micro returns the main channel's RRKM k(E), without tunnelling, and the
@@ -209,5 +209,5 @@ func (n *Network) Micro(opt ReportGrid) (*MicroResult, error) {
 			return nil, err
 		}
 	}
-	return &MicroResult{File: n.Model.File, Note: MicroNote, Caution: Caution, Channels: []MicroChannel{mc}}, nil
+	return &MicroResult{File: n.Model.File, Note: microNote, Caution: Caution, Channels: []MicroChannel{mc}}, nil
 }

@@ -29,8 +29,8 @@ func EquilibriumConstant(reactant *Species, products []*Species, dE0, tK float64
 	return math.Exp(lk)
 }
 
-// PressureEquilibriumConstant converts K_c in (molecules cm⁻³)^Δn to the
+// pressureEquilibriumConstant converts K_c in (molecules cm⁻³)^Δn to the
 // dimensionless K_p for the standard pressure std Pa: K_p = K_c·(k_BT/p°)^Δn.
-func PressureEquilibriumConstant(kc float64, deltaN int, tK, std float64) float64 {
+func pressureEquilibriumConstant(kc float64, deltaN int, tK, std float64) float64 {
 	return kc * math.Pow(units.Boltzmann*tK*1e6/std, float64(deltaN))
 }

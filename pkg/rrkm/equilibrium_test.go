@@ -24,7 +24,7 @@ func TestEquilibriumH2Dissociation(t *testing.T) {
 	d0 := 2 * 216.035 * units.Cm1PerKJPerMol
 	const tK = 298.15
 	kc := EquilibriumConstant(h2, []*Species{h, h}, d0, tK)
-	got := math.Log10(PressureEquilibriumConstant(kc, 1, tK, units.BarPa))
+	got := math.Log10(pressureEquilibriumConstant(kc, 1, tK, units.BarPa))
 	r := units.Avogadro * units.Boltzmann
 	want := -2 * 203278 / (math.Ln10 * r * tK)
 	if math.Abs(got-want) > 0.1 {

@@ -432,15 +432,15 @@ func cmpFloat(a, b float64) int {
 	return 0
 }
 
-// QCeilingKT is the ceiling of the level sum in Q, in units of kT above the
+// qCeilingKT is the ceiling of the level sum in Q, in units of kT above the
 // lowest level. The neglected tail is about e⁻⁵⁰ ≈ 2e-22 times the number
 // of levels within a few kT of the ceiling: n·kT/ν below the barrier,
 // sqrt(kT/B) above it (the free rotor's (1/σ)·sqrt(πkT/B)·erfc(√50)), both
 // far below the rounding of Q ≥ 1/σ (TestHinderedQCeiling).
-const QCeilingKT = 50
+const qCeilingKT = 50
 
 // Q returns the quantum partition function Σ g·exp(−E/kT) over the levels
-// of Levels up to QCeilingKT·kT, with the zero of energy at the lowest
+// of Levels up to qCeilingKT·kT, with the zero of energy at the lowest
 // level and the weights 1/σ. It panics if the rotor is invalid or tK is not
 // positive (check with Validate; Species.Validate does).
 func (h HinderedRotor) Q(tK float64) float64 {
@@ -448,7 +448,7 @@ func (h HinderedRotor) Q(tK float64) float64 {
 		panic(fmt.Sprintf("rrkm: HinderedRotor.Q: temperature %v K", tK))
 	}
 	kt := kT(tK)
-	levels, err := h.Levels(QCeilingKT * kt)
+	levels, err := h.Levels(qCeilingKT * kt)
 	if err != nil {
 		panic("rrkm: HinderedRotor.Q: " + err.Error())
 	}

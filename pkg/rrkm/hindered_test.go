@@ -445,7 +445,7 @@ func TestHinderedRejects(t *testing.T) {
 	}
 }
 
-// The level sum of Q stops at QCeilingKT = 50 kT. Over one list of levels
+// The level sum of Q stops at qCeilingKT = 50 kT. Over one list of levels
 // to 100 kT, the sum to 50 kT and the whole sum agree to 1e-15 relative
 // (rounding): a check of the stated truncation, for free-rotor-like,
 // hindered and deep-well rotors. Q itself, solved in its own basis, agrees
@@ -463,7 +463,7 @@ func TestHinderedQCeiling(t *testing.T) {
 			for _, l := range slices.Backward(levels) {
 				x := l.Degeneracy * math.Exp(-l.Energy/kt)
 				all += x
-				if l.Energy <= QCeilingKT*kt {
+				if l.Energy <= qCeilingKT*kt {
 					cut += x
 				}
 			}

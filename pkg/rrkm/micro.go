@@ -75,5 +75,5 @@ func (m *Micro) rates() {
 // ThermalK returns the Boltzmann average of k(E) at tK, which canonical TST
 // must reproduce.
 func (m *Micro) ThermalK(tK float64) float64 {
-	return ThermalAverage(m.Counts, m.K, m.Grains, tK)
+	return thermalAverage(m.Counts, m.K, m.Grains, tK)
 }

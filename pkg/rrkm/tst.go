@@ -46,11 +46,11 @@ func KInfTunnel(reactant, ts *Species, l, tK float64, e *Eckart) float64 {
 	return l * units.LightCm * ts.InternalQ(tK) / reactant.InternalQ(tK) * math.Exp(e.logLaplace(tK))
 }
 
-// ThermalAverage returns the Boltzmann average Σ N_i k_i e^(−E_i/kT) / Σ N_i
+// thermalAverage returns the Boltzmann average Σ N_i k_i e^(−E_i/kT) / Σ N_i
 // e^(−E_i/kT) of a microcanonical rate k over grains with counts N.
-func ThermalAverage(counts, k []float64, g Grains, tK float64) float64 {
+func thermalAverage(counts, k []float64, g Grains, tK float64) float64 {
 	if len(counts) != len(k) {
-		panic("rrkm: ThermalAverage: counts and k differ in length")
+		panic("rrkm: thermalAverage: counts and k differ in length")
 	}
 	beta := 1 / kT(tK)
 	num, den := 0.0, 0.0
