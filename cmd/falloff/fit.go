@@ -21,6 +21,7 @@ type fitOptions struct {
 	forms        []fit.FormName // formNames, checked by validate
 	tolerancePct float64
 	order        string // N_TxN_P for Chebyshev, "" = automatic
+	nT, nP       int    // order, parsed by validate; 0 = automatic
 }
 
 func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
@@ -47,18 +48,15 @@ func (o *fitOptions) validate(args []string) error {
 	if !(o.tolerancePct > 0) || o.tolerancePct > 100 {
 		return usagef("--tolerance %v: give a percentage between 0 and 100", o.tolerancePct)
 	}
-	_, _, err := o.chebyshevOrder()
-	return err
-}
-
-func (o *fitOptions) chebyshevOrder() (nT, nP int, err error) {
-	if o.order == "" {
-		return 0, 0, nil
+	o.nT, o.nP = 0, 0
+	if o.order != "" {
+		var nT, nP int
+		if _, err := fmt.Sscanf(strings.ToLower(o.order), "%dx%d", &nT, &nP); err != nil || nT < 1 || nP < 1 {
+			return usagef("--chebyshev-order %q: write N_TxN_P with positive whole numbers, e.g. 7x4", o.order)
+		}
+		o.nT, o.nP = nT, nP
 	}
-	if _, err := fmt.Sscanf(strings.ToLower(o.order), "%dx%d", &nT, &nP); err != nil || nT < 1 || nP < 1 {
-		return 0, 0, usagef("--chebyshev-order %q: write N_TxN_P with positive whole numbers, e.g. 7x4", o.order)
-	}
-	return nT, nP, nil
+	return nil
 }
 
 func runFitCmd(args []string, s streams) error {
@@ -86,8 +84,7 @@ func runFit(o fitOptions, path string, s streams) error {
 	if err != nil {
 		return err
 	}
-	nT, nP, _ := o.chebyshevOrder()
-	res, err := fit.FitAll(t, o.forms, fit.Options{Tolerance: o.tolerancePct / 100, ChebyshevNT: nT, ChebyshevNP: nP})
+	res, err := fit.FitAll(t, o.forms, fit.Options{Tolerance: o.tolerancePct / 100, ChebyshevNT: o.nT, ChebyshevNP: o.nP})
 	if res == nil || errors.Is(err, fit.ErrNoForm) {
 		if err == nil {
 			err = errors.New("no form could be fitted")
