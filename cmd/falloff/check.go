@@ -55,6 +55,9 @@ func runCheckCmd(args []string, s streams) error {
 	if p := rep.Pressures; len(p) > 0 {
 		fmt.Fprintf(s.out, "pressures: %d from %s to %s bar\n", len(p), num(p[0]/units.BarPa), num(p[len(p)-1]/units.BarPa))
 	}
+	for _, u := range rep.Unavailable {
+		fmt.Fprintln(s.out, "not available:", u)
+	}
 	if len(rep.Warnings) == 0 {
 		fmt.Fprintln(s.out, "no warnings")
 	}

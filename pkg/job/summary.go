@@ -30,6 +30,9 @@ type Summary struct {
 	Temperatures   []float64         `json:"temperatures_K"`
 	Pressures      []float64         `json:"pressures_Pa"`
 	Warnings       []string          `json:"warnings"`
+	// Unavailable lists the calculations the file does not support, and
+	// why: the ones that would refuse it although it is valid.
+	Unavailable []string `json:"unavailable,omitempty"`
 }
 
 // Summary returns what the network's file describes.
@@ -43,6 +46,12 @@ func (n *Network) Summary() *Summary {
 	s := &Summary{File: m.File, Title: m.Title, PathDegeneracy: n.Main().L,
 		Reaction:     fmt.Sprintf("%s -> %s (via %s)", r.Name, strings.Join(m.Reaction.Products, " + "), via),
 		Temperatures: m.Temperatures, Pressures: m.Pressures, Warnings: append([]string{}, m.Warnings...)}
+	if len(m.Pressures) == 0 {
+		s.Unavailable = append(s.Unavailable, "rates and compare: the file has no pressure grid (grid.pressures)")
+	}
+	if ts == nil {
+		s.Unavailable = append(s.Unavailable, "states and micro: the main channel is barrierless, without a transition state to report")
+	}
 	for _, mol := range m.Molecules {
 		role := "other"
 		switch mol.Name {
