@@ -146,7 +146,7 @@ func TestMicroJSONDemo(t *testing.T) {
 	}
 }
 
-// `states --json` follows design.md §8: species with partition functions,
+// `states --json` follows docs/design.md §8: species with partition functions,
 // grain, energies, densities and sums. The numbers are compared parsed with a
 // golden file to 1e-9 relative (floating-point summation order only).
 func TestStatesJSON(t *testing.T) {

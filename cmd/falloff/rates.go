@@ -75,7 +75,7 @@ func (o *ratesOptions) job(progress func()) job.Options {
 		Direction: o.direction, Tolerance: o.tolerancePct / 100, Progress: progress}
 }
 
-// ratesJSON is the JSON of `rates` (design.md §8, docs/output.md): the
+// ratesJSON is the JSON of `rates` (docs/design.md §8, docs/output.md): the
 // library's result and the files written.
 type ratesJSON struct {
 	*job.RatesResult

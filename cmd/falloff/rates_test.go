@@ -25,7 +25,7 @@ func TestRatesTerminal(t *testing.T) {
 	golden(t, "rates-ch3nc.txt", out)
 }
 
-// `rates --json` carries the fields of design.md §8 with consistent shapes,
+// `rates --json` carries the fields of docs/design.md §8 with consistent shapes,
 // and physics the grid must obey: k rises with pressure and stays below the
 // high-pressure limit; the thermal average of k(E) matches canonical TST to
 // 0.5 % (Holbrook, Pilling & Robertson 1996, eq. 4.26). The output does not

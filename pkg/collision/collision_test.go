@@ -202,7 +202,7 @@ func troeFactors(freqs []float64, e0, tK float64) (rho, fe float64) {
 // Strong-collider k0 agrees with Troe's factorised formula (J. Chem. Phys.
 // 66, 4745, 1977) k0^SC/Z = ρ(E0)·kT·e^(−E0/kT)·F_E/Q_vib with F_rot = F_anh = 1
 // (no rotors, harmonic) and F_E from the same paper. The issue asks for 10 %;
-// design.md §10 expects well under 1 % from F_E alone, to which the
+// docs/design.md §10 expects well under 1 % from F_E alone, to which the
 // Whitten–Rabinovitch density adds its own ~1 %.
 func TestStrongColliderK0Troe(t *testing.T) {
 	ch, r := testChannel(t, 90000)

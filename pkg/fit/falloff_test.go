@@ -14,7 +14,7 @@ import (
 func TestTroeGRI(t *testing.T) {
 	// Check values: log10 k in cm³ mol⁻¹ s⁻¹ for H+CH3(+M) from the
 	// GRI-Mech 3.0 parameters (Smith et al., 1999), [M] = P/RT, as quoted
-	// in design.md §6. The quoted values have 4 decimals, so 1e-4 is the
+	// in docs/design.md §6. The quoted values have 4 decimals, so 1e-4 is the
 	// tolerance the rounding allows.
 	const tol = 1e-4
 	f := griHCH3()

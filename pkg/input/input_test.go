@@ -81,7 +81,7 @@ func TestDemo(t *testing.T) {
 	}
 
 	// Unit conversions are exact products, so a relative 1e-6 only covers
-	// the 7 digits quoted in design.md §2; lists are checked to 1e-12.
+	// the 7 digits quoted in docs/design.md §2; lists are checked to 1e-12.
 	const (
 		quoted = 1e-6
 		exact  = 1e-12
@@ -91,7 +91,7 @@ func TestDemo(t *testing.T) {
 		got, want float64
 		tol       float64
 	}{
-		// design.md §2: 1 kcal/mol = 349.7551 cm⁻¹.
+		// docs/design.md §2: 1 kcal/mol = 349.7551 cm⁻¹.
 		{"E0", ts.E0, 42.0 * 349.7551, quoted},
 		{"imaginary", ts.Imaginary, 650, exact},
 		{"mass", reactant.Mass, 70.09, exact},
@@ -208,7 +208,7 @@ func TestConversions(t *testing.T) {
 			func(m *Model) []float64 { _, ts := m.ReactantAndTS(); return []float64{ts.Imaginary} }, []float64{650}, exact},
 		{"imaginary negative", "imaginary-frequency: 800 cm-1", "imaginary-frequency: -650 cm-1",
 			func(m *Model) []float64 { _, ts := m.ReactantAndTS(); return []float64{ts.Imaginary} }, []float64{650}, exact},
-		// 1 kcal/mol = 349.7551 cm⁻¹ (design.md §2), to its 7 quoted digits.
+		// 1 kcal/mol = 349.7551 cm⁻¹ (docs/design.md §2), to its 7 quoted digits.
 		{"vibrations in kcal/mol", "vibrations: {unit: cm-1, values: [3000, 1500, 1000]}", "vibrations: {unit: kcal/mol, values: [10, 5, 3]}",
 			func(m *Model) []float64 { r, _ := m.ReactantAndTS(); return r.Vibrations }, []float64{3497.551, 1748.7755, 1049.2653}, 1e-6},
 		// ε/k_B given as an energy comes back in K: 1 kJ/mol / R = 120.27 K

@@ -16,7 +16,7 @@ import (
 //   - each channel's high-pressure limit, the thermal average of its k(E)
 //     on the master-equation grains, equals its canonical k∞ (TST with the
 //     Eckart or Wigner correction, or the given k∞ of the barrierless
-//     channel): the TST identity of the design (design.md §3), within the
+//     channel): the TST identity of the design (docs/design.md §3), within the
 //     0.5 % grain error it allows;
 //   - channel shares of k, k∞ and k0 sum to the totals (one slowest mode,
 //     common practice, no source), to 1e-12.

@@ -8,7 +8,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 )
 
-// The classical rotor densities of design.md §3 — 1D ρ = 1/(σ√(BE)),
+// The classical rotor densities of docs/design.md §3 — 1D ρ = 1/(σ√(BE)),
 // 2D ρ = 1/(σB), 3D ρ = (2/σ)√(E/(ABC)) (Holbrook, Pilling & Robertson 1996,
 // §4.4) — written here independently, integrated numerically against
 // e^(−E/kT), must give the classical partition functions RotationalQ uses.

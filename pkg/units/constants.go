@@ -18,7 +18,7 @@ const (
 )
 
 // Derived constants. They are computed from the exact values above, so they
-// agree with design.md §2 (k_B/(hc) = 0.695034800 cm⁻¹/K and so on) to every
+// agree with docs/design.md §2 (k_B/(hc) = 0.695034800 cm⁻¹/K and so on) to every
 // quoted digit.
 const (
 	// LightCm is c in cm/s: k(E) = c·W‡/ρ with ρ in per cm⁻¹ gives s⁻¹.

@@ -29,7 +29,7 @@ func TestConstantsMatchGonum(t *testing.T) {
 	}
 }
 
-// Derived conversions against the values quoted in design.md §2, which are
+// Derived conversions against the values quoted in docs/design.md §2, which are
 // the CODATA 2018 values rounded to the digits shown; the tolerance is half a
 // unit in the last quoted digit.
 func TestDerivedConversions(t *testing.T) {
