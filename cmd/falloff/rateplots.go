@@ -59,11 +59,11 @@ func addRatePlots(set *export.FileSet, dir string, n *job.Network, res *job.Rate
 	if n.Main().TS == nil {
 		return nil // k(E) and ρ(E) plots need a transition state (see micro)
 	}
-	mi, err := n.Micro(job.ReportGrid{})
+	counts, err := n.Count(job.ReportGrid{})
 	if err != nil {
 		return err
 	}
-	st, err := n.States(job.ReportGrid{})
+	mi, err := counts.Micro()
 	if err != nil {
 		return err
 	}
@@ -78,7 +78,7 @@ func addRatePlots(set *export.FileSet, dir string, n *job.Network, res *job.Rate
 		Series: []plots.Series{{Name: mc.Name, X: e, Y: k}}}); err != nil {
 		return err
 	}
-	r := st.Species[0]
+	name, energies, density := counts.ReactantDensity()
 	return save("density.svg", plots.Figure{Title: "Density of states", XLabel: "E / cm-1", YLabel: "ρ(E) / (cm-1)^-1", LogY: true,
-		Series: []plots.Series{{Name: r.Name, X: r.Energies, Y: r.Density}}})
+		Series: []plots.Series{{Name: name, X: energies, Y: density}}})
 }

@@ -113,14 +113,63 @@ type StatesResult struct {
 const statesNote = "Q excludes external symmetry numbers and optical isomers (they enter through the path degeneracy); " +
 	"energies are measured from each species' own zero-point level; Q_from_counts is the Boltzmann sum over the reported grains"
 
-// States counts the states of the reactant and the main channel's
-// transition state and returns their partition functions at the file's
-// temperatures, with densities and sums of states on the reporting grains.
-func (n *Network) States(opt ReportGrid) (*StatesResult, error) {
+// Counts are the state counts of the reactant and the main channel's
+// transition state on a reporting grid, from which States and Micro
+// report.
+type Counts struct {
+	n *Network
+	c *counted
+}
+
+// Count counts the states of the reactant and the main channel's
+// transition state on the reporting grid.
+func (n *Network) Count(opt ReportGrid) (*Counts, error) {
 	c, err := n.countMain(opt)
 	if err != nil {
 		return nil, err
 	}
+	return &Counts{n, c}, nil
+}
+
+// States counts the states of the reactant and the main channel's
+// transition state and returns their partition functions at the file's
+// temperatures, with densities and sums of states on the reporting grains.
+func (n *Network) States(opt ReportGrid) (*StatesResult, error) {
+	cs, err := n.Count(opt)
+	if err != nil {
+		return nil, err
+	}
+	return cs.States()
+}
+
+// Micro returns the main channel's RRKM k(E), without tunnelling, and the
+// TST check: canonical k∞(T) beside the thermal average of k(E) on the same
+// grains, which must agree.
+func (n *Network) Micro(opt ReportGrid) (*MicroResult, error) {
+	cs, err := n.Count(opt)
+	if err != nil {
+		return nil, err
+	}
+	return cs.Micro()
+}
+
+// ReactantDensity returns the reactant's name and its density of states
+// ρ(E) in states per cm⁻¹ on the reporting grains, at the grain energies
+// in cm⁻¹.
+func (cs *Counts) ReactantDensity() (name string, energies, density []float64) {
+	g := cs.c.grains
+	energies = make([]float64, g.N)
+	for i := range energies {
+		energies[i] = g.Energy(i)
+	}
+	return cs.c.reactant.Name, energies, cs.c.rc.Densities(g)
+}
+
+// States returns the partition functions of the counted species at the
+// file's temperatures, with densities and sums of states on the reporting
+// grains.
+func (cs *Counts) States() (*StatesResult, error) {
+	n, c := cs.n, cs.c
 	tsGrains := rrkm.GrainsTo(c.grains.Width, c.tc.Ceiling())
 	res := &StatesResult{File: n.Model.File, Note: statesNote}
 	for _, x := range []struct {
@@ -185,14 +234,10 @@ type MicroResult struct {
 const microNote = "energies from the reactant zero-point level; k in s-1; k_inf is canonical TST, " +
 	"k_inf_integrated the Boltzmann average of k(E) on the same grains"
 
-// Micro returns the main channel's RRKM k(E), without tunnelling, and the
-// TST check: canonical k∞(T) beside the thermal average of k(E) on the same
-// grains, which must agree.
-func (n *Network) Micro(opt ReportGrid) (*MicroResult, error) {
-	c, err := n.countMain(opt)
-	if err != nil {
-		return nil, err
-	}
+// Micro returns the main channel's RRKM k(E) on the counted grains, with
+// the TST check.
+func (cs *Counts) Micro() (*MicroResult, error) {
+	n, c := cs.n, cs.c
 	mi := rrkm.RRKM(c.rc, c.tc, c.l, c.grains)
 	temps := n.Model.Temperatures
 	mc := MicroChannel{Name: c.name, E0: c.ts.E0, L: c.l, Grain: c.grains.Width,
