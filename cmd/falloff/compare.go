@@ -16,6 +16,7 @@ type compareOptions struct {
 	alphaTexts  []string
 	plot        string
 	jobs        int
+	disp        display
 
 	alphas []float64 // cm⁻¹, parsed by validate
 }
@@ -25,6 +26,7 @@ func (o *compareOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&o.alphaTexts, "alpha", nil, `⟨ΔE⟩down at 300 K with its unit, repeatable, e.g. --alpha "150 cm-1" --alpha "400 cm-1" (default: the file's value × 0.5, 1, 1.5)`)
 	fs.StringVar(&o.plot, "plot", "", "also write the falloff curves of every model to this SVG file")
 	fs.IntVarP(&o.jobs, "jobs", "j", 0, "worker goroutines over temperatures (default: GOMAXPROCS)")
+	o.disp.addFlags(fs)
 	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no chatter or warnings on stderr")
 }
 
@@ -45,7 +47,7 @@ func (o *compareOptions) validate(args []string) error {
 	if o.jobs < 0 {
 		return usagef("--jobs %d: must be 0 (automatic) or positive", o.jobs)
 	}
-	return nil
+	return o.disp.validate()
 }
 
 func runCompareCmd(args []string, s streams) error {
@@ -67,7 +69,7 @@ func runCompareCmd(args []string, s streams) error {
 		return err
 	}
 	if o.plot != "" {
-		if err := writeComparePlot(o.plot, res, s); err != nil {
+		if err := writeComparePlot(o.plot, res, o.disp, s); err != nil {
 			return err
 		}
 	}
@@ -75,14 +77,15 @@ func runCompareCmd(args []string, s streams) error {
 		return writeJSON(s.out, res)
 	}
 	fmt.Fprintf(s.out, "%s: %s\nk(T,P)/k∞ under each energy-transfer model, at the same collision rate:\n\n", res.File, n.Model.Title)
-	header := []string{"T / K", "P / bar"}
+	d := o.disp
+	header := []string{"T / K", "P / " + d.pressureUnit}
 	for _, md := range res.Models {
 		header = append(header, md.Name)
 	}
 	var rows [][]string
 	for i, t := range res.Temperatures {
 		for j, p := range res.Pressures {
-			row := []string{num(t), num(p / units.BarPa)}
+			row := []string{num(t), num(d.p(p))}
 			for _, md := range res.Models {
 				row = append(row, num(md.K[i][j]/res.KInf[i]))
 			}
@@ -92,12 +95,12 @@ func runCompareCmd(args []string, s streams) error {
 	if err := renderTable(s.out, header, rows); err != nil {
 		return err
 	}
-	fmt.Fprintf(s.out, "\nk0 / cm3 mol-1 s-1:\n")
+	fmt.Fprintf(s.out, "\nk0 / %s:\n", d.rateUnit(1))
 	rows = rows[:0]
 	for i, t := range res.Temperatures {
 		row := []string{num(t)}
 		for _, md := range res.Models {
-			row = append(row, num(md.K0[i]*units.Avogadro))
+			row = append(row, num(d.rate(md.K0[i], 1)))
 		}
 		rows = append(rows, row)
 	}
@@ -123,11 +126,11 @@ func plotTemperatures(n int) []int {
 	return []int{0, n / 2, n - 1}
 }
 
-func writeComparePlot(path string, res *job.CompareResult, s streams) error {
-	f := plots.Figure{Title: "Energy-transfer models", XLabel: "P / bar", YLabel: "k / k∞", LogX: true, LogY: true}
+func writeComparePlot(path string, res *job.CompareResult, d display, s streams) error {
+	f := plots.Figure{Title: "Energy-transfer models", XLabel: "P / " + d.pressureUnit, YLabel: "k / k∞", LogX: true, LogY: true}
 	var ps []float64
 	for _, p := range res.Pressures {
-		ps = append(ps, p/units.BarPa)
+		ps = append(ps, d.p(p))
 	}
 	for g, it := range plotTemperatures(len(res.Temperatures)) {
 		for d, md := range res.Models {

@@ -79,7 +79,7 @@ func TestLibraryEqualsCommandLine(t *testing.T) {
 			if code, _, errs := runCLI(t, args("rates", "--skip-check", "--out", dir)...); code != exitOK {
 				t.Fatalf("rates --out: exit %d: %s", code, errs)
 			}
-			want, err := res.MechanismFiles(export.DefaultUnits, false)
+			want, err := res.MechanismFiles(job.FileOptions{Units: export.DefaultUnits, PressureUnit: "bar"})
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -79,10 +79,19 @@ func TestRatesOutFiles(t *testing.T) {
 			if len(tab.Points) != len(sum.Temperatures)*len(sum.Pressures) {
 				t.Fatalf("grid.csv has %d points", len(tab.Points))
 			}
+			// grid.csv is in the run's units (per mol by default); the fits
+			// are per molecule, as the JSON is.
+			perMol := 1.0
+			if tc.direction == string(job.Recombination) {
+				perMol = 6.02214076e23 // N_A, CODATA 2018 (exact)
+				if tab.KUnits != "cm3 mol-1 s-1" {
+					t.Errorf("grid.csv k units %q, want cm3 mol-1 s-1", tab.KUnits)
+				}
+			}
 			for name, rep := range sum.Fits.Reports() {
 				ev := sum.Fits.Form(name)
 				for _, p := range tab.Points {
-					if d := math.Abs(ev.Eval(p.T, p.P)/p.K - 1); !(d <= rep.MaxError()*(1+1e-6)+1e-9) {
+					if d := math.Abs(ev.Eval(p.T, p.P)*perMol/p.K - 1); !(d <= rep.MaxError()*(1+1e-6)+1e-9) {
 						t.Fatalf("%s at %v K, %v Pa: error %.3g above the reported %.3g", name, p.T, p.P, d, rep.MaxError())
 					}
 				}

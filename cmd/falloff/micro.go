@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
@@ -25,10 +26,16 @@ func runMicroCmd(args []string, s streams) error {
 		return writeJSON(s.out, res)
 	}
 	mc := res.Channels[0]
-	fmt.Fprintf(s.out, "%s: %s\nchannel %s: E0 = %s cm-1 (%s kcal/mol), L = %g, %s cm-1 grains\n\n",
-		res.File, n.Model.Title, mc.Name, numE(mc.E0), num(mc.E0/units.Cm1PerKcalPerMol), mc.L, num(mc.Grain))
+	fmt.Fprintf(s.out, "%s: %s\nchannel %s: E0 = %s cm-1 (%s kcal/mol), L = %g, %s cm-1 grains\ntunnelling: %s\n\n",
+		res.File, n.Model.Title, mc.Name, numE(mc.E0), num(mc.E0/units.Cm1PerKcalPerMol), mc.L, num(mc.Grain), tunnellingLine(mc.Tunnelling))
 	var rows [][]string
 	first := int(math.Ceil(mc.E0 / mc.Grain))
+	for i, k := range mc.K { // with tunnelling, k(E) starts below E0
+		if k > 0 {
+			first = min(first, i)
+			break
+		}
+	}
 	every := max(1, int(math.Round(o.step.set.Cm1/mc.Grain)))
 	for i := first; i < len(mc.Energies); i += every {
 		rows = append(rows, []string{numE(mc.Energies[i]), numE(mc.Energies[i] - mc.E0), num(mc.K[i])})
@@ -41,9 +48,37 @@ func runMicroCmd(args []string, s streams) error {
 	for i, t := range mc.Temperatures {
 		rows = append(rows, []string{num(t), num(mc.KInf[i]), num(mc.KInfIntegrated[i]), num6(mc.KInfIntegrated[i] / mc.KInf[i])})
 	}
-	if err := renderTable(s.out, []string{"T / K", "k∞ TST / s-1", "<k(E)> / s-1", "ratio"}, rows); err != nil {
+	if err := renderTable(s.out, []string{"T / K", "k∞ TST" + kappaWord(mc.Tunnelling) + " / s-1", "<k(E)>" + wignerWord(mc.Tunnelling) + " / s-1", "ratio"}, rows); err != nil {
 		return err
 	}
 	_, err = fmt.Fprintln(s.out, "\n"+job.Caution)
 	return err
+}
+
+// tunnellingLine says in words how the report includes tunnelling.
+func tunnellingLine(t string) string {
+	switch input.Tunnelling(t) {
+	case input.Eckart:
+		return "Eckart: k(E) is through the Eckart barrier (also below E0); k∞ includes κ(T), as in rates"
+	case input.Wigner:
+		return "Wigner: k(E) is without it (the correction is thermal); k∞ and <k(E)> include κ(T), as in rates"
+	}
+	return "none"
+}
+
+// kappaWord marks column headers whose numbers include κ(T).
+func kappaWord(t string) string {
+	if input.Tunnelling(t) == input.Eckart || input.Tunnelling(t) == input.Wigner {
+		return "·κ"
+	}
+	return ""
+}
+
+// wignerWord marks the thermal average of k(E) when it is multiplied by
+// Wigner's κ(T) (an Eckart k(E) includes tunnelling itself).
+func wignerWord(t string) string {
+	if input.Tunnelling(t) == input.Wigner {
+		return "·κ"
+	}
+	return ""
 }

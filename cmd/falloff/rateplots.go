@@ -6,14 +6,13 @@ import (
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/plots"
-	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
 // addRatePlots queues in set, under dir, falloff.svg (k/k∞ against P at up
 // to three temperatures, computed points and the recommended fit),
 // arrhenius.svg (k0 and k∞ against 1000/T), and micro.svg and density.svg
 // (k(E) and ρ(E) of the main channel, when it has a transition state).
-func addRatePlots(set *export.FileSet, dir string, n *job.Network, res *job.RatesResult) error {
+func addRatePlots(set *export.FileSet, dir string, n *job.Network, res *job.RatesResult, d display) error {
 	save := func(name string, f plots.Figure) error {
 		b, err := f.SVG()
 		if err != nil {
@@ -24,9 +23,9 @@ func addRatePlots(set *export.FileSet, dir string, n *job.Network, res *job.Rate
 	}
 	var ps []float64
 	for _, p := range res.Pressures {
-		ps = append(ps, p/units.BarPa)
+		ps = append(ps, d.p(p))
 	}
-	fall := plots.Figure{Title: "Falloff curves", XLabel: "P / bar", YLabel: "k / k∞", LogX: true, LogY: true}
+	fall := plots.Figure{Title: "Falloff curves", XLabel: "P / " + d.pressureUnit, YLabel: "k / k∞", LogX: true, LogY: true}
 	best := res.Fits.Form(res.Fits.Recommended)
 	for g, it := range plotTemperatures(len(res.Temperatures)) {
 		t, kInf := res.Temperatures[it], res.KInfIntegrated[it]
@@ -39,7 +38,7 @@ func addRatePlots(set *export.FileSet, dir string, n *job.Network, res *job.Rate
 			var fx, fy []float64
 			for x := ps[0]; x <= ps[len(ps)-1]*1.0001; x *= 1.2 {
 				fx = append(fx, x)
-				fy = append(fy, best.Eval(t, x*units.BarPa)/kInf)
+				fy = append(fy, best.Eval(t, x*d.paPerUnit)/kInf)
 			}
 			fall.Series = append(fall.Series, plots.Series{Name: num(t) + " K, " + string(res.Fits.Recommended), X: fx, Y: fy, Group: g + 1})
 		}
@@ -51,8 +50,13 @@ func addRatePlots(set *export.FileSet, dir string, n *job.Network, res *job.Rate
 	for i, t := range res.Temperatures {
 		inv[i] = 1000 / t
 	}
-	arr := plots.Figure{Title: "High- and low-pressure limits", XLabel: "1000 K / T", YLabel: "k∞ / " + res.KUnits + ",  k0 / " + res.K0Units, LogY: true, LegendTop: true,
-		Series: []plots.Series{{Name: "k∞", X: inv, Y: res.KInfIntegrated, Points: true, Group: 1}, {Name: "k0", X: inv, Y: res.K0, Points: true, Group: 2}}}
+	kInf, k0 := make([]float64, len(inv)), make([]float64, len(inv))
+	for i := range inv {
+		kInf[i], k0[i] = d.rate(res.KInfIntegrated[i], res.KPowers()), d.rate(res.K0[i], res.K0Powers())
+	}
+	arr := plots.Figure{Title: "High- and low-pressure limits", XLabel: "1000 K / T",
+		YLabel: "k∞ / " + d.rateUnit(res.KPowers()) + ",  k0 / " + d.rateUnit(res.K0Powers()), LogY: true, LegendTop: true,
+		Series: []plots.Series{{Name: "k∞", X: inv, Y: kInf, Points: true, Group: 1}, {Name: "k0", X: inv, Y: k0, Points: true, Group: 2}}}
 	if err := save("arrhenius.svg", arr); err != nil {
 		return err
 	}

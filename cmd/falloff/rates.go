@@ -10,7 +10,6 @@ import (
 
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/job"
-	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
 type ratesOptions struct {
@@ -18,8 +17,9 @@ type ratesOptions struct {
 	jobs                                  int
 	grain, ceiling                        energyFlag
 	out, plots                            string
-	directionText, energyUnit, quantity   string
+	directionText, energyUnit             string
 	tolerancePct                          float64
+	disp                                  display
 
 	// Parsed by validate.
 	direction job.Direction
@@ -28,7 +28,7 @@ type ratesOptions struct {
 
 func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.json, "json", false, "print one JSON object instead of tables")
-	fs.BoolVar(&o.csv, "csv", false, "print the k(T,P) grid as CSV (T/K,P/Pa,k/s-1)")
+	fs.BoolVar(&o.csv, "csv", false, "print the k(T,P) grid as CSV (T/K,P/<pressure unit>,k/<unit>), a table fit reads")
 	fs.IntVarP(&o.jobs, "jobs", "j", 0, "worker goroutines over temperatures (default: GOMAXPROCS)")
 	o.grain.add(fs, "grain", `master-equation grain with its unit, e.g. "50 cm-1", at every temperature (default: automatic, min(α, kT)/5)`)
 	o.ceiling.add(fs, "ceiling", `top of the master-equation grid with its unit (default: automatic per temperature)`)
@@ -37,7 +37,7 @@ func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.tolerancePct, "tolerance", 1, "largest acceptable fit error in per cent: decides extra fit terms and the recommended form")
 	fs.StringVarP(&o.out, "out", "o", "", "write reactions.yaml, reactions.txt, a file per fitted form, grid.csv and summary.json to this directory")
 	fs.StringVar(&o.energyUnit, "energy-unit", "cal/mol", "activation-energy unit of the mechanism files: cal/mol, kcal/mol, J/mol, kJ/mol or K")
-	fs.StringVar(&o.quantity, "quantity", "mol", "quantity unit of the mechanism files: mol or molecule")
+	o.disp.addFlags(fs)
 	fs.BoolVar(&o.skeleton, "skeleton", false, "with --out, also write phase-example.yaml: how a Cantera phase uses the reactions")
 	fs.StringVar(&o.plots, "plots", "", "write SVG plots (falloff curves, Arrhenius plot of k0 and k∞, k(E), ρ(E)) to this directory")
 	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no chatter or warnings on stderr")
@@ -60,7 +60,10 @@ func (o *ratesOptions) validate(args []string) error {
 	if !(o.tolerancePct > 0) || o.tolerancePct > 100 {
 		return usagef("--tolerance %v: give a percentage between 0 and 100", o.tolerancePct)
 	}
-	if o.units, err = export.ParseUnits(o.energyUnit, o.quantity); err != nil {
+	if err := o.disp.validate(); err != nil {
+		return err
+	}
+	if o.units, err = export.ParseUnits(o.energyUnit, string(o.disp.quantity.Quantity)); err != nil {
 		return usagef("%v", err)
 	}
 	if err := o.grain.validate(); err != nil {
@@ -113,9 +116,9 @@ func runRatesCmd(args []string, s streams) error {
 	case o.json:
 		return writeJSON(s.out, ratesJSON{res, files})
 	case o.csv:
-		return writeGridCSV(s, res)
+		return writeGridCSV(s, res, o.disp)
 	}
-	return printRates(s, n.Model.Title, res, files)
+	return printRates(s, n.Model.Title, res, files, o.disp)
 }
 
 // writeRatesFiles renders the mechanism files, summary.json and the plots
@@ -124,7 +127,7 @@ func runRatesCmd(args []string, s streams) error {
 func writeRatesFiles(o ratesOptions, n *job.Network, res *job.RatesResult, s streams) ([]string, error) {
 	var set export.FileSet
 	if o.out != "" {
-		files, err := res.MechanismFiles(o.units, o.skeleton)
+		files, err := res.MechanismFiles(job.FileOptions{Units: o.units, PressureUnit: o.disp.pressureUnit, Skeleton: o.skeleton})
 		if err != nil {
 			return nil, err
 		}
@@ -133,7 +136,7 @@ func writeRatesFiles(o ratesOptions, n *job.Network, res *job.RatesResult, s str
 		}
 	}
 	if o.plots != "" {
-		if err := addRatePlots(&set, o.plots, n, res); err != nil {
+		if err := addRatePlots(&set, o.plots, n, res, o.disp); err != nil {
 			return nil, err
 		}
 	}
@@ -148,16 +151,16 @@ func writeRatesFiles(o ratesOptions, n *job.Network, res *job.RatesResult, s str
 	return set.Commit(s.ctx)
 }
 
-// writeGridCSV writes one row per grid point with units in the header.
-func writeGridCSV(s streams, res *job.RatesResult) error {
+// writeGridCSV writes one row per grid point in the display units, with
+// the units in the header as fit reads them.
+func writeGridCSV(s streams, res *job.RatesResult, d display) error {
 	w := csv.NewWriter(s.out)
-	if err := w.Write([]string{"T/K", "P/Pa", "k/s-1"}); err != nil {
+	if err := w.Write([]string{"T/K", "P/" + d.pressureUnit, "k/" + d.rateUnit(res.KPowers())}); err != nil {
 		return err
 	}
 	for i, t := range res.Temperatures {
 		for j, p := range res.Pressures {
-			row := []string{fullNum(t), fullNum(p), fullNum(res.K[i][j])}
-			if err := w.Write(row); err != nil {
+			if err := w.Write([]string{fullNum(t), fullNum(d.p(p)), fullNum(d.rate(res.K[i][j], res.KPowers()))}); err != nil {
 				return err
 			}
 		}
@@ -166,28 +169,31 @@ func writeGridCSV(s streams, res *job.RatesResult) error {
 	return w.Error()
 }
 
-func printRates(s streams, title string, res *job.RatesResult, files []string) error {
-	fmt.Fprintf(s.out, "%s: %s\nreaction %s (%s), L = %g\nbath %s (%s); %s\n\n",
-		res.File, title, res.Reaction, res.Direction, res.PathDegeneracy, res.Bath.Gas, res.Bath.Source, res.Transfer)
+func printRates(s streams, title string, res *job.RatesResult, files []string, d display) error {
+	kp, k0p := res.KPowers(), res.K0Powers()
+	ku, pu := d.rateUnit(kp), d.pressureUnit
+	fmt.Fprintf(s.out, "%s: %s\nreaction %s (%s), L = %g\nbath %s (%s); %s\ntunnelling: %s\n\n",
+		res.File, title, res.Reaction, res.Direction, res.PathDegeneracy, res.Bath.Gas, res.Bath.Source, res.Transfer, res.Tunnelling)
 	var rows [][]string
 	for i, t := range res.Temperatures {
-		rows = append(rows, []string{num(t), num(res.KInf[i]), num6(res.KInfIntegrated[i] / res.KInf[i]),
-			num(res.K0[i] * units.Avogadro), num(res.Centre[i] / units.BarPa), num(res.Grain[i]), numE(res.Ceiling[i])})
+		rows = append(rows, []string{num(t), num(d.rate(res.KInf[i], kp)), num6(res.KInfIntegrated[i] / res.KInf[i]),
+			num(d.rate(res.K0[i], k0p)), num(d.p(res.HalfPressure[i])), num(d.p(res.PrOne[i])), num(res.Fcent[i]),
+			num(res.Grain[i]), numE(res.Ceiling[i])})
 	}
-	if err := renderTable(s.out, []string{"T / K", "k∞ / s-1", "k∞(ME)/k∞", "k0 / cm3 mol-1 s-1",
-		"P(k=k∞/2) / bar", "grain / cm-1", "ceiling / cm-1"}, rows); err != nil {
+	if err := renderTable(s.out, []string{"T / K", "k∞ / " + ku, "k∞(ME)/k∞", "k0 / " + d.rateUnit(k0p),
+		"p½ / " + pu, "P(Pr=1) / " + pu, "Fcent", "grain / cm-1", "ceiling / cm-1"}, rows); err != nil {
 		return err
 	}
-	fmt.Fprintln(s.out, "\nk(T,P) / s-1; columns are pressures in bar:")
+	fmt.Fprintf(s.out, "\nk(T,P) / %s; columns are pressures in %s:\n", ku, pu)
 	header := []string{"T / K"}
 	for _, p := range res.Pressures {
-		header = append(header, num(p/units.BarPa))
+		header = append(header, num(d.p(p)))
 	}
 	rows = rows[:0]
 	for i, t := range res.Temperatures {
 		row := []string{num(t)}
 		for _, k := range res.K[i] {
-			row = append(row, num(k))
+			row = append(row, num(d.rate(k, kp)))
 		}
 		rows = append(rows, row)
 	}
@@ -196,20 +202,20 @@ func printRates(s streams, title string, res *job.RatesResult, files []string) e
 	}
 	if len(res.Channels) > 0 {
 		fmt.Fprintln(s.out, "\nbranching fractions k_channel/k and k∞ per channel:")
-		header := []string{"T / K", "P / bar"}
+		header := []string{"T / K", "P / " + pu}
 		for _, c := range res.Channels {
 			header = append(header, c.Name)
 		}
 		rows = rows[:0]
 		for i, t := range res.Temperatures {
 			for j, p := range res.Pressures {
-				row := []string{num(t), num(p / units.BarPa)}
+				row := []string{num(t), num(d.p(p))}
 				for _, c := range res.Channels {
 					row = append(row, num(c.Branching[i][j]))
 				}
 				rows = append(rows, row)
 			}
-			row := []string{num(t), "k∞ / s-1"}
+			row := []string{num(t), "k∞ / " + ku}
 			for _, c := range res.Channels {
 				row = append(row, num(c.KInf[i]))
 			}

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"github.com/falloff-kinetics/falloff/pkg/job"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -92,12 +93,63 @@ func TestRatesCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if strings.Join(rows[0], ",") != "T/K,P/Pa,k/s-1" || len(rows) != 1+3*5 {
+	if strings.Join(rows[0], ",") != "T/K,P/bar,k/s-1" || len(rows) != 1+3*5 {
 		t.Fatalf("header %v, %d rows", rows[0], len(rows))
 	}
-	// 760 Torr is exactly 101325 Pa.
-	if p, _ := strconv.ParseFloat(rows[4][1], 64); p != 101325 {
-		t.Errorf("fourth pressure %v Pa, want 101325", p)
+	// 760 Torr is exactly 1.01325 bar.
+	if p, _ := strconv.ParseFloat(rows[4][1], 64); math.Abs(p-1.01325) > 1e-15 {
+		t.Errorf("fourth pressure %v bar, want 1.01325", p)
+	}
+}
+
+// Every number carries the unit of what it shows: in the recombination
+// direction the grid is second order, so the CSV (in the units asked for)
+// says cm3 mol-1 s-1, its values are the JSON's per-molecule k times N_A
+// (CODATA 2018, exact), its pressures are in atm, and `fit` reads the table
+// back in those units; the terminal labels k∞ and k0 with their
+// second- and third-order units.
+func TestRecombinationUnits(t *testing.T) {
+	args := []string{"rates", "-q", "--skip-check", "--direction", "recombination", recombFile}
+	code, js, errs := runCLI(t, append(args, "--json")...)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var r job.RatesResult
+	if err := json.Unmarshal([]byte(js), &r); err != nil {
+		t.Fatal(err)
+	}
+	_, out, _ := runCLI(t, append(args, "--csv", "--pressure-unit", "atm")...)
+	rows, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(rows[0], ","); got != "T/K,P/atm,k/cm3 mol-1 s-1" {
+		t.Fatalf("header %q", got)
+	}
+	const na = 6.02214076e23
+	for i := range r.Temperatures {
+		for j := range r.Pressures {
+			row := rows[1+i*len(r.Pressures)+j]
+			p, _ := strconv.ParseFloat(row[1], 64)
+			k, _ := strconv.ParseFloat(row[2], 64)
+			if math.Abs(p*101325/r.Pressures[j]-1) > 1e-14 || math.Abs(k/(r.K[i][j]*na)-1) > 1e-14 {
+				t.Fatalf("row %v: want P = %g Pa, k = %g cm3 molecule-1 s-1 × N_A", row, r.Pressures[j], r.K[i][j])
+			}
+		}
+	}
+	table := filepath.Join(t.TempDir(), "grid.csv")
+	if err := os.WriteFile(table, []byte(out), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, fitOut, fitErr := runCLI(t, "fit", "--forms", "troe", table)
+	if !strings.Contains(fitOut, "k in cm3 mol-1 s-1") {
+		t.Errorf("fit did not read the units back: %s %s", fitOut, fitErr)
+	}
+	_, text, _ := runCLI(t, args...)
+	for _, want := range []string{"k∞ / cm3 mol-1 s-1", "k0 / cm6 mol-2 s-1", "k(T,P) / cm3 mol-1 s-1"} {
+		if !strings.Contains(text, want) {
+			t.Errorf("terminal report lacks %q", want)
+		}
 	}
 }
 

@@ -1,7 +1,8 @@
 // Package collision computes collision rates and solves the energy-grained
 // master equation of one well with one or more reactive channels (Channel
 // and its Competing list), giving the pressure-dependent unimolecular rate
-// coefficient k(T,P), its low-pressure limit k0(T) and the falloff centre,
+// coefficient k(T,P), its low-pressure limit k0(T), the half-pressure p½
+// (k = k∞/2) and the falloff centre (Pr = 1, with Fcent there),
 // in total and per channel (the shares of one slowest mode, so they sum to
 // the total). A channel's k(E) is RRKM from its transition-state counter,
 // or any k(E) a caller supplies (Channel.Micro: tunnelling-corrected or

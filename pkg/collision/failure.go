@@ -14,7 +14,7 @@ import (
 type PointError struct {
 	T     float64 // K
 	P     float64 // Pa; 0 when the failure is not at one pressure
-	Stage string  // what was computed: "k(E)", "k(T,P)", "low-pressure limit", "falloff centre", "convergence check"
+	Stage string  // what was computed: "k(E)", "k(T,P)", "low-pressure limit", "half-pressure (k = k∞/2)", "falloff centre (Pr = 1)", "convergence check"
 	Err   error
 }
 

@@ -181,16 +181,23 @@ func GrainFor(tr Transfer, tK float64) float64 {
 
 // TemperatureResult is the master-equation result at one temperature.
 type TemperatureResult struct {
-	T       float64
-	K       []float64 // k(T,P) in s⁻¹, one per pressure
-	KInfME  float64   // Σ F·k on the master-equation grains (the P → ∞ limit)
-	K0      float64   // low-pressure limit k0 in cm³ molecule⁻¹ s⁻¹
-	Z       float64   // collision rate constant, cm³ molecule⁻¹ s⁻¹
-	Centre  float64   // pressure in Pa where k = KInfME/2
-	Grain   float64   // cm⁻¹
-	Ceiling float64   // cm⁻¹
-	Grains  int
-	Band    int
+	T      float64
+	K      []float64 // k(T,P) in s⁻¹, one per pressure
+	KInfME float64   // Σ F·k on the master-equation grains (the P → ∞ limit)
+	K0     float64   // low-pressure limit k0 in cm³ molecule⁻¹ s⁻¹
+	Z      float64   // collision rate constant, cm³ molecule⁻¹ s⁻¹
+	// HalfPressure is the pressure in Pa where k = KInfME/2 (p½).
+	HalfPressure float64
+	// PrOne is the pressure in Pa where the reduced pressure
+	// Pr = k0[M]/k∞ is 1 (k∞ = KInfME), the centre of Troe's falloff
+	// curve, and Fcent = k/(k∞·Pr/(1+Pr)) = 2k/k∞ there: the broadening
+	// of the master-equation curve at its centre (Gilbert, Luther & Troe,
+	// Ber. Bunsenges. Phys. Chem. 87, 169, 1983).
+	PrOne, Fcent float64
+	Grain        float64 // cm⁻¹
+	Ceiling      float64 // cm⁻¹
+	Grains       int
+	Band         int
 	// Rescaled counts the grains where the kernel's upward probabilities
 	// were scaled to keep detailed balance (see ExponentialDown).
 	Rescaled int
@@ -501,9 +508,10 @@ func (p *prepared) k0PerOmega() (float64, []float64, error) {
 	return s.K, kc, nil
 }
 
-// solveTemperature solves the grid pressures at tK and, with limits, k0
-// and the falloff centre. Failures are *PointError (or ctx.Err()); results
-// are checked against the limits of the theory before they are returned.
+// solveTemperature solves the grid pressures at tK and, with limits, k0,
+// the half-pressure and the falloff centre (Pr = 1, Fcent). Failures are
+// *PointError (or ctx.Err()); results are checked against the limits of
+// the theory before they are returned.
 func solveTemperature(ctx context.Context, ch Channel, col Collider, tr Transfer, tK float64, pressures []float64, grain, ceiling float64, limits bool) (TemperatureResult, error) {
 	fail := func(pPa float64, stage string, err error) (TemperatureResult, error) {
 		if errors.Is(err, ErrTooLarge) || errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
@@ -569,11 +577,22 @@ func solveTemperature(ctx context.Context, ch Channel, col Collider, tr Transfer
 	for _, x := range k0c {
 		r.K0C = append(r.K0C, x*z)
 	}
-	omegaC, err := p.centre(r.KInfME, k0, omegas, r.K)
+	omegaC, err := p.halfPressure(r.KInfME, k0, omegas, r.K)
 	if err != nil {
-		return fail(0, "falloff centre", err)
+		return fail(0, "half-pressure (k = k∞/2)", err)
 	}
-	r.Centre = omegaC / z * units.Boltzmann * tK * 1e6
+	r.HalfPressure = omegaC / z * units.Boltzmann * tK * 1e6
+	// At Pr = 1, [M] = k∞/k0, so ω = z·k∞/k0 = k∞/(k0/ω).
+	omega1 := r.KInfME / k0
+	k1, err := p.rate(omega1)
+	if err == nil && !(k1 > 0) {
+		err = fmt.Errorf("k = %v at Pr = 1: %w", k1, errNotFinite)
+	}
+	if err != nil {
+		return fail(omega1/z*units.Boltzmann*tK*1e6, "falloff centre (Pr = 1)", err)
+	}
+	r.PrOne = omega1 / z * units.Boltzmann * tK * 1e6
+	r.Fcent = 2 * k1 / r.KInfME
 	return r, nil
 }
 
@@ -598,11 +617,11 @@ func checkRate(k, kInf float64, prev, ps []float64) error {
 	return nil
 }
 
-// centre returns the collision frequency where k = kInf/2, by false position
+// halfPressure returns the collision frequency where k = kInf/2, by false position
 // (Illinois variant) in ln ω. The bracket comes from the grid points when
-// they straddle the centre, otherwise from the Lindemann estimate
+// they straddle it, otherwise from the Lindemann estimate
 // ω = k∞/(k0/ω), widened until it holds.
-func (p *prepared) centre(kInf, k0PerOmega float64, omegas, ks []float64) (float64, error) {
+func (p *prepared) halfPressure(kInf, k0PerOmega float64, omegas, ks []float64) (float64, error) {
 	g := func(lnw float64) (float64, error) {
 		k, err := p.rate(math.Exp(lnw))
 		return math.Log(k/kInf) + math.Ln2, err
@@ -628,7 +647,7 @@ func (p *prepared) centre(kInf, k0PerOmega float64, omegas, ks []float64) (float
 		}
 		for n := 0; ga > 0 || gb < 0; n++ {
 			if n > 20 {
-				return 0, errors.New("collision: falloff centre not bracketed")
+				return 0, errors.New("collision: half-pressure (k = k∞/2) not bracketed")
 			}
 			if ga > 0 {
 				a -= math.Log(100)
@@ -670,5 +689,5 @@ func (p *prepared) centre(kInf, k0PerOmega float64, omegas, ks []float64) (float
 			side = -1
 		}
 	}
-	return 0, errors.New("collision: falloff centre did not converge")
+	return 0, errors.New("collision: half-pressure (k = k∞/2) did not converge")
 }

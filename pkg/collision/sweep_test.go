@@ -172,9 +172,9 @@ func sweepOne(t *testing.T, m int) (cases int, worstGrid float64) {
 		for i, row := range rows {
 			where := fmt.Sprintf("%s, T = %.0f K, %s", name, tK, [2]string{"exponential-down", "strong collider"}[i])
 			kinf := rrkm.KInf(mol.r, mol.ts, 1, tK)
-			for _, x := range []float64{kinf, row.KInfME, row.K0, row.Centre, row.Z} {
+			for _, x := range []float64{kinf, row.KInfME, row.K0, row.HalfPressure, row.Z} {
 				if !(x > 0) || math.IsInf(x, 0) {
-					t.Errorf("%s: k∞ %v, Σ F·k %v, k0 %v, centre %v, Z %v: not finite and positive", where, kinf, row.KInfME, row.K0, row.Centre, row.Z)
+					t.Errorf("%s: k∞ %v, Σ F·k %v, k0 %v, centre %v, Z %v: not finite and positive", where, kinf, row.KInfME, row.K0, row.HalfPressure, row.Z)
 					return cases, worstGrid
 				}
 			}

@@ -550,3 +550,27 @@ func ExampleText() {
 	//     TROE / 0.783 7.400000E+01 2.941000E+03 6.964000E+03 /
 	// END
 }
+
+// Rate-constant units: N_A (CODATA 2018, exact) per power of cm³ per mol;
+// labels name the powers.
+func TestRateFactorAndLabel(t *testing.T) {
+	for _, c := range []struct {
+		u      Units
+		powers int
+		factor float64
+		label  string
+	}{
+		{Units{Quantity: Mole}, 0, 1, "s-1"},
+		{Units{Quantity: Mole}, 1, 6.02214076e23, "cm3 mol-1 s-1"},
+		{Units{Quantity: Mole}, 2, 6.02214076e23 * 6.02214076e23, "cm6 mol-2 s-1"},
+		{Units{Quantity: Molecule}, 2, 1, "cm6 molecule-2 s-1"},
+		{Units{}, 1, 6.02214076e23, "cm3 mol-1 s-1"},
+	} {
+		if f := c.u.RateFactor(c.powers); math.Abs(f/c.factor-1) > 1e-15 {
+			t.Errorf("%v, %d: factor %g, want %g", c.u, c.powers, f, c.factor)
+		}
+		if l := c.u.RateLabel(c.powers); l != c.label {
+			t.Errorf("%v, %d: label %q, want %q", c.u, c.powers, l, c.label)
+		}
+	}
+}

@@ -108,3 +108,29 @@ func (u Units) arrhenius(a fit.Arrhenius, order int) (A, b, ea float64) {
 	e, _ := energyPerK(u.withDefaults().Energy)
 	return a.A * u.aFactor(order), a.N, a.Ta * e
 }
+
+// RateFactor returns the factor that converts a rate constant with powers
+// powers of cm³ molecule⁻¹ (0 for s⁻¹, 1 for cm³ molecule⁻¹ s⁻¹, 2 for
+// cm⁶ molecule⁻² s⁻¹) to the units' quantity: N_A^powers for mol, 1 for
+// molecule. It is the one conversion every output of rate constants uses.
+func (u Units) RateFactor(powers int) float64 { return u.aFactor(powers) }
+
+// RateLabel names the unit of a rate constant with powers powers of
+// cm³ per quantity: "s-1", "cm3 mol-1 s-1", "cm6 molecule-2 s-1", ….
+func (u Units) RateLabel(powers int) string {
+	q := string(u.withDefaults().Quantity)
+	switch powers {
+	case 0:
+		return "s-1"
+	case 1:
+		return "cm3 " + q + "-1 s-1"
+	}
+	return fmt.Sprintf("cm%d %s-%d s-1", 3*powers, q, powers)
+}
+
+// EnergyFactor returns the activation energy in the units' energy unit of
+// Ea/R = 1 K (R in the unit per mol; 1 for K).
+func (u Units) EnergyFactor() float64 {
+	e, _ := energyPerK(u.withDefaults().Energy)
+	return e
+}

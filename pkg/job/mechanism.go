@@ -90,11 +90,31 @@ func (r *RatesResult) Reactions(name fit.FormName) []export.Reaction {
 	return out
 }
 
-// MechanismFiles renders the mechanism files of the result in units u:
-// the recommended form as reactions.yaml and reactions.txt, every fitted
-// form as reactions-FORM.yaml/.txt, the grid as grid.csv and, with
-// skeleton, phase-example.yaml, a phase that uses them (docs/output.md).
-func (r *RatesResult) MechanismFiles(u export.Units, skeleton bool) ([]File, error) {
+// FileOptions choose the units and extras of MechanismFiles.
+type FileOptions struct {
+	// Units are the mechanism files' units; grid.csv takes their quantity.
+	Units export.Units
+	// PressureUnit is the pressure unit of grid.csv (as units.Parse reads
+	// it, e.g. "bar"); "" means Pa.
+	PressureUnit string
+	// Skeleton adds phase-example.yaml, a phase that uses the reactions.
+	Skeleton bool
+}
+
+// MechanismFiles renders the mechanism files of the result: the
+// recommended form as reactions.yaml and reactions.txt, every fitted form
+// as reactions-FORM.yaml/.txt, the grid as grid.csv (the format `fit`
+// reads) and, with opt.Skeleton, phase-example.yaml (docs/output.md).
+func (r *RatesResult) MechanismFiles(opt FileOptions) ([]File, error) {
+	u := opt.Units
+	pUnit, paPer := "Pa", 1.0
+	if opt.PressureUnit != "" {
+		f, err := units.Factor(opt.PressureUnit, units.Pressure)
+		if err != nil {
+			return nil, &OptionError{Option: "pressure unit", Text: opt.PressureUnit, Err: err}
+		}
+		pUnit, paPer = opt.PressureUnit, f
+	}
 	h := r.Header()
 	var files []File
 	emit := func(base string, rs []export.Reaction) error {
@@ -126,15 +146,15 @@ func (r *RatesResult) MechanismFiles(u export.Units, skeleton bool) ([]File, err
 		}
 	}
 	var csv strings.Builder
-	fmt.Fprintf(&csv, "T/K,P/Pa,k/%s\n", r.KUnits)
+	fmt.Fprintf(&csv, "T/K,P/%s,k/%s\n", pUnit, u.RateLabel(r.KPowers()))
 	full := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 	for i, t := range r.Temperatures {
 		for j, p := range r.Pressures {
-			fmt.Fprintf(&csv, "%s,%s,%s\n", full(t), full(p), full(r.K[i][j]))
+			fmt.Fprintf(&csv, "%s,%s,%s\n", full(t), full(p/paPer), full(r.K[i][j]*u.RateFactor(r.KPowers())))
 		}
 	}
 	files = append(files, File{"grid.csv", []byte(csv.String())})
-	if skeleton {
+	if opt.Skeleton {
 		var species []string
 		seen := map[string]bool{}
 		for _, e := range r.Entries {

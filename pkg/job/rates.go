@@ -41,20 +41,24 @@ type Options struct {
 // in the chosen direction, the fits, and per channel their shares. Its JSON
 // is the `rates --json` contract (docs/output.md).
 type RatesResult struct {
-	File           string        `json:"file"`
-	Reaction       string        `json:"reaction"`
-	Direction      string        `json:"direction"` // isomerization, dissociation or recombination
-	KUnits         string        `json:"k_units"`
-	Temperatures   []float64     `json:"temperatures_K"`
-	Pressures      []float64     `json:"pressures_Pa"`
-	K              [][]float64   `json:"k"` // K[iT][iP] in KUnits
-	KInf           []float64     `json:"k_inf"`
-	KInfIntegrated []float64     `json:"k_inf_integrated"`
-	K0             []float64     `json:"k0"`
-	K0Units        string        `json:"k0_units"`
-	CollisionFreq  []float64     `json:"collision_frequency_per_s_per_Pa"`
-	CollisionRate  []float64     `json:"collision_rate_constant_cm3_per_molecule_per_s"`
-	Centre         []float64     `json:"falloff_centre_Pa"`
+	File           string      `json:"file"`
+	Reaction       string      `json:"reaction"`
+	Direction      string      `json:"direction"` // isomerization, dissociation or recombination
+	KUnits         string      `json:"k_units"`
+	Temperatures   []float64   `json:"temperatures_K"`
+	Pressures      []float64   `json:"pressures_Pa"`
+	K              [][]float64 `json:"k"` // K[iT][iP] in KUnits
+	KInf           []float64   `json:"k_inf"`
+	KInfIntegrated []float64   `json:"k_inf_integrated"`
+	K0             []float64   `json:"k0"`
+	K0Units        string      `json:"k0_units"`
+	CollisionFreq  []float64   `json:"collision_frequency_per_s_per_Pa"`
+	CollisionRate  []float64   `json:"collision_rate_constant_cm3_per_molecule_per_s"`
+	HalfPressure   []float64   `json:"half_pressure_Pa"`   // p½: k = k∞/2
+	PrOne          []float64   `json:"pr_one_pressure_Pa"` // Pr = k0[M]/k∞ = 1, the centre of Troe's curve
+	Fcent          []float64   `json:"fcent"`              // k/(k∞/2) at Pr = 1
+	// Tunnelling says which tunnelling corrections k, k∞ and k0 include.
+	Tunnelling     string        `json:"tunnelling"`
 	Grain          []float64     `json:"grain_cm-1"`
 	Ceiling        []float64     `json:"ceiling_cm-1"`
 	Convergence    *float64      `json:"convergence_max_change,omitempty"`
@@ -196,7 +200,7 @@ func (n *Network) forward(res *collision.Result) (*RatesResult, error) {
 	out := &RatesResult{File: m.File, Direction: n.forwardName(), KUnits: "s-1", K0Units: "cm3 molecule-1 s-1",
 		Reaction:     r.Name + " -> " + strings.Join(m.Reaction.Products, " + "),
 		Temperatures: m.Temperatures, Pressures: m.Pressures, K: res.K(), Transfer: n.Transfer.String(), Bath: n.Bath,
-		PathDegeneracy: n.Main().L, Warnings: append([]string{}, m.Warnings...), Caution: Caution,
+		PathDegeneracy: n.Main().L, Warnings: append([]string{}, m.Warnings...), Caution: Caution, Tunnelling: n.tunnellingNote(),
 		Order: 1, Reactants: []string{r.Name}, Products: m.Reaction.Products,
 		model: m, fileWarned: len(m.Warnings)}
 	if len(out.Products) == 0 {
@@ -208,7 +212,9 @@ func (n *Network) forward(res *collision.Result) (*RatesResult, error) {
 		out.K0 = append(out.K0, row.K0)
 		out.CollisionRate = append(out.CollisionRate, row.Z)
 		out.CollisionFreq = append(out.CollisionFreq, row.Z*collision.Concentration(1, row.T))
-		out.Centre = append(out.Centre, row.Centre)
+		out.HalfPressure = append(out.HalfPressure, row.HalfPressure)
+		out.PrOne = append(out.PrOne, row.PrOne)
+		out.Fcent = append(out.Fcent, row.Fcent)
 		out.Grain = append(out.Grain, row.Grain)
 		out.Ceiling = append(out.Ceiling, row.Ceiling)
 	}
@@ -251,7 +257,10 @@ func (n *Network) forward(res *collision.Result) (*RatesResult, error) {
 				m.File, collision.HeadroomKT, 100*c, 100*convergenceLimit, num(res.ConvergenceT), num(res.ConvergenceP/units.BarPa)))
 		}
 	}
-	for _, xs := range [][]float64{out.KInf, out.KInfIntegrated, out.K0, out.Centre} {
+	if w := n.lowPressureWarning(out); w != "" {
+		out.Warnings = append(out.Warnings, w)
+	}
+	for _, xs := range [][]float64{out.KInf, out.KInfIntegrated, out.K0, out.HalfPressure, out.PrOne, out.Fcent} {
 		if err := finite("rates", xs...); err != nil {
 			return nil, err
 		}
@@ -323,4 +332,59 @@ func (n *Network) fit(k [][]float64, kInf, k0 []float64, kUnits string, tol floa
 		return nil, &NumericalError{fmt.Errorf("%s: fitting: %w", m.File, err)}
 	}
 	return res, nil
+}
+
+// KPowers is the number of cm³ molecule⁻¹ factors in the unit of K and
+// KInf: 0 for a unimolecular direction (s⁻¹), 1 for a recombination.
+func (r *RatesResult) KPowers() int { return r.Order - 1 }
+
+// K0Powers is the number of cm³ molecule⁻¹ factors in the unit of K0.
+func (r *RatesResult) K0Powers() int { return r.Order }
+
+// tunnellingNote says which channels' rates include a tunnelling
+// correction: "none", or e.g. "eckart (CH3NC-TS); wigner (TS-2)".
+func (n *Network) tunnellingNote() string {
+	var parts []string
+	for _, c := range n.Channels {
+		if c.Tunnelling != "" && c.Tunnelling != input.NoTunnelling {
+			parts = append(parts, fmt.Sprintf("%s (%s)", c.Tunnelling, c.Name))
+		}
+	}
+	if len(parts) == 0 {
+		return string(input.NoTunnelling)
+	}
+	return strings.Join(parts, "; ")
+}
+
+// lowPressureLimit is the k/(k0[M]) at the lowest pressure below which
+// Rates warns that the grid does not reach the low-pressure limit.
+const lowPressureLimit = 0.5
+
+// lowPressureWarning warns where the lowest pressure of the grid is far
+// from the low-pressure limit, so that k0 is an extrapolation beyond the
+// grid: k/(k0[M]) < lowPressureLimit there. With tunnelling this is the
+// rule rather than the exception: k0 counts as reactive the grains far
+// below the barrier whose k(E) is tiny, and only pressures where the
+// collision frequency falls below that k(E) approach it.
+func (n *Network) lowPressureWarning(out *RatesResult) string {
+	var worst, worstT float64 = 1, 0
+	var at []string
+	for i, tK := range out.Temperatures {
+		r := out.K[i][0] / (out.K0[i] * collision.Concentration(out.Pressures[0], tK))
+		if r < lowPressureLimit {
+			at = append(at, num(tK))
+			if r < worst {
+				worst, worstT = r, tK
+			}
+		}
+	}
+	if len(at) == 0 {
+		return ""
+	}
+	why := "lower the lowest pressure if the low-pressure limit matters"
+	if n.tunnellingNote() != string(input.NoTunnelling) {
+		why = "with tunnelling k0 counts grains far below the barrier as reactive, and only pressures where collisions are rarer than their tiny k(E) approach it; treat k0 as that formal limit"
+	}
+	return fmt.Sprintf("%s: at %s K the lowest pressure, %s Pa, is far from the low-pressure limit: k/(k0[M]) = %.2g at %s K, so k0 is an extrapolation beyond the grid (hint: %s)",
+		n.Model.File, strings.Join(at, ", "), num(out.Pressures[0]), worst, num(worstT), why)
 }

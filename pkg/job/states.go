@@ -22,6 +22,7 @@ type ReportGrid struct {
 // state counts on the reporting grains.
 type counted struct {
 	name         string
+	channel      Channel // the main channel
 	reactant, ts *input.Molecule
 	l            float64
 	grains       rrkm.Grains
@@ -66,13 +67,19 @@ func (n *Network) countMain(opt ReportGrid) (*counted, error) {
 			num(bins), num(fine), byteSize(bins*bytesPerEntry), byteSize(limit*bytesPerEntry))
 	}
 	r := n.reactant()
-	c := &counted{name: r.Name + " -> " + main.TS.Name, reactant: r, ts: main.TS, l: main.L, grains: rrkm.GrainsTo(grain, ceiling)}
+	c := &counted{name: r.Name + " -> " + main.TS.Name, channel: main, reactant: r, ts: main.TS, l: main.L, grains: rrkm.GrainsTo(grain, ceiling)}
 	top := c.grains.Top()
 	var err error
 	if c.rc, err = rrkm.NewCounter(&r.Species, fine, top); err != nil {
 		return nil, fmt.Errorf("%s: %w", m.File, err)
 	}
-	if c.tc, err = rrkm.NewCounter(&main.TS.Species, fine, math.Max(top-main.E0, fine)); err != nil {
+	// With Eckart tunnelling the transition state's levels matter down to
+	// the barrier's lower end (as in the master equation).
+	tsTop := top - main.E0
+	if e := main.Eckart(); e != nil {
+		tsTop = top - e.Emin()
+	}
+	if c.tc, err = rrkm.NewCounter(&main.TS.Species, fine, math.Max(tsTop, fine)); err != nil {
 		return nil, fmt.Errorf("%s: %w", m.File, err)
 	}
 	return c, nil
@@ -142,9 +149,10 @@ func (n *Network) States(opt ReportGrid) (*StatesResult, error) {
 	return cs.States()
 }
 
-// Micro returns the main channel's RRKM k(E), without tunnelling, and the
-// TST check: canonical k∞(T) beside the thermal average of k(E) on the same
-// grains, which must agree.
+// Micro returns the main channel's RRKM k(E), with Eckart tunnelling if the
+// channel has it, and the TST check: canonical k∞(T), with the channel's
+// tunnelling correction as in Rates, beside the thermal average of k(E) on
+// the same grains, which must agree.
 func (n *Network) Micro(opt ReportGrid) (*MicroResult, error) {
 	cs, err := n.Count(opt)
 	if err != nil {
@@ -220,6 +228,11 @@ type MicroChannel struct {
 	Temperatures   []float64 `json:"temperatures_K"`
 	KInf           []float64 `json:"k_inf"`
 	KInfIntegrated []float64 `json:"k_inf_integrated"`
+	// Tunnelling says how k(E), k_inf and k_inf_integrated include
+	// tunnelling: "none"; "eckart" (k(E) through the Eckart barrier, also
+	// below E0; k_inf = k∞·κ(T)); "wigner" (k(E) without it, since Wigner's
+	// correction is thermal: k_inf and k_inf_integrated carry κ(T)).
+	Tunnelling string `json:"tunnelling"`
 }
 
 // MicroResult is the result of Micro (the JSON of `falloff micro`).
@@ -238,16 +251,24 @@ const microNote = "energies from the reactant zero-point level; k in s-1; k_inf 
 // the TST check.
 func (cs *Counts) Micro() (*MicroResult, error) {
 	n, c := cs.n, cs.c
-	mi := rrkm.RRKM(c.rc, c.tc, c.l, c.grains)
+	mi := rrkm.RRKMTunnel(c.rc, c.tc, c.l, c.grains, c.channel.Eckart())
 	temps := n.Model.Temperatures
+	tunnel := c.channel.Tunnelling
+	if tunnel == "" {
+		tunnel = input.NoTunnelling
+	}
 	mc := MicroChannel{Name: c.name, E0: c.ts.E0, L: c.l, Grain: c.grains.Width,
-		Energies: make([]float64, c.grains.N), K: mi.K, Temperatures: temps}
+		Energies: make([]float64, c.grains.N), K: mi.K, Temperatures: temps, Tunnelling: string(tunnel)}
 	for i := range mc.Energies {
 		mc.Energies[i] = c.grains.Energy(i)
 	}
 	for _, t := range temps {
-		mc.KInf = append(mc.KInf, rrkm.KInf(&c.reactant.Species, &c.ts.Species, c.l, t))
-		mc.KInfIntegrated = append(mc.KInfIntegrated, mi.ThermalK(t))
+		kw := 1.0
+		if tunnel == input.Wigner {
+			kw = rrkm.Wigner(c.ts.Imaginary, t)
+		}
+		mc.KInf = append(mc.KInf, c.channel.KInf(&c.reactant.Species, t))
+		mc.KInfIntegrated = append(mc.KInfIntegrated, mi.ThermalK(t)*kw)
 	}
 	for _, xs := range [][]float64{mc.K, mc.KInf, mc.KInfIntegrated} {
 		if err := finite("k", xs...); err != nil {
