@@ -60,6 +60,13 @@ func runCompareCmd(args []string, s streams) error {
 	if err != nil {
 		return err
 	}
+	if o.plot != "" {
+		// Check the target before any work: only a regular file is written.
+		var check export.FileSet
+		if err := check.ReserveFile(o.plot); err != nil {
+			return err
+		}
+	}
 	opt := job.CompareOptions{Alpha300: o.alphas, Jobs: o.jobs}
 	bar := newProgress(s, "master equation", job.CompareModelCount(opt)*len(n.Model.Temperatures), o.quiet)
 	opt.Progress = bar.step

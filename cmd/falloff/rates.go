@@ -1,6 +1,7 @@
 package main
 
 import (
+	"crypto/sha256"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -83,6 +84,9 @@ func (o *ratesOptions) job(progress func()) job.Options {
 type ratesJSON struct {
 	*job.RatesResult
 	Files []string `json:"files_written,omitempty"`
+	// Checksums (in summary.json) name every other file of the set with
+	// its SHA-256, so a reader can tell the set is whole and one run's.
+	Checksums map[string]string `json:"file_checksums,omitempty"`
 }
 
 func runRatesCmd(args []string, s streams) error {
@@ -97,35 +101,49 @@ func runRatesCmd(args []string, s streams) error {
 	if err != nil {
 		return err
 	}
+	// The output folders are checked and locked before any work, so that
+	// an unwritable or busy folder costs nothing.
+	var set export.FileSet
+	defer set.Release()
+	for _, dir := range []string{o.out, o.plots} {
+		if dir == "" {
+			continue
+		}
+		if err := set.ReserveFolder(dir); err != nil {
+			return err
+		}
+	}
 	bar := newProgress(s, "master equation", len(n.Model.Temperatures), o.quiet)
 	res, err := n.Rates(s.ctx, o.job(bar.step))
 	bar.finish()
 	if err != nil {
 		return err
 	}
-	files, err := writeRatesFiles(o, n, res, s)
-	if err != nil {
-		return err
-	}
+	files, writeErr := writeRatesFiles(&set, o, n, res, s)
 	if !o.quiet && !o.json && !o.csv {
 		for _, w := range res.NewWarnings() {
 			fmt.Fprintln(s.err, "warning:", w)
 		}
 	}
+	// The report is printed even when writing failed: the work is not lost.
 	switch {
 	case o.json:
-		return writeJSON(s.out, ratesJSON{res, files})
+		err = writeJSON(s.out, ratesJSON{RatesResult: res, Files: files})
 	case o.csv:
-		return writeGridCSV(s, res, o.disp)
+		err = writeGridCSV(s, res, o.disp)
+	default:
+		err = printRates(s, n.Model.Title, res, files, o.disp)
 	}
-	return printRates(s, n.Model.Title, res, files, o.disp)
+	if writeErr != nil {
+		return writeErr
+	}
+	return err
 }
 
 // writeRatesFiles renders the mechanism files, summary.json and the plots
 // asked for and writes them together (export.FileSet); it returns the
 // paths written.
-func writeRatesFiles(o ratesOptions, n *job.Network, res *job.RatesResult, s streams) ([]string, error) {
-	var set export.FileSet
+func writeRatesFiles(set *export.FileSet, o ratesOptions, n *job.Network, res *job.RatesResult, s streams) ([]string, error) {
 	if o.out != "" {
 		files, err := res.MechanismFiles(job.FileOptions{Units: o.units, PressureUnit: o.disp.pressureUnit, Skeleton: o.skeleton})
 		if err != nil {
@@ -136,13 +154,17 @@ func writeRatesFiles(o ratesOptions, n *job.Network, res *job.RatesResult, s str
 		}
 	}
 	if o.plots != "" {
-		if err := addRatePlots(&set, o.plots, n, res, o.disp); err != nil {
+		if err := addRatePlots(set, o.plots, n, res, o.disp); err != nil {
 			return nil, err
 		}
 	}
 	if o.out != "" {
 		summary := filepath.Join(o.out, "summary.json")
-		b, err := json.MarshalIndent(ratesJSON{res, append(set.Paths(), summary)}, "", "  ")
+		sums := map[string]string{}
+		for i, p := range set.Paths() {
+			sums[p] = fmt.Sprintf("sha256:%x", sha256.Sum256(set.Data(i)))
+		}
+		b, err := json.MarshalIndent(ratesJSON{RatesResult: res, Files: append(set.Paths(), summary), Checksums: sums}, "", "  ")
 		if err != nil {
 			return nil, &job.NumericalError{Err: err}
 		}

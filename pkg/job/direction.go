@@ -89,5 +89,18 @@ func (n *Network) recombine(out *RatesResult) error {
 		out.K0[i] /= kc
 	}
 	out.K = k
+	if h := out.HeldOut; h != nil {
+		for i, t := range h.Temperatures {
+			kc := rrkm.EquilibriumConstant(&r.Species, prods, m.Reaction.ReactionEnergy, t)
+			if !(kc > 0) || math.IsInf(kc, 0) {
+				return numericalf("K_c(%g K) = %v: not a finite positive number (hint: check reaction-energy)", t, kc)
+			}
+			row := make([]float64, len(h.K[i]))
+			for j, x := range h.K[i] {
+				row[j] = x / kc
+			}
+			h.K[i] = row
+		}
+	}
 	return nil
 }

@@ -74,6 +74,11 @@ func New(m *input.Model) (*Network, error) {
 	if err := n.checkCountSize(); err != nil {
 		return nil, err
 	}
+	if n.Main().TS != nil {
+		if _, _, err := n.reportGrid(ReportGrid{}); err != nil {
+			return nil, err
+		}
+	}
 	if len(m.Pressures) > 0 {
 		if err := n.checkMatrixSize(m.EnergyGrid.MEGrain, m.EnergyGrid.Ceiling, Setting{}, Setting{}, false); err != nil {
 			return nil, err

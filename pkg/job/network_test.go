@@ -130,3 +130,20 @@ func TestMicroWithTunnelling(t *testing.T) {
 		}
 	}
 }
+
+// A reporting grain so coarse that fewer than ten grains lie between E0 and
+// the ceiling is refused by New, for every verb alike, naming the field
+// (it crashed states once: its top grain reached beyond the transition
+// state's count).
+func TestCoarseReportGrainRefused(t *testing.T) {
+	m, err := input.ReadFile("../../testdata/catalogue-base.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.EnergyGrid.Grain = 1e5
+	_, err = job.New(m)
+	var fe *input.FieldError
+	if !errors.As(err, &fe) || fe.Path != "energy-grid.grain" {
+		t.Errorf("New: %v, want a FieldError at energy-grid.grain", err)
+	}
+}

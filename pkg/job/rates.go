@@ -35,6 +35,10 @@ type Options struct {
 	// Progress, if set, is called (from worker goroutines) after each
 	// temperature of the master equation.
 	Progress func()
+	// SkipHeldOut skips the held-out points: the master equation solved
+	// between the grid's temperatures and pressures, on which every fit's
+	// error is measured off the fitted points.
+	SkipHeldOut bool
 }
 
 // RatesResult is the whole result of Rates: the k(T,P) grid and its limits
@@ -80,9 +84,22 @@ type RatesResult struct {
 	// Entries are the mechanism entries: the reaction, or one per channel
 	// with competing channels.
 	Entries []Entry `json:"-"`
+	// HeldOut is k computed by the master equation between the grid
+	// points (nil with Options.SkipHeldOut): the fits are measured on it.
+	HeldOut *Grid `json:"held_out,omitempty"`
 
 	model      *input.Model
 	fileWarned int // how many of Warnings are the input file's
+}
+
+// Grid is k on a grid of temperatures and pressures, in the units of the
+// result it belongs to; Channels holds each channel's share with competing
+// channels.
+type Grid struct {
+	Temperatures []float64     `json:"temperatures_K"`
+	Pressures    []float64     `json:"pressures_Pa"`
+	K            [][]float64   `json:"k"`
+	Channels     [][][]float64 `json:"channels_k,omitempty"`
 }
 
 // ChannelRate is one channel's share of the grid (competing channels).
@@ -180,6 +197,11 @@ func (n *Network) Rates(ctx context.Context, opt Options) (*RatesResult, error) 
 	out, err := n.forward(res)
 	if err != nil {
 		return nil, err
+	}
+	if !opt.SkipHeldOut {
+		if out.HeldOut, err = n.heldOut(ctx, well, grain, ceiling, opt); err != nil {
+			return nil, err
+		}
 	}
 	if dir == Recombination {
 		if err := n.recombine(out); err != nil {
@@ -387,4 +409,47 @@ func (n *Network) lowPressureWarning(out *RatesResult) string {
 	}
 	return fmt.Sprintf("%s: at %s K the lowest pressure, %s Pa, is far from the low-pressure limit: k/(k0[M]) = %.2g at %s K, so k0 is an extrapolation beyond the grid (hint: %s)",
 		n.Model.File, strings.Join(at, ", "), num(out.Pressures[0]), worst, num(worstT), why)
+}
+
+// heldOut solves the master equation at the midpoints between the grid's
+// temperatures (in 1/T) and pressures (in log P), where no fit has seen k:
+// (nT − 1) × (nP − 1) points, with the grid's grain and ceiling rules and
+// without the convergence check. A grid with one temperature or pressure
+// has no midpoints in it: nil.
+func (n *Network) heldOut(ctx context.Context, well collision.Channel, grain, ceiling float64, opt Options) (*Grid, error) {
+	m := n.Model
+	ts, ps := m.Temperatures, m.Pressures
+	if len(ts) < 2 || len(ps) < 2 {
+		return nil, nil
+	}
+	g := &Grid{}
+	for i := 1; i < len(ts); i++ {
+		g.Temperatures = append(g.Temperatures, 2/(1/ts[i-1]+1/ts[i]))
+	}
+	for j := 1; j < len(ps); j++ {
+		g.Pressures = append(g.Pressures, math.Sqrt(ps[j-1]*ps[j]))
+	}
+	res, err := collision.RunContext(ctx, well, n.Collider, n.Transfer, g.Temperatures, g.Pressures,
+		collision.Options{Grain: grain, Ceiling: ceiling, Jobs: opt.Jobs, SkipConvergence: true})
+	switch {
+	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
+		return nil, err
+	case err != nil:
+		return nil, &NumericalError{fmt.Errorf("%s: master equation between the grid points: %w", m.File, err)}
+	}
+	g.K = res.K()
+	if len(n.Channels) > 1 {
+		g.Channels = make([][][]float64, len(n.Channels))
+		for c := range n.Channels {
+			for _, row := range res.Rows {
+				g.Channels[c] = append(g.Channels[c], row.KC[c])
+			}
+		}
+	}
+	for _, xs := range g.K {
+		if err := finite("k between the grid points", xs...); err != nil {
+			return nil, err
+		}
+	}
+	return g, nil
 }

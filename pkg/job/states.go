@@ -18,6 +18,10 @@ type ReportGrid struct {
 	Grain, Ceiling Setting
 }
 
+// minReportGrains is the fewest grains between the threshold and the
+// ceiling that States and Micro accept.
+const minReportGrains = 10
+
 // counted is the main channel's reactant and transition state with their
 // state counts on the reporting grains.
 type counted struct {
@@ -29,22 +33,20 @@ type counted struct {
 	rc, tc       *rrkm.Counter
 }
 
-// countMain counts the states of the reactant and the main channel's
-// transition state up to the reporting ceiling: the one given, or
-// AutoCeiling at the highest temperature.
-func (n *Network) countMain(opt ReportGrid) (*counted, error) {
+// reportGrid returns the grain and ceiling in cm⁻¹ of the States and
+// Micro reports with opt over the file's energy-grid.grain and .ceiling
+// (the ceiling AutoCeiling at the highest temperature unless given), or
+// the error that refuses them. New applies it with the file's settings.
+func (n *Network) reportGrid(opt ReportGrid) (grain, ceiling float64, err error) {
 	m := n.Model
 	main := n.Main()
-	if main.TS == nil {
-		return nil, n.errBarrierless()
-	}
 	fine := m.EnergyGrid.Fine
-	grain, ceiling := opt.Grain.or(m.EnergyGrid.Grain), opt.Ceiling.or(m.EnergyGrid.Ceiling)
+	grain, ceiling = opt.Grain.or(m.EnergyGrid.Grain), opt.Ceiling.or(m.EnergyGrid.Ceiling)
 	if !(grain > 0) {
-		return nil, opt.Grain.optionError("", "the grain must be positive")
+		return 0, 0, opt.Grain.optionError("", "the grain must be positive")
 	}
 	if grain < fine {
-		return nil, opt.Grain.optionError("", "below the fine counting grain %g cm-1", fine)
+		return 0, 0, opt.Grain.optionError("", "below the fine counting grain %g cm-1", fine)
 	}
 	if ceiling == 0 {
 		ts := m.Temperatures
@@ -54,22 +56,47 @@ func (n *Network) countMain(opt ReportGrid) (*counted, error) {
 		err := fmt.Errorf("ceiling %g cm-1 is not above the threshold %g cm-1 by a grain", ceiling, main.E0)
 		switch {
 		case opt.Ceiling.given():
-			return nil, &OptionError{Option: opt.Ceiling.Option, Text: opt.Ceiling.Text, Err: err}
+			return 0, 0, &OptionError{Option: opt.Ceiling.Option, Text: opt.Ceiling.Text, Err: err}
 		case opt.Grain.given():
-			return nil, &OptionError{Option: opt.Grain.Option, Text: opt.Grain.Text, Err: err}
+			return 0, 0, &OptionError{Option: opt.Grain.Option, Text: opt.Grain.Text, Err: err}
 		}
-		return nil, m.FieldError("energy-grid.ceiling", err, "raise the ceiling, or delete it to have it chosen automatically")
+		return 0, 0, m.FieldError("energy-grid.ceiling", err, "raise the ceiling, or delete it to have it chosen automatically")
+	}
+	// A grain so coarse that few grains lie above E0 says nothing of k(E),
+	// and its top grain would reach beyond the transition state's count.
+	if most := (ceiling - main.E0) / minReportGrains; grain > most {
+		hint := fmt.Sprintf("a grain of at most %s cm-1", num(most))
+		err := fmt.Errorf("too coarse: fewer than %d grains between E0 = %s cm-1 and the ceiling %s cm-1", minReportGrains, num(main.E0), num(ceiling))
+		if opt.Grain.given() {
+			return 0, 0, &OptionError{Option: opt.Grain.Option, Text: opt.Grain.Text, Err: err, Hint: hint}
+		}
+		return 0, 0, m.FieldError("energy-grid.grain", err, hint)
 	}
 	if bins := fineBins(fine, ceiling); opt.Ceiling.given() && bins > rrkm.MaxFineBins {
 		limit := float64(rrkm.MaxFineBins)
-		return nil, opt.Ceiling.optionError(fmt.Sprintf("a ceiling of at most %s cm-1", num(math.Floor((limit-2)*fine))),
+		return 0, 0, opt.Ceiling.optionError(fmt.Sprintf("a ceiling of at most %s cm-1", num(math.Floor((limit-2)*fine))),
 			"the state count would need %s bins of %s cm-1, %s of memory; the limit is %s",
 			num(bins), num(fine), byteSize(bins*bytesPerEntry), byteSize(limit*bytesPerEntry))
+	}
+	return grain, ceiling, nil
+}
+
+// countMain counts the states of the reactant and the main channel's
+// transition state up to the reporting ceiling (reportGrid).
+func (n *Network) countMain(opt ReportGrid) (*counted, error) {
+	m := n.Model
+	main := n.Main()
+	if main.TS == nil {
+		return nil, n.errBarrierless()
+	}
+	fine := m.EnergyGrid.Fine
+	grain, ceiling, err := n.reportGrid(opt)
+	if err != nil {
+		return nil, err
 	}
 	r := n.reactant()
 	c := &counted{name: r.Name + " -> " + main.TS.Name, channel: main, reactant: r, ts: main.TS, l: main.L, grains: rrkm.GrainsTo(grain, ceiling)}
 	top := c.grains.Top()
-	var err error
 	if c.rc, err = rrkm.NewCounter(&r.Species, fine, top); err != nil {
 		return nil, fmt.Errorf("%s: %w", m.File, err)
 	}
