@@ -90,3 +90,73 @@ func TestInterruptedRun(t *testing.T) {
 		t.Errorf("output folder created: %v", err)
 	}
 }
+
+// bigMolecule writes an input whose state count takes seconds: 60 000
+// modes (an invented, very large molecule) counted on the 1 cm⁻¹ grain.
+func bigMolecule(t *testing.T) string {
+	t.Helper()
+	modes := func(n int) string {
+		v := make([]string, n)
+		for i := range v {
+			v[i] = "3000"
+		}
+		return strings.Join(v, ", ")
+	}
+	text := `title: A very large invented molecule (test input, invented)
+molecules:
+  big:
+    mass: 400000 amu
+    vibrations: {unit: cm-1, values: [` + modes(60000) + `]}
+    lennard-jones: {sigma: 20 angstrom, epsilon: 2000 K}
+  big-TS:
+    energy: 42 kcal/mol
+    imaginary-frequency: 600 cm-1
+    vibrations: {unit: cm-1, values: [` + modes(59999) + `]}
+reaction: {reactant: big, via: big-TS, products: [a, b]}
+bath: {gas: Ar}
+energy-transfer: {model: strong-collider}
+grid:
+  temperatures: {unit: K, values: [300, 400]}
+  pressures: {unit: bar, values: [0.1, 10]}
+`
+	path := filepath.Join(t.TempDir(), "big.yaml")
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// SIGINT while states are counted stops the run too (it once ran on to the
+// end of the count): exit 130 and the one line, without waiting for the
+// count to finish.
+func TestInterruptWhileCounting(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a child process for seconds")
+	}
+	in := bigMolecule(t)
+	cmd := exec.Command(os.Args[0], "rates", "-q", "--skip-check", in)
+	cmd.Env = append(os.Environ(), "FALLOFF_RUN_MAIN=1")
+	var stderr bytes.Buffer
+	cmd.Stderr, cmd.Stdout = &stderr, new(bytes.Buffer)
+	start := time.Now()
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(700 * time.Millisecond) // past parsing, into the count
+	sent := time.Now()
+	if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
+		t.Fatal(err)
+	}
+	err := cmd.Wait()
+	var ee *exec.ExitError
+	if !errors.As(err, &ee) || ee.ExitCode() != exitInterrupted {
+		t.Fatalf("exit: %v; want code %d (stderr %q)", err, exitInterrupted, stderr.String())
+	}
+	if got := stderr.String(); got != "falloff: interrupted: no file written\n" {
+		t.Errorf("stderr %q", got)
+	}
+	t.Logf("stopped %v after the signal, %v after the start", time.Since(sent), time.Since(start))
+	if d := time.Since(sent); d > 5*time.Second {
+		t.Errorf("took %v to stop", d)
+	}
+}

@@ -69,7 +69,7 @@ func (n *Network) Compare(ctx context.Context, opt CompareOptions) (*CompareResu
 		}
 		alphas = []float64{0.5 * a, a, 1.5 * a}
 	}
-	well, err := n.masterEquation(m.EnergyGrid.Ceiling)
+	well, err := n.masterEquation(ctx, m.EnergyGrid.Ceiling)
 	if err != nil {
 		return nil, err
 	}

@@ -1,6 +1,7 @@
 package job
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -185,13 +186,13 @@ func (n *Network) KInf(tK float64) float64 {
 // state up to the highest energy the master equation can reach with the
 // ceiling in cm⁻¹ (0: automatic; CountTop) and returns the well with its
 // channels for collision.Run.
-func (n *Network) masterEquation(ceiling float64) (collision.Channel, error) {
+func (n *Network) masterEquation(ctx context.Context, ceiling float64) (collision.Channel, error) {
 	m := n.Model
 	fine := m.EnergyGrid.Fine
 	top := n.CountTop(ceiling)
-	rc, err := rrkm.NewCounter(&n.reactant().Species, fine, top)
+	rc, err := rrkm.NewCounterContext(ctx, &n.reactant().Species, fine, top)
 	if err != nil {
-		return collision.Channel{}, fmt.Errorf("%s: %w", m.File, err)
+		return collision.Channel{}, countError(m.File, err)
 	}
 	var chs []collision.Channel
 	for _, c := range n.Channels {
@@ -208,9 +209,9 @@ func (n *Network) masterEquation(ceiling float64) (collision.Channel, error) {
 		if e := c.Eckart(); e != nil {
 			tsTop = top - e.Emin()
 		}
-		tc, err := rrkm.NewCounter(&c.TS.Species, fine, math.Max(tsTop, fine))
+		tc, err := rrkm.NewCounterContext(ctx, &c.TS.Species, fine, math.Max(tsTop, fine))
 		if err != nil {
-			return collision.Channel{}, fmt.Errorf("%s: %w", m.File, err)
+			return collision.Channel{}, countError(m.File, err)
 		}
 		cc.TS = tc
 		l, imag := c.L, c.TS.Imaginary
@@ -236,6 +237,15 @@ func (n *Network) masterEquation(ceiling float64) (collision.Channel, error) {
 	well.Reactant = rc
 	well.Competing = chs[1:]
 	return well, nil
+}
+
+// countError wraps a state-count error with the file's name; a cancelled
+// context passes unchanged.
+func countError(file string, err error) error {
+	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+		return err
+	}
+	return fmt.Errorf("%s: %w", file, err)
 }
 
 // needPressures is the error of a calculation that needs a pressure grid on

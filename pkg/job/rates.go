@@ -180,7 +180,7 @@ func (n *Network) Rates(ctx context.Context, opt Options) (*RatesResult, error) 
 	if err := n.checkMatrixSize(grain, ceiling, opt.Grain, opt.Ceiling, !opt.SkipCheck); err != nil {
 		return nil, err // before counting any states
 	}
-	well, err := n.masterEquation(ceiling)
+	well, err := n.masterEquation(ctx, ceiling)
 	if err != nil {
 		return nil, err
 	}

@@ -1,6 +1,7 @@
 package rrkm
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -36,6 +37,14 @@ type Counter struct {
 // ceiling) and the electronic levels convolved in as quantized levels (Stein
 // & Rabinovitch, J. Chem. Phys. 58, 2438, 1973).
 func NewCounter(s *Species, fine, ceiling float64) (*Counter, error) {
+	return NewCounterContext(context.Background(), s, fine, ceiling)
+}
+
+// NewCounterContext is NewCounter that stops, returning ctx.Err(), when ctx
+// is cancelled: it checks between oscillators and between levels, each one
+// pass over the fine-grain array (at most MaxFineBins entries, well under a
+// second).
+func NewCounterContext(ctx context.Context, s *Species, fine, ceiling float64) (*Counter, error) {
 	if err := s.Validate(); err != nil {
 		return nil, err
 	}
@@ -55,17 +64,28 @@ func NewCounter(s *Species, fine, ceiling float64) (*Counter, error) {
 	comb := make([]float64, n)
 	comb[0] = 1
 	for _, v := range s.Vibrations {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		addOscillator(comb, v/fine)
 	}
 	for i, h := range s.Hindered {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		// Levels past the last bin, (n−1)·δ, so that every bin is complete.
 		levels, err := h.Levels(float64(n+1) * fine)
 		if err != nil {
 			return nil, fmt.Errorf("rrkm: species %q: hindered[%d]: %w", s.Name, i, err)
 		}
-		comb = convolveLevels(comb, levels, fine)
+		if comb, err = convolveLevels(ctx, comb, levels, fine); err != nil {
+			return nil, err
+		}
 	}
-	comb = convolveLevels(comb, s.levels(), fine)
+	comb, err := convolveLevels(ctx, comb, s.levels(), fine)
+	if err != nil {
+		return nil, err
+	}
 	c := &Counter{species: s, fine: fine, comb: comb, ceiling: ceiling}
 	c.cum0 = make([]float64, n+1)
 	c.cum1 = make([]float64, n+1)
@@ -114,12 +134,15 @@ func addOscillator(c []float64, r float64) {
 
 // convolveLevels convolves the comb with a list of quantized levels (energies
 // in cm⁻¹ above the lowest, with degeneracies), split like addOscillator.
-func convolveLevels(c []float64, levels []Level, fine float64) []float64 {
+func convolveLevels(ctx context.Context, c []float64, levels []Level, fine float64) ([]float64, error) {
 	if len(levels) == 1 && levels[0].Energy == 0 && levels[0].Degeneracy == 1 {
-		return c
+		return c, nil
 	}
 	out := make([]float64, len(c))
 	for _, l := range levels {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		n, f := split(l.Energy / fine)
 		for j := len(c) - 1; j >= n; j-- {
 			x := (1 - f) * c[j-n]
@@ -129,7 +152,7 @@ func convolveLevels(c []float64, levels []Level, fine float64) []float64 {
 			out[j] += l.Degeneracy * x
 		}
 	}
-	return out
+	return out, nil
 }
 
 // Fine returns the fine grain δ in cm⁻¹.

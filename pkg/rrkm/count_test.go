@@ -1,7 +1,10 @@
 package rrkm
 
 import (
+	"context"
+	"errors"
 	"math"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -179,5 +182,48 @@ func TestBoltzmannCounts(t *testing.T) {
 		if want := s.VibrationalQ(tK); !scalar.EqualWithinRel(q, want, 1e-9) {
 			t.Errorf("grain %v: Σ B e^(−E/kT) = %.12g, Q = %.12g", w, q, want)
 		}
+	}
+}
+
+// stopAfter is a context whose Err turns to context.Canceled after n calls:
+// it lets a test cancel a count part-way without timing anything.
+type stopAfter struct {
+	context.Context
+	n *int
+}
+
+func (c stopAfter) Err() error {
+	if *c.n <= 0 {
+		return context.Canceled
+	}
+	*c.n--
+	return nil
+}
+
+// A cancelled count stops at the next oscillator or level it would add,
+// returning the context's error, and a count that is never cancelled gives
+// exactly NewCounter's states (common practice, no source: cancellation
+// must not change a result).
+func TestNewCounterContextStops(t *testing.T) {
+	s := &Species{Name: "x", Vibrations: []float64{1000, 1500, 2000, 2500, 3000}, Electronic: []Level{{0, 2}, {800, 1}}}
+	for _, checks := range []int{0, 3} {
+		n := checks
+		if _, err := NewCounterContext(stopAfter{context.Background(), &n}, s, 1, 20000); !errors.Is(err, context.Canceled) {
+			t.Errorf("cancelled after %d checks: %v", checks, err)
+		}
+		if n != 0 {
+			t.Errorf("cancelled after %d checks: %d checks left unused", checks, n)
+		}
+	}
+	a, err := NewCounter(s, 1, 20000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := NewCounterContext(context.Background(), s, 1, 20000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(a.Comb(), b.Comb()) {
+		t.Error("the context changed the count")
 	}
 }
