@@ -1,13 +1,17 @@
 package main
 
 import (
+	"context"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
 	"syscall"
 	"testing"
 
+	"github.com/falloff-kinetics/falloff/pkg/collision"
 	"github.com/falloff-kinetics/falloff/pkg/export"
+	"github.com/falloff-kinetics/falloff/pkg/job"
 )
 
 // Output safety of rates --out and compare --plot (docs/reliability.md):
@@ -95,5 +99,26 @@ func TestOutputSafety(t *testing.T) {
 	}
 	if _, err := os.Stat(filepath.Join(dir, "reactions-troe.yaml")); err != nil {
 		t.Error(err)
+	}
+}
+
+// panicWriter stands for any defect that panics inside a verb.
+type panicWriter struct{}
+
+func (panicWriter) Write([]byte) (int, error) { panic("test defect") }
+
+// A panic inside a verb, or an internal error from a worker goroutine,
+// ends with one line and exit code 4, not Go's crash status 2, which is
+// the usage code.
+func TestInternalErrorExitCode(t *testing.T) {
+	var errb strings.Builder
+	code := runContext(context.Background(), []string{"example"}, strings.NewReader(""), panicWriter{}, &errb)
+	if code != exitInternal || !strings.HasPrefix(errb.String(), "falloff: internal error: test defect") || strings.Count(errb.String(), "\n") != 1 {
+		t.Errorf("panic: exit %d, stderr %q", code, errb.String())
+	}
+	errb.Reset()
+	err := fmt.Errorf("x.yaml: master equation: %w", fmt.Errorf("%w at T = 300 K: boom", collision.ErrInternal))
+	if code := exitCode(&job.NumericalError{Err: err}, &errb); code != exitInternal {
+		t.Errorf("worker panic: exit %d, stderr %q", code, errb.String())
 	}
 }

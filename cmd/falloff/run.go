@@ -13,6 +13,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"github.com/falloff-kinetics/falloff/internal/demo"
+	"github.com/falloff-kinetics/falloff/pkg/collision"
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/job"
@@ -25,6 +26,13 @@ const (
 	exitUsage     = 2 // bad command line
 	exitNumerical = 3 // a computation failed or produced a non-finite number
 )
+
+// internalWord starts the message of a panic caught by runContext.
+const internalWord = "internal error"
+
+// exitInternal is the exit code of a defect of the program (a panic turned
+// into one line): distinct from the usage code 2 that Go gives a crash.
+const exitInternal = 4
 
 // exitInterrupted is the exit code after SIGINT or SIGTERM (128 + SIGINT,
 // as shells report a program stopped by Ctrl-C).
@@ -92,8 +100,15 @@ func writesFiles(name string) bool {
 	return false
 }
 
-// runContext is run under a context of the caller's.
-func runContext(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+// runContext is run under a context of the caller's. A panic is reported
+// on one line as an internal error, with its own exit code.
+func runContext(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
+	defer func() {
+		if p := recover(); p != nil {
+			fmt.Fprintf(stderr, "falloff: %s: %v (hint: this is a defect of falloff; please report it with the input file and the command)\n", internalWord, p)
+			code = exitInternal
+		}
+	}()
 	s := streams{in: stdin, out: stdout, err: stderr, ctx: ctx}
 	if len(args) == 0 || args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
 		if len(args) > 1 {
@@ -129,6 +144,9 @@ func exitCode(err error, stderr io.Writer) int {
 		return exitInterrupted
 	}
 	fmt.Fprintln(stderr, "falloff:", strings.ReplaceAll(err.Error(), "\n", " "))
+	if errors.Is(err, collision.ErrInternal) {
+		return exitInternal
+	}
 	var ue *usageError
 	var oe *job.OptionError
 	var ne *job.NumericalError
@@ -155,7 +173,8 @@ Commands:
 With no FILE, states, micro, rates and compare run the built-in demo (an invented molecule).
 Run 'falloff <command> --help' for its flags and a worked example.
 
-Exit codes: 0 ok, 1 bad input, 2 usage, 3 numerical failure, 130 interrupted
+Exit codes: 0 ok, 1 bad input, 2 usage, 3 numerical failure, 4 internal error
+(a defect of falloff: please report it), 130 interrupted
 (Ctrl-C or SIGTERM: no file is left part-written; the message lists any written).
 
 Computed rate coefficients are model estimates. Validate them against
@@ -181,8 +200,7 @@ func newFlags(name, usage, example string, s streams) *pflag.FlagSet {
 func parseVerb(fs *pflag.FlagSet, args []string, validate func([]string) error) ([]string, error) {
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
-			fs.Usage()
-			return nil, err
+			return nil, err // pflag has printed the usage (fs.Usage)
 		}
 		return nil, usagef("%s: %v (hint: falloff %s --help)", fs.Name(), err, fs.Name())
 	}

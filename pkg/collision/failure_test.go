@@ -157,3 +157,15 @@ func TestRunCancelled(t *testing.T) {
 		t.Errorf("already cancelled: err = %v", err)
 	}
 }
+
+// A panic in a worker goroutine (a defect, here planted in a channel's
+// k(E)) comes back from Run as an error wrapping ErrInternal that names the
+// temperature, instead of ending the process.
+func TestWorkerPanicIsAnError(t *testing.T) {
+	ch, _ := testChannel(t, 60000)
+	ch.Micro = func(rrkm.Grains, float64) (*rrkm.Micro, error) { panic("planted") }
+	_, err := Run(ch, Collider{Fixed: 3e-10}, Transfer{Strong: true}, []float64{800}, []float64{1e5}, Options{SkipConvergence: true})
+	if !errors.Is(err, ErrInternal) || !strings.Contains(err.Error(), "800 K") || !strings.Contains(err.Error(), "planted") {
+		t.Errorf("Run: %v, want ErrInternal at 800 K", err)
+	}
+}

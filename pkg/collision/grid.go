@@ -258,7 +258,7 @@ func RunContext(ctx context.Context, ch Channel, col Collider, tr Transfer, temp
 				if errs[i] = ctx.Err(); errs[i] != nil {
 					continue
 				}
-				res.Rows[i], errs[i] = solveTemperature(ctx, ch, col, tr, temps[i], pressures, opt.Grain, opt.Ceiling, true)
+				res.Rows[i], errs[i] = solveGuarded(ctx, ch, col, tr, temps[i], pressures, opt.Grain, opt.Ceiling)
 				if opt.Progress != nil {
 					opt.Progress()
 				}
@@ -284,6 +284,22 @@ func RunContext(ctx context.Context, ch Channel, col Collider, tr Transfer, temp
 		}
 	}
 	return res, nil
+}
+
+// ErrInternal marks a defect of the program found at run time (a panic in
+// a worker), reported as an error rather than a crash.
+var ErrInternal = errors.New("collision: internal error")
+
+// solveGuarded is solveTemperature with limits, turning a panic in the
+// worker goroutine (which would end the process with no message) into an
+// error wrapping ErrInternal that names the temperature.
+func solveGuarded(ctx context.Context, ch Channel, col Collider, tr Transfer, tK float64, pressures []float64, grain, ceiling float64) (r TemperatureResult, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = fmt.Errorf("%w at T = %g K: %v", ErrInternal, tK, p)
+		}
+	}()
+	return solveTemperature(ctx, ch, col, tr, tK, pressures, grain, ceiling, true)
 }
 
 // convergence re-solves the corner points with half the grain and with the

@@ -61,6 +61,7 @@ func (p *parser) model(raw *rawFile) (*Model, error) {
 	if err := p.crossCheck(m, raw); err != nil {
 		return nil, err
 	}
+	p.warnRenamed()
 	p.warnOdd(m)
 	return m, nil
 }
@@ -170,19 +171,22 @@ func (p *parser) warnOdd(m *Model) {
 	rp, tp := "molecules."+reactant.Name, "molecules."+ts.Name
 	// With N atoms a reactant has 3N−6 real modes (3N−5 if linear) and a
 	// transition state 3N−7 (3N−6 if linear): one fewer when both are
-	// non-linear.
+	// non-linear. A torsion is one of those modes whether it is listed
+	// among the vibrations or as a hindered rotor (torsions:), and a
+	// reactant's torsion is often a vibration of the transition state, so
+	// both count.
 	linear := func(mol *Molecule) int {
 		if len(mol.Rotors) == 1 && mol.Rotors[0].Dim == 2 {
 			return 1
 		}
 		return 0
 	}
-	nr, nt := len(reactant.Vibrations), len(ts.Vibrations)
+	nr, nt := modeCount(reactant), modeCount(ts)
 	switch want := nr - 1 - linear(reactant) + linear(ts); {
 	case nt == nr && want != nr:
-		p.warn(tp+".vibrations", "%d real modes, the same number as the reactant %s: a transition state usually has one fewer (3N−7 vs 3N−6); is the imaginary mode listed among the vibrations?", nt, reactant.Name)
+		p.warn(tp+".vibrations", "%s, the same number as the reactant %s: a transition state usually has one fewer (3N−7 vs 3N−6); is the imaginary mode listed among the vibrations?", modeText(ts), reactant.Name)
 	case nt != want:
-		p.warn(tp+".vibrations", "%d real mode%s where the reactant %s's %d imply %d for a transition state (3N−7 vs 3N−6 when both are non-linear)", nt, plural(nt), reactant.Name, nr, want)
+		p.warn(tp+".vibrations", "%s where the reactant %s's %s imply %d for a transition state (3N−7 vs 3N−6 when both are non-linear)", modeText(ts), reactant.Name, modeText(reactant), want)
 	}
 	if ts.Mass > 0 && math.Abs(ts.Mass-reactant.Mass) > 1e-3*reactant.Mass {
 		p.warn(tp+".mass", "%.6g amu differs from the reactant's %.6g amu: a unimolecular transition state has the reactant's atoms", ts.Mass, reactant.Mass)
@@ -203,4 +207,20 @@ func (p *parser) warnOdd(m *Model) {
 			p.warn("grid.temperatures", "highest temperature %.4g K is above %g K: harmonic, rigid-rotor states are unreliable there", t[len(t)-1], highTempK)
 		}
 	}
+}
+
+// modeCount is the number of real modes of mol: its vibrations and its
+// torsions (hindered rotors).
+func modeCount(mol *Molecule) int { return len(mol.Vibrations) + len(mol.Hindered) }
+
+// modeText says how many real modes mol has, and of which kinds when it
+// has torsions: "17 real modes", "18 real modes (17 vibrations, 1 torsion)".
+func modeText(mol *Molecule) string {
+	n := modeCount(mol)
+	s := fmt.Sprintf("%d real mode%s", n, plural(n))
+	if k := len(mol.Hindered); k > 0 {
+		v := len(mol.Vibrations)
+		s += fmt.Sprintf(" (%d vibration%s, %d torsion%s)", v, plural(v), k, plural(k))
+	}
+	return s
 }

@@ -14,7 +14,9 @@
 // (molecules.ring.vibrations.values[3]), the value as written and a hint;
 // an unknown or misspelt key is such an error too. Input that is accepted but
 // physically odd (a transition state without an imaginary frequency, a barrier
-// above 150 kcal/mol, ...) is reported in Model.Warnings instead.
+// above 150 kcal/mol, ...) is reported in Model.Warnings instead, as is a
+// key written under the name it had before a rename (hindered-rotors and its
+// keys, now torsions), which is read for one release more.
 //
 // The keys, their units and defaults are described in docs/input.md.
 package input

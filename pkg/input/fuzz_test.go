@@ -44,6 +44,8 @@ var fuzzSeeds = []struct{ old, new string }{
 	{"    optical-isomers: 1\n", "    optical-isomers: 1\n    electronic: [{energy: 0 cm-1, degeneracy: 2}, {energy: 1e308 eV}]\n"},
 	{"    optical-isomers: 1\n", "    optical-isomers: 1\n    hindered-rotors: [{constant: 5.3 cm-1, barrier: 1000 cm-1, fold: 3, symmetry: 3, fourier: {unit: cm-1, values: [-50, 10]}}]\n"},
 	{"    optical-isomers: 1\n", "    optical-isomers: 1\n    hindered-rotors: [{inertia: 1e-310 amu*angstrom^2, barrier: 1000 cm-1}]\n"},
+	{"    optical-isomers: 1\n", "    optical-isomers: 1\n    torsions: [{rotational-constant: 5.3 cm-1, barrier-height: 1000 cm-1, periodicity: 3, symmetry-number: 3, harmonics: {unit: cm-1, values: [-50, 10]}}]\n"},
+	{"    optical-isomers: 1\n", "    optical-isomers: 1\n    torsions: [{reduced-moment: 1e-310 amu angstrom2, barrier: 1000 cm-1, fold: 3}]\n"},
 	{"  via: ts\n", "  barrierless: {A: 1e15 s-1, T0: 300 K, n: 0.5, energy: 85 kcal/mol}\n"},
 	{"  path-degeneracy: auto\n", "  path-degeneracy: auto\n  competing:\n    - {via: ts, products: [c]}\n    - {barrierless: {A: 1e308 ms-1}}\n"},
 	{"energy-grid:\n", "energy-grid: &g\n"},
@@ -176,7 +178,7 @@ func checkModel(t *testing.T, name string, data []byte, m *Model) {
 		}
 		for i, h := range mol.Hindered {
 			if err := h.Validate(); err != nil {
-				t.Errorf("%s: hindered-rotors[%d] accepted but invalid: %v", mol.Name, i, err)
+				t.Errorf("%s: torsions[%d] accepted but invalid: %v", mol.Name, i, err)
 			}
 		}
 	}

@@ -185,7 +185,7 @@ func (p *parser) fits(n *yaml.Node) ([]string, error) {
 		}
 		if !slices.Contains(fitNames, name) {
 			hint := known
-			if s := closest(name, fitNames); s != "" {
+			if s := closest(name, fitNames, nil); s != "" {
 				hint = "did you mean " + s + "? " + known
 			}
 			return nil, p.errAt(fp, c, problemf("unknown fit"), hint)

@@ -4,10 +4,13 @@ import (
 	"errors"
 	"io/fs"
 	"math"
+	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 
 	"github.com/falloff-kinetics/falloff/pkg/units"
+	"go.yaml.in/yaml/v3"
 	"gonum.org/v1/gonum/floats/scalar"
 )
 
@@ -450,28 +453,231 @@ func TestChannelsAndTunnelling(t *testing.T) {
 	}
 }
 
-// Hindered rotors are read with their units; the inertia form converts by
-// B = h/(8π²cI) (16.857629 amu Å² ↔ 1 cm⁻¹).
-func TestHinderedRotors(t *testing.T) {
-	m, err := Parse(testFile, edit(t, "    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}\n", `    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}
-    hindered-rotors:
-      - {constant: 5.3 cm-1, barrier: 3.0 kcal/mol, fold: 3, symmetry: 3}
-      - {inertia: 16.857629 amu*angstrom^2, barrier: 0 cm-1, fold: 2}
+// ljLine is the line of minimal after which the torsion tests add a
+// molecule's torsions.
+const ljLine = "    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}\n"
+
+// Torsions are read with their units; the reduced-moment form converts by
+// B = h/(8π²cI) (16.857629 amu Å² ↔ 1 cm⁻¹, units.RotConstFromInertia).
+func TestTorsions(t *testing.T) {
+	m, err := Parse(testFile, edit(t, ljLine, ljLine+`    torsions:
+      - {rotational-constant: 5.3 cm-1, barrier-height: 3.0 kcal/mol, periodicity: 3, symmetry-number: 3}
+      - {reduced-moment: 16.857629 amu angstrom2, barrier-height: 0 cm-1, periodicity: 2, harmonics: {unit: cm-1, values: [50]}}
 `))
 	if err != nil {
 		t.Fatal(err)
 	}
+	// The reactant's torsion is one of its 3N−6 modes: 3 vibrations and 2
+	// torsions against the transition state's 2 vibrations imply 4, not 2.
+	if len(m.Warnings) != 1 || !strings.Contains(m.Warnings[0], "5 real modes (3 vibrations, 2 torsions) imply 4") {
+		t.Errorf("warnings %q, want the one about 4 modes", m.Warnings)
+	}
 	h := m.Molecule("r").Hindered
+	const tol = 1e-12 // exact factors; 16.857629 amu Å² is 1 cm⁻¹ to 7 digits
 	if len(h) != 2 || h[0].B != 5.3 || h[0].Fold != 3 || h[0].Symmetry != 3 ||
-		math.Abs(h[0].V0/(3*units.Cm1PerKcalPerMol)-1) > 1e-12 || math.Abs(h[1].B-1) > 1e-6 {
-		t.Errorf("hindered rotors %+v", h)
+		!scalar.EqualWithinRel(h[0].V0, 3*units.Cm1PerKcalPerMol, tol) ||
+		!scalar.EqualWithinAbsOrRel(h[1].B, 1, 1e-6, 1e-6) || h[1].Fold != 2 || len(h[1].Cos) != 1 || h[1].Cos[0] != 50 {
+		t.Errorf("torsions %+v", h)
 	}
-	_, err = Parse(testFile, edit(t, "    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}\n",
-		"    lennard-jones: {sigma: 4.2 angstrom, epsilon: 230 K}\n    hindered-rotors:\n      - {constant: 5.3 cm-1, barrier: -10 cm-1, fold: 3}\n"))
+	_, err = Parse(testFile, edit(t, ljLine, ljLine+"    torsions:\n      - {rotational-constant: 5.3 cm-1, barrier-height: -10 cm-1, periodicity: 3}\n"))
 	var fe *FieldError
-	if !errors.As(err, &fe) || !strings.Contains(fe.Path, "hindered-rotors[0]") {
-		t.Errorf("negative barrier: %v", err)
+	if !errors.As(err, &fe) || fe.Path != "molecules.r.torsions[0]" || fe.Line != 10 {
+		t.Errorf("negative barrier: %v, want an error at molecules.r.torsions[0], line 10", err)
 	}
+}
+
+// A torsion counts as a mode in the check of the transition state's mode
+// count (3N−7 against the reactant's 3N−6), whether it is a torsion or a
+// vibration: a reactant's torsion that is a vibration of the transition
+// state is no cause for a warning.
+func TestTorsionCountsAsMode(t *testing.T) {
+	const torsion = "    torsions: [{rotational-constant: 5.3 cm-1, barrier-height: 1000 cm-1, periodicity: 3}]\n"
+	cases := []struct {
+		name, reactantVib, reactantTors, tsVib, tsTors string
+		warning                                        string // "" for none
+	}{
+		{"reactant torsion, TS vibration", "[3000, 1500]", torsion, "[2900, 1200]", "", ""},
+		{"torsion on both sides", "[3000, 1500, 1000]", torsion, "[2900, 1200]", torsion, ""},
+		{"TS vibration for the imaginary mode", "[3000, 1500]", torsion, "[2900, 1200, 900]", "", "3 real modes, the same number as the reactant r"},
+		{"TS torsion, too many modes", "[3000, 1500, 1000]", "", "[2900, 1200]", torsion, "3 real modes (2 vibrations, 1 torsion), the same number"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			doc := strings.Replace(minimal, "values: [3000, 1500, 1000]", "values: "+tc.reactantVib, 1)
+			doc = strings.Replace(doc, "values: [2900, 1200]}\n", "values: "+tc.tsVib+"}\n"+tc.tsTors, 1)
+			doc = strings.Replace(doc, ljLine, ljLine+tc.reactantTors, 1)
+			m, err := Parse(testFile, []byte(doc))
+			if err != nil {
+				t.Fatal(err)
+			}
+			switch {
+			case tc.warning == "" && len(m.Warnings) > 0:
+				t.Errorf("warnings %q, want none", m.Warnings)
+			case tc.warning != "" && (len(m.Warnings) != 1 || !strings.Contains(m.Warnings[0], tc.warning)):
+				t.Errorf("warnings %q, want one with %q", m.Warnings, tc.warning)
+			}
+		})
+	}
+}
+
+// The hindered-rotor keys of the previous release (hindered-rotors,
+// constant, inertia, barrier, fold, symmetry, fourier) still parse, to the
+// same molecules as the new names, with one warning per old name that
+// names the file, the field and the new name.
+func TestTorsionsOldNames(t *testing.T) {
+	newDoc := edit(t, ljLine, ljLine+`    torsions:
+      - {rotational-constant: 5.3 cm-1, barrier-height: 3.0 kcal/mol, periodicity: 3, symmetry-number: 3}
+      - {reduced-moment: 3.2 amu*angstrom^2, barrier-height: 250 cm-1, periodicity: 2, harmonics: {unit: cm-1, values: [50, -10]}}
+`)
+	oldDoc := edit(t, ljLine, ljLine+`    hindered-rotors:
+      - {constant: 5.3 cm-1, barrier: 3.0 kcal/mol, fold: 3, symmetry: 3}
+      - {inertia: 3.2 amu*angstrom^2, barrier: 250 cm-1, fold: 2, fourier: {unit: cm-1, values: [50, -10]}}
+`)
+	mNew, err := Parse(testFile, newDoc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mOld, err := Parse(testFile, oldDoc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range mNew.Molecules {
+		if !reflect.DeepEqual(mNew.Molecules[i].Species, mOld.Molecules[i].Species) {
+			t.Errorf("%s: old names give %+v, new names %+v", mNew.Molecules[i].Name, mOld.Molecules[i].Species, mNew.Molecules[i].Species)
+		}
+	}
+	if len(mNew.Molecules[0].Hindered) != 2 {
+		t.Fatalf("%d torsions, want 2", len(mNew.Molecules[0].Hindered))
+	}
+	// The warnings of the new file (the mode count) come after those about
+	// old names.
+	renames := mOld.Warnings[:len(mOld.Warnings)-len(mNew.Warnings)]
+	want := []struct{ path, old, new string }{
+		{"molecules.r.hindered-rotors", "hindered-rotors", "torsions"},
+		{"molecules.r.hindered-rotors[0].constant", "constant", "rotational-constant"},
+		{"molecules.r.hindered-rotors[0].barrier", "barrier", "barrier-height"},
+		{"molecules.r.hindered-rotors[0].fold", "fold", "periodicity"},
+		{"molecules.r.hindered-rotors[0].symmetry", "symmetry", "symmetry-number"},
+		{"molecules.r.hindered-rotors[1].inertia", "inertia", "reduced-moment"},
+		{"molecules.r.hindered-rotors[1].fourier", "fourier", "harmonics"},
+	}
+	if len(renames) != len(want) {
+		t.Fatalf("warnings %q, want %d about old names", mOld.Warnings, len(want))
+	}
+	for i, w := range want {
+		got := renames[i]
+		t.Log(got)
+		if !strings.HasPrefix(got, testFile+":") || !strings.Contains(got, " "+w.path+": ") ||
+			!strings.Contains(got, strconv.Quote(w.old)) || !strings.Contains(got, "old name of "+w.new+" ") || strings.Contains(got, "\n") {
+			t.Errorf("warning %q should name %s, %s, %q and %s on one line", got, testFile, w.path, w.old, w.new)
+		}
+	}
+	// barrier and fold appear twice: one warning each, counting the other.
+	if !strings.Contains(renames[2], "1 more place") || strings.Contains(renames[1], "more place") {
+		t.Errorf("repeated old names: %q, %q", renames[2], renames[1])
+	}
+}
+
+// A key written under its old and its new name at once is an error.
+func TestTorsionsBothNames(t *testing.T) {
+	cases := []struct{ name, torsions, path string }{
+		{"block", "    torsions: []\n    hindered-rotors: [{constant: 5.3 cm-1, barrier: 0 cm-1}]\n", "molecules.r.hindered-rotors"},
+		{"key", "    torsions: [{rotational-constant: 5.3 cm-1, barrier-height: 0 cm-1, barrier: 0 cm-1}]\n", "molecules.r.torsions[0].barrier"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			_, err := Parse(testFile, edit(t, ljLine, ljLine+tc.torsions))
+			var fe *FieldError
+			if !errors.As(err, &fe) || fe.Path != tc.path || !strings.Contains(fe.Error(), "new name") {
+				t.Errorf("got %v, want an error at %s about the new name", err, tc.path)
+			}
+		})
+	}
+}
+
+// A misspelt key at any level gets a suggestion when a key is close; a
+// misspelling of an old name suggests the new one.
+func TestUnknownKeySuggestions(t *testing.T) {
+	torsion := func(keys string) (string, string) {
+		return ljLine, ljLine + "    torsions: [{" + keys + "}]\n"
+	}
+	comp := func(entry string) (string, string) {
+		return "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  competing:\n    - " + entry + "\n"
+	}
+	type tc struct {
+		name, old, new, path, suggestion string
+	}
+	cases := []tc{
+		{"top level", "title: minimal", "titel: minimal", "titel", "title"},
+		{"molecule", "optical-isomers: 1", "optical-isomer: 1", "molecules.r.optical-isomer", "optical-isomers"},
+		{"list", "vibrations: {unit: cm-1, values: [3000", "vibrations: {units: cm-1, values: [3000", "molecules.r.vibrations.units", "unit"},
+		{"rotation", "symmetry: 2}", "symetry: 2}", "molecules.r.rotation.symetry", "symmetry"},
+		{"electronic level", "    optical-isomers: 1\n", "    optical-isomers: 1\n    electronic: [{energy: 0 cm-1, degenracy: 1}]\n", "molecules.r.electronic[0].degenracy", "degeneracy"},
+		{"lennard-jones", "epsilon: 230 K", "epsilom: 230 K", "molecules.r.lennard-jones.epsilom", "epsilon"},
+		{"reaction", "  products: [a, b]\n", "  product: [a, b]\n", "reaction.product", "products"},
+		{"bath", "  gas: Ar", "  gass: Ar", "bath.gass", "gas"},
+		{"energy-transfer", "alpha-exponent: 0.85", "alpha-exponen: 0.85", "energy-transfer.alpha-exponen", "alpha-exponent"},
+		{"grid", "  temperatures: {from", "  temperature: {from", "grid.temperature", "temperatures"},
+		{"grid range", "points: 5", "point: 5", "grid.temperatures.point", "points"},
+		{"energy-grid", "  fine-grain: 1 cm-1", "  fine-grian: 1 cm-1", "energy-grid.fine-grian", "fine-grain"},
+	}
+	add := func(name, path, suggestion string, edit func(string) (string, string), arg string) {
+		old, new := edit(arg)
+		cases = append(cases, tc{name, old, new, path, suggestion})
+	}
+	add("torsion", "molecules.r.torsions[0].barrier-hieght", "barrier-height", torsion, "rotational-constant: 5.3 cm-1, barrier-hieght: 0 cm-1")
+	add("torsion, old name misspelt", "molecules.r.torsions[0].barier", "barrier-height", torsion, "rotational-constant: 5.3 cm-1, barier: 0 cm-1")
+	add("torsion, abbreviated", "molecules.r.torsions[0].period", "periodicity", torsion, "rotational-constant: 5.3 cm-1, barrier-height: 0 cm-1, period: 3")
+	add("competing channel", "reaction.competing[0].prodcuts", "products", comp, "{via: ts, prodcuts: [c]}")
+	add("barrierless", "reaction.competing[0].barrierless.enrgy", "energy", comp, "{barrierless: {A: 1e15 s-1, enrgy: 80 kcal/mol}, products: [c]}")
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := Parse(testFile, edit(t, c.old, c.new))
+			var fe *FieldError
+			if !errors.As(err, &fe) {
+				t.Fatalf("got %v, want a *FieldError", err)
+			}
+			t.Log(err)
+			if fe.Path != c.path || !strings.HasPrefix(fe.Hint, "did you mean "+c.suggestion+"?") {
+				t.Errorf("Path %q, Hint %q; want %s and a suggestion of %s", fe.Path, fe.Hint, c.path, c.suggestion)
+			}
+			if strings.Contains(fe.Hint, "hindered-rotors") || strings.Contains(fe.Hint, "fourier") {
+				t.Errorf("the hint lists an old key name: %s", fe.Hint)
+			}
+		})
+	}
+}
+
+// Every mapping of the file has a shape for messages about a value of the
+// wrong kind and the keys of an unknown-key hint: each struct type reached
+// from rawFile, and each list or map of them, is in shapes.
+func TestShapesCoverRawTypes(t *testing.T) {
+	seen := map[reflect.Type]bool{}
+	var walk func(reflect.Type)
+	walk = func(tp reflect.Type) {
+		for tp.Kind() == reflect.Pointer {
+			tp = tp.Elem()
+		}
+		if seen[tp] || tp == reflect.TypeFor[yaml.Node]() {
+			return
+		}
+		seen[tp] = true
+		switch tp.Kind() {
+		case reflect.Slice, reflect.Map:
+			if _, ok := shapes[tp]; !ok {
+				t.Errorf("shapes lacks %v", tp)
+			}
+			walk(tp.Elem())
+		case reflect.Struct:
+			if _, ok := shapes[tp]; !ok {
+				t.Errorf("shapes lacks %v", tp)
+			}
+			for i := range tp.NumField() {
+				walk(tp.Field(i).Type)
+			}
+		}
+	}
+	walk(reflect.TypeFor[rawFile]())
 }
 
 // Tunnelling needs the transition state's imaginary frequency.

@@ -240,6 +240,7 @@ type parser struct {
 	data     []byte // the file's content, for messages about its lines
 	index    *nodeIndex
 	warnings []string
+	renames  []renameUse // old key names the file uses, for warnings
 }
 
 // threshold is one channel's threshold energy, for checks.

@@ -156,8 +156,16 @@ func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) 
 		}
 		m.LJ = lj
 	}
-	for i := range r.Hindered {
-		h, err := p.hindered(fmt.Sprintf("%s.hindered-rotors[%d]", path, i), &r.Hindered[i])
+	key, err := p.renamedKey(path, "torsions", "hindered-rotors")
+	if err != nil {
+		return nil, err
+	}
+	torsions := r.Torsions
+	if key == "hindered-rotors" {
+		torsions = r.OldTorsions
+	}
+	for i := range torsions {
+		h, err := p.torsion(fmt.Sprintf("%s.%s[%d]", path, key, i), &torsions[i])
 		if err != nil {
 			return nil, err
 		}
@@ -194,67 +202,103 @@ func (p *parser) threshold(path string, n *yaml.Node, name string, e float64) er
 	return p.errAt(path, n, problemf("%s = %.6g kcal/mol is above %g kcal/mol, more than any chemical bond energy", name, kcal, maxThresholdKcal), hint)
 }
 
-// hindered reads {constant: 5.3 cm-1 (or inertia: 3.2 amu*angstrom^2),
-// barrier: 1000 cm-1, fold: 3, symmetry: 3, fourier: {unit: cm-1, values: [..]}}.
-func (p *parser) hindered(path string, r *rawHindered) (rrkm.HinderedRotor, error) {
+// torsion reads one torsion into a hindered rotor: {rotational-constant:
+// 5.3 cm-1 (or reduced-moment: 3.2 amu angstrom2), barrier-height: 1000
+// cm-1, periodicity: 3, symmetry-number: 3, harmonics: {unit: cm-1, values:
+// [..]}}. The keys' old names (constant, inertia, barrier, fold, symmetry,
+// fourier) are read too, with a warning.
+func (p *parser) torsion(path string, r *rawTorsion) (rrkm.HinderedRotor, error) {
 	// maxTorsionB bounds a torsion's rotational constant: the lightest
 	// possible internal rotor, H2's relative motion, has B ≈ 61 cm⁻¹ (from
 	// memory); an OH torsion about 20.
 	const maxTorsionB = 100.0
 	var h rrkm.HinderedRotor
+
+	// Each field is read under the name the file uses.
+	type field struct {
+		name, path string
+		n          *yaml.Node
+	}
 	var err error
+	pick := func(newKey string, newN *yaml.Node, oldKey string, oldN *yaml.Node) field {
+		if err != nil {
+			return field{}
+		}
+		var k string
+		if k, err = p.renamedKey(path, newKey, oldKey); k == oldKey {
+			return field{oldKey, path + "." + oldKey, oldN}
+		}
+		return field{newKey, path + "." + newKey, newN}
+	}
+	constant := pick("rotational-constant", &r.Constant, "constant", &r.OldConstant)
+	moment := pick("reduced-moment", &r.Moment, "inertia", &r.OldMoment)
+	barrier := pick("barrier-height", &r.Barrier, "barrier", &r.OldBarrier)
+	fold := pick("periodicity", &r.Fold, "fold", &r.OldFold)
+	symmetry := pick("symmetry-number", &r.Symmetry, "symmetry", &r.OldSymmetry)
+	if err != nil {
+		return h, err
+	}
+	harmonicsKey, err := p.renamedKey(path, "harmonics", "fourier")
+	if err != nil {
+		return h, err
+	}
+
 	switch {
-	case given(&r.Constant) && given(&r.Inertia):
-		return h, p.errAt(path+".inertia", &r.Inertia, problemf("give constant or inertia, not both"), "")
-	case given(&r.Constant):
-		if h.B, err = p.quantity(path+".constant", &r.Constant, units.RotConst); err != nil {
+	case given(constant.n) && given(moment.n):
+		return h, p.errAt(moment.path, moment.n, problemf("give %s or %s, not both", constant.name, moment.name), "")
+	case given(constant.n):
+		if h.B, err = p.quantity(constant.path, constant.n, units.RotConst); err != nil {
 			return h, err
 		}
 		if h.B > maxTorsionB {
-			return h, p.errAt(path+".constant", &r.Constant, problemf("%.4g cm-1 is above any torsion's rotational constant (at most about %g cm-1)", h.B, maxTorsionB),
+			return h, p.errAt(constant.path, constant.n, problemf("%.4g cm-1 is above any torsion's rotational constant (at most about %g cm-1)", h.B, maxTorsionB),
 				"check the unit; a methyl torsion has about 5.3 cm-1")
 		}
-	case given(&r.Inertia):
-		i, err := p.quantity(path+".inertia", &r.Inertia, units.Inertia)
+	case given(moment.n):
+		i, err := p.quantity(moment.path, moment.n, units.Inertia)
 		if err != nil {
 			return h, err
 		}
 		if !(i > 0) {
-			return h, p.errAt(path+".inertia", &r.Inertia, problemf("must be positive"), "")
+			return h, p.errAt(moment.path, moment.n, problemf("must be positive"), "")
 		}
 		h.B = units.RotConstFromInertia / i
 		if !(h.B <= maxTorsionB) {
-			return h, p.errAt(path+".inertia", &r.Inertia, problemf("gives a rotational constant of %.4g cm-1, above any torsion's (at most about %g cm-1)", h.B, maxTorsionB),
-				"check the unit; a methyl torsion has about 3.2 amu*angstrom^2 (5.3 cm-1)")
+			return h, p.errAt(moment.path, moment.n, problemf("gives a rotational constant of %.4g cm-1, above any torsion's (at most about %g cm-1)", h.B, maxTorsionB),
+				"check the unit; a methyl torsion has about 3.2 amu angstrom2 (5.3 cm-1)")
 		}
 	default:
-		return h, p.missing(path+".constant", "give the torsion's rotational constant (e.g. constant: 5.3 cm-1) or its reduced moment (inertia: 3.2 amu*angstrom^2)")
+		return h, p.missing(path+".rotational-constant", "give the torsion's rotational constant (e.g. rotational-constant: 5.3 cm-1) or its reduced moment of inertia (reduced-moment: 3.2 amu angstrom2)")
 	}
-	if !given(&r.Barrier) {
-		return h, p.missing(path+".barrier", "give the torsional barrier V0, e.g. barrier: 1000 cm-1 (0 for a free rotor)")
+	if !given(barrier.n) {
+		return h, p.missing(path+".barrier-height", "give the torsional barrier V0, e.g. barrier-height: 1000 cm-1 (0 for a free rotor)")
 	}
-	if h.V0, err = p.quantity(path+".barrier", &r.Barrier, units.Energy); err != nil {
+	if h.V0, err = p.quantity(barrier.path, barrier.n, units.Energy); err != nil {
 		return h, err
 	}
 	h.Fold = 1
-	if given(&r.Fold) {
-		if h.Fold, err = p.integer(path+".fold", &r.Fold); err != nil {
+	if given(fold.n) {
+		if h.Fold, err = p.integer(fold.path, fold.n); err != nil {
 			return h, err
 		}
 	}
-	if given(&r.Symmetry) {
-		if h.Symmetry, err = p.integer(path+".symmetry", &r.Symmetry); err != nil {
+	if given(symmetry.n) {
+		if h.Symmetry, err = p.integer(symmetry.path, symmetry.n); err != nil {
 			return h, err
 		}
 	}
-	if r.Fourier != nil {
-		if h.Cos, _, err = p.list(path+".fourier", r.Fourier, units.Energy); err != nil {
+	harmonics := r.Harmonics
+	if harmonicsKey == "fourier" {
+		harmonics = r.OldFourier
+	}
+	if harmonics != nil {
+		if h.Cos, _, err = p.list(path+"."+harmonicsKey, harmonics, units.Energy); err != nil {
 			return h, err
 		}
 	}
 	if err := h.Validate(); err != nil {
-		return h, &FieldError{File: p.file, Path: path, Err: err,
-			Hint: "constant > 0, barrier ≥ 0, fold ≥ 1, symmetry dividing fold"}
+		return h, &FieldError{File: p.file, Line: p.index.line(path), Path: path, Err: err,
+			Hint: "rotational-constant > 0, barrier-height ≥ 0, periodicity ≥ 1, symmetry-number dividing periodicity"}
 	}
 	return h, nil
 }
@@ -292,7 +336,7 @@ func (p *parser) rotation(path string, r *rawRotation) (rrkm.Rotor, int, error) 
 			return rot, 0, err
 		}
 	}
-	shape := "{constants: {unit: cm-1, values: [A, B, C]}, symmetry: 1}, or {inertia: {unit: amu*angstrom^2, values: [Ia, Ib, Ic]}, symmetry: 1}"
+	shape := "{constants: {unit: cm-1, values: [A, B, C]}, symmetry: 1}, or {inertia: {unit: amu angstrom2, values: [Ia, Ib, Ic]}, symmetry: 1}"
 	var (
 		lp    string
 		xs    []float64

@@ -36,7 +36,7 @@ func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
 		m := byName[name]
 		if m == nil {
 			hint := inFile
-			if s := closest(name, names); s != "" {
+			if s := closest(name, names, nil); s != "" {
 				hint = "did you mean " + s + "? " + inFile
 			}
 			return nil, p.errAt(path, n, problemf("no molecule of this name"), hint)
@@ -340,7 +340,7 @@ func (p *parser) transfer(r *rawTransfer) (EnergyTransfer, error) {
 	}
 	if !slices.Contains(models, model) {
 		hint := "the models are: " + strings.Join(models, ", ")
-		if s := closest(model, models); s != "" {
+		if s := closest(model, models, nil); s != "" {
 			hint = "did you mean " + s + "? " + hint
 		}
 		return et, p.errAt("energy-transfer.model", &r.Model, problemf("unknown energy-transfer model"), hint)

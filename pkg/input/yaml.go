@@ -30,25 +30,34 @@ type rawFile struct {
 }
 
 type rawMolecule struct {
-	Mass           yaml.Node     `yaml:"mass"`
-	Energy         yaml.Node     `yaml:"energy"`
-	Imaginary      yaml.Node     `yaml:"imaginary-frequency"`
-	Vibrations     *rawList      `yaml:"vibrations"`
-	Rotation       *rawRotation  `yaml:"rotation"`
-	OpticalIsomers yaml.Node     `yaml:"optical-isomers"`
-	Electronic     []*rawLevel   `yaml:"electronic"`
-	LennardJones   *rawLJ        `yaml:"lennard-jones"`
-	Hindered       []rawHindered `yaml:"hindered-rotors"`
+	Mass           yaml.Node    `yaml:"mass"`
+	Energy         yaml.Node    `yaml:"energy"`
+	Imaginary      yaml.Node    `yaml:"imaginary-frequency"`
+	Vibrations     *rawList     `yaml:"vibrations"`
+	Rotation       *rawRotation `yaml:"rotation"`
+	OpticalIsomers yaml.Node    `yaml:"optical-isomers"`
+	Electronic     []*rawLevel  `yaml:"electronic"`
+	LennardJones   *rawLJ       `yaml:"lennard-jones"`
+	Torsions       []rawTorsion `yaml:"torsions"`
+
+	OldTorsions []rawTorsion `yaml:"hindered-rotors" renamed:"torsions"`
 }
 
-// rawHindered is one hindered internal rotor.
-type rawHindered struct {
-	Constant yaml.Node `yaml:"constant"` // rotational constant of the torsion
-	Inertia  yaml.Node `yaml:"inertia"`  // or its reduced moment of inertia
-	Barrier  yaml.Node `yaml:"barrier"`
-	Fold     yaml.Node `yaml:"fold"`
-	Symmetry yaml.Node `yaml:"symmetry"`
-	Fourier  *rawList  `yaml:"fourier"`
+// rawTorsion is one torsion, counted as a hindered internal rotor.
+type rawTorsion struct {
+	Constant  yaml.Node `yaml:"rotational-constant"` // B of the torsion
+	Moment    yaml.Node `yaml:"reduced-moment"`      // or its reduced moment of inertia
+	Barrier   yaml.Node `yaml:"barrier-height"`      // V0
+	Fold      yaml.Node `yaml:"periodicity"`         // n, minima per turn
+	Symmetry  yaml.Node `yaml:"symmetry-number"`     // σ of the rotor
+	Harmonics *rawList  `yaml:"harmonics"`           // higher cosine terms
+
+	OldConstant yaml.Node `yaml:"constant" renamed:"rotational-constant"`
+	OldMoment   yaml.Node `yaml:"inertia" renamed:"reduced-moment"`
+	OldBarrier  yaml.Node `yaml:"barrier" renamed:"barrier-height"`
+	OldFold     yaml.Node `yaml:"fold" renamed:"periodicity"`
+	OldSymmetry yaml.Node `yaml:"symmetry" renamed:"symmetry-number"`
+	OldFourier  *rawList  `yaml:"fourier" renamed:"harmonics"`
 }
 
 // rawList is a list of numbers with one unit: {unit: cm-1, values: [...]}.
@@ -150,6 +159,9 @@ var shapes = map[reflect.Type]string{
 	reflect.TypeFor[[]*rawLevel]():             "a list of levels such as [{energy: 0 cm-1, degeneracy: 1}]",
 	reflect.TypeFor[rawLevel]():                "a level such as {energy: 0 cm-1, degeneracy: 1}",
 	reflect.TypeFor[rawLJ]():                   "a mapping such as {sigma: 5.0 angstrom, epsilon: 400 K}",
+	reflect.TypeFor[[]rawTorsion]():            "a list of torsions such as [{rotational-constant: 5.3 cm-1, barrier-height: 1000 cm-1, periodicity: 3}]",
+	reflect.TypeFor[rawTorsion]():              "a torsion such as {rotational-constant: 5.3 cm-1, barrier-height: 1000 cm-1, periodicity: 3}",
+	reflect.TypeFor[[]rawChannel]():            "a list of channels such as [{via: TS-NAME, products: [A, B]}]",
 	reflect.TypeFor[rawReaction]():             "a mapping such as {reactant: NAME, via: TS-NAME, products: [A, B]}",
 	reflect.TypeFor[rawChannel]():              "a mapping such as {via: TS-NAME, products: [A, B]}",
 	reflect.TypeFor[rawBarrierless]():          "a mapping such as {A: 1e15 s-1, T0: 300 K, n: 0.5, energy: 85 kcal/mol}",
@@ -171,15 +183,43 @@ func shapeByName(name string) (reflect.Type, string, bool) {
 	return nil, "", false
 }
 
-// keysOf lists the YAML keys of a raw struct type in declaration order.
+// keysOf lists the YAML keys of a raw struct type in declaration order,
+// without the old names of renamed keys.
 func keysOf(t reflect.Type) []string {
 	var keys []string
 	for i := range t.NumField() {
-		if k, _, _ := strings.Cut(t.Field(i).Tag.Get("yaml"), ","); k != "" {
+		f := t.Field(i)
+		if k, _, _ := strings.Cut(f.Tag.Get("yaml"), ","); k != "" && f.Tag.Get("renamed") == "" {
 			keys = append(keys, k)
 		}
 	}
 	return keys
+}
+
+// renamesOf maps the old name of each renamed key of a raw struct type
+// (a field tagged renamed:"NEW") to its new name.
+func renamesOf(t reflect.Type) map[string]string {
+	out := map[string]string{}
+	for i := range t.NumField() {
+		f := t.Field(i)
+		if k, _, _ := strings.Cut(f.Tag.Get("yaml"), ","); k != "" && f.Tag.Get("renamed") != "" {
+			out[k] = f.Tag.Get("renamed")
+		}
+	}
+	return out
+}
+
+// suggest returns the key of the raw struct type t that the unknown key k
+// most likely misspells, or "". A key close to an old name suggests the
+// new one.
+func suggest(k string, t reflect.Type) string {
+	keys := keysOf(t)
+	renames := renamesOf(t)
+	for old := range renames {
+		keys = append(keys, old)
+	}
+	slices.Sort(keys[len(keys)-len(renames):]) // map order is random
+	return closest(k, keys, renames)
 }
 
 // decode reads data as a single YAML document into the node tree and into the
@@ -276,9 +316,8 @@ func (p *parser) typeError(msg string, more int) error {
 		key := m[2]
 		hint := ""
 		if t, _, ok := shapeByName(m[3]); ok {
-			keys := keysOf(t)
-			hint = "the keys here are: " + strings.Join(keys, ", ")
-			if s := closest(key, keys); s != "" {
+			hint = "the keys here are: " + strings.Join(keysOf(t), ", ")
+			if s := suggest(key, t); s != "" {
 				hint = "did you mean " + s + "? " + hint
 			}
 		}
@@ -331,13 +370,20 @@ func plural(n int) string {
 
 // closest returns the key in keys nearest to k by edit distance, ignoring
 // case, if it is near enough to be a likely misspelling, or else the one
-// key that k (of four letters or more) abbreviates.
-func closest(k string, keys []string) string {
+// key that k (of four letters or more) abbreviates. A key found in alias
+// (an old name) stands for the key it maps to; alias may be nil.
+func closest(k string, keys []string, alias map[string]string) string {
+	canon := func(c string) string {
+		if a, ok := alias[c]; ok {
+			return a
+		}
+		return c
+	}
 	best, bestD := "", 3
 	lk := strings.ToLower(k)
 	for _, c := range keys {
 		if d := editDistance(lk, strings.ToLower(c)); d < bestD {
-			best, bestD = c, d
+			best, bestD = canon(c), d
 		}
 	}
 	if best != "" || len(lk) < 4 {
@@ -345,10 +391,10 @@ func closest(k string, keys []string) string {
 	}
 	for _, c := range keys {
 		if strings.HasPrefix(strings.ToLower(c), lk) {
-			if best != "" {
+			if best != "" && best != canon(c) {
 				return "" // ambiguous
 			}
-			best = c
+			best = canon(c)
 		}
 	}
 	return best

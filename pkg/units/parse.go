@@ -78,8 +78,11 @@ var tables = map[Dimension]unitTable{
 		map[string]float64{"angstrom": 1, "å": 1, "a": 1, "nm": 10, "pm": 0.01}),
 	RotConst: newTable([]string{"cm-1", "GHz", "MHz"},
 		map[string]float64{"cm-1": 1, "cm^-1": 1, "1/cm": 1, "ghz": Cm1PerGHz, "mhz": Cm1PerGHz / 1000}),
-	Inertia: newTable([]string{"amu*angstrom^2", "g*cm^2"},
-		map[string]float64{"amu*angstrom^2": 1, "amu*å^2": 1, "amu*a^2": 1,
+	// "amu angstrom2" is written like cm3/molecule/s, a power as a plain
+	// digit; the spellings with * and ^ stay accepted.
+	Inertia: newTable([]string{"amu angstrom2", "amu Å2", "amu*Å^2", "g*cm^2"},
+		map[string]float64{"amuangstrom2": 1, "amuå2": 1, "amu*angstrom2": 1, "amu*å2": 1,
+			"amu*angstrom^2": 1, "amu*å^2": 1, "amu*a^2": 1, "amuangstrom^2": 1, "amuå^2": 1,
 			"g*cm^2": 1 / (AtomicMass * 1e3 * 1e-16)}),
 	Rate: newTable([]string{"s-1", "1/s", "min-1", "ms-1"},
 		map[string]float64{"s-1": 1, "1/s": 1, "s^-1": 1, "min-1": 1.0 / 60, "ms-1": 1000}),

@@ -94,6 +94,44 @@ func TestParse(t *testing.T) {
 	}
 }
 
+// Every spelling of the moment-of-inertia unit means amu Å²; g*cm^2 is
+// checked against the CODATA 2018 atomic mass constant, m_u =
+// 1.66053906660e-27 kg, so 1 amu Å² = 1.66053906660e-40 g cm².
+func TestInertiaSpellings(t *testing.T) {
+	const tol = 1e-12 // exact factors; one rounding in the g*cm^2 one
+	cases := []struct {
+		text string
+		want float64 // amu Å²
+	}{
+		{"3.2 amu angstrom2", 3.2},
+		{"3.2 amu Å2", 3.2},
+		{"3.2 AMU Angstrom2", 3.2},
+		{"3.2 amu*angstrom2", 3.2},
+		{"3.2 amu*Å^2", 3.2},
+		{"3.2 amu angstrom^2", 3.2},
+		{"3.2 amu*angstrom^2", 3.2},
+		{"1.66053906660e-40 g*cm^2", 1},
+	}
+	for _, tc := range cases {
+		got, err := Parse(tc.text, Inertia)
+		if err != nil {
+			t.Errorf("Parse(%q): %v", tc.text, err)
+			continue
+		}
+		if !scalar.EqualWithinAbsOrRel(got, tc.want, tol, tol) {
+			t.Errorf("Parse(%q) = %.15g amu Å², want %.15g", tc.text, got, tc.want)
+		}
+	}
+	if got := Inertia.Internal(); got != "amu angstrom2" {
+		t.Errorf("Inertia.Internal() = %q, want the plain spelling amu angstrom2", got)
+	}
+	for _, bad := range []string{"3.2 amu angstrom3", "3.2 amu angstrom"} {
+		if _, err := Parse(bad, Inertia); err == nil {
+			t.Errorf("Parse(%q) accepted", bad)
+		}
+	}
+}
+
 func TestParseRejects(t *testing.T) {
 	cases := []struct {
 		text   string
