@@ -103,7 +103,6 @@ var catalogue = map[string]struct{ field, value string }{
 	"yaml-syntax":                              {"", ""},
 
 	// k(T,P) tables for fit: the field is the column (or the header).
-	"fit-duplicate-point":       {"", "300,1,2.858e+13"},
 	"fit-empty":                 {"", ""},
 	"fit-missing-column":        {"k/<unit>", "T/K,P/atm"},
 	"fit-nan-k":                 {"column 3 (k/cm3/mol/s)", "NaN"},
@@ -113,6 +112,7 @@ var catalogue = map[string]struct{ field, value string }{
 	"fit-too-few-rows":          {"", ""},
 	"fit-unit-in-row":           {"column 3 (k/cm3/mol/s)", "2.858e+13 cm3/mol/s"},
 	"fit-unknown-pressure-unit": {"column 2", "P/psi"},
+	"fit-replicates-disagree":   {"", "300,1,1.196e+16"},
 }
 
 // errorLines returns the lines of stderr that are not warnings.

@@ -22,7 +22,7 @@ const channelsFile = "../../testdata/ch3nc-channels.yaml"
 // error of kT/5 grains).
 func TestChannelsRates(t *testing.T) {
 	dir := t.TempDir()
-	code, out, errs := runCLI(t, "rates", "--json", "--skip-check", "--out", dir, channelsFile)
+	code, out, errs := runCLI(t, "rates", "--json", "--skip-check", "--write-failed", "--out", dir, channelsFile)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}

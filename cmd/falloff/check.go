@@ -78,6 +78,13 @@ func runCheckCmd(args []string, s streams) error {
 	for _, u := range rep.Unavailable {
 		fmt.Fprintln(s.out, "not available:", u)
 	}
+	if c := rep.RatesCPUSeconds; c > 0 {
+		limit := ""
+		if c > job.DefaultWorkLimit {
+			limit = fmt.Sprintf(" (above the default limit of %g min: run it with --work-limit)", job.DefaultWorkLimit/60.0)
+		}
+		fmt.Fprintf(s.out, "rates: about %.2g s of CPU time estimated%s\n", c, limit)
+	}
 	if len(rep.Warnings) == 0 {
 		fmt.Fprintln(s.out, "no warnings")
 	}

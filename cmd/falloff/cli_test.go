@@ -326,7 +326,7 @@ energy-grid:
 // counting, as a usage error naming the flag, the estimate and a hint.
 func TestCeilingFlagTooLarge(t *testing.T) {
 	for _, verb := range []string{"states", "micro"} {
-		code, _, errs := runCLI(t, verb, "-q", "--ceiling", "1e9 cm-1")
+		code, _, errs := runCLI(t, verb, "-q", "--grain", "2e4 cm-1", "--ceiling", "1e9 cm-1")
 		want := `falloff: --ceiling "1e9 cm-1": the state count would need 1e+09 bins of 1 cm-1, 8 GB of memory; the limit is 400 MB (hint: a ceiling of at most 5e+07 cm-1)` + "\n"
 		if code != exitUsage || errs != want {
 			t.Errorf("%s: exit %d, stderr %q", verb, code, errs)

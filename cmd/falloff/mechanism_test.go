@@ -43,7 +43,7 @@ func TestRatesOutFiles(t *testing.T) {
 	}{{ch3ncFile, string(job.Forward)}, {recombFile, string(job.Recombination)}} {
 		t.Run(tc.direction, func(t *testing.T) {
 			dir := filepath.Join(t.TempDir(), "out")
-			code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--direction", tc.direction, "--out", dir, "--plots", dir, "--skeleton", tc.file)
+			code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--write-failed", "--direction", tc.direction, "--out", dir, "--plots", dir, "--skeleton", tc.file)
 			if code != exitOK {
 				t.Fatalf("exit %d: %s", code, errs)
 			}
@@ -52,7 +52,7 @@ func TestRatesOutFiles(t *testing.T) {
 			var names []string
 			for _, e := range entries {
 				names = append(names, e.Name())
-				if strings.HasPrefix(e.Name(), ".") {
+				if strings.HasPrefix(e.Name(), ".") && e.Name() != ".falloff-set" { // the set's record stays
 					t.Errorf("temporary file left: %s", e.Name())
 				}
 			}
@@ -153,7 +153,7 @@ func TestRecombinationDetailedBalance(t *testing.T) {
 // Golden file of the recombination mechanism text (reviewed by hand once).
 func TestRecombinationGolden(t *testing.T) {
 	dir := t.TempDir()
-	if code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--direction", string(job.Recombination), "--energy-unit", "kJ/mol", "--out", dir, recombFile); code != exitOK {
+	if code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--write-failed", "--direction", string(job.Recombination), "--energy-unit", "kJ/mol", "--out", dir, recombFile); code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	for _, n := range []string{"reactions-troe.txt", "reactions-plog.yaml"} {
@@ -172,4 +172,41 @@ func TestRecombinationErrors(t *testing.T) {
 		{"bad direction", []string{"rates", "--direction", "sideways", ch3ncFile}, exitUsage, "forward or recombination"},
 		{"bad unit", []string{"rates", "--energy-unit", "erg", ch3ncFile}, exitUsage, "erg"},
 	})
+}
+
+// A failed fit is not a mechanism unless asked for: on CH3NC's small grid
+// every form fails its tolerance, so rates --out writes only grid.csv and
+// summary.json and says why; on the demo Chebyshev meets it (on the grid
+// and between its points) and is written as reactions.yaml and
+// reactions-chebyshev, while the failed Troe and PLOG fits are not.
+func TestFailedFitsNotWritten(t *testing.T) {
+	dir := t.TempDir()
+	code, _, errs := runCLI(t, "rates", "--skip-check", "--out", dir, ch3ncFile)
+	if code != exitOK || !strings.Contains(errs, "no reactions.yaml written") {
+		t.Fatalf("exit %d, stderr %q", code, errs)
+	}
+	var got []string
+	entries, _ := os.ReadDir(dir)
+	for _, e := range entries {
+		if !strings.HasPrefix(e.Name(), ".") {
+			got = append(got, e.Name())
+		}
+	}
+	if strings.Join(got, " ") != "grid.csv summary.json" {
+		t.Errorf("all fits failed, yet the folder holds %v", got)
+	}
+	dir = t.TempDir()
+	if code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--out", dir); code != exitOK {
+		t.Fatalf("demo: exit %d: %s", code, errs)
+	}
+	sum := readSummary(t, dir)
+	if sum.Fits.Recommended != fit.FormChebyshev {
+		t.Fatalf("demo recommends %q", sum.Fits.Recommended)
+	}
+	for name, want := range map[string]bool{"reactions.yaml": true, "reactions-chebyshev.yaml": true,
+		"reactions-troe.yaml": !sum.Fits.Troe.Failed, "reactions-plog.yaml": !sum.Fits.PLOG.Failed} {
+		if _, err := os.Stat(filepath.Join(dir, name)); (err == nil) != want {
+			t.Errorf("%s written: %v, want %v", name, err == nil, want)
+		}
+	}
 }

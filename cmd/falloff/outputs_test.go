@@ -68,7 +68,7 @@ func TestOutputSafety(t *testing.T) {
 	}
 	os.Remove(filepath.Join(dir, "grid.csv"))
 
-	if code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--out", dir, ch3ncFile); code != exitOK {
+	if code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--write-failed", "--out", dir, ch3ncFile); code != exitOK {
 		t.Fatalf("rates --out: exit %d: %s", code, errs)
 	}
 	if _, err := os.Stat(filepath.Join(dir, "reactions-plog.yaml")); err != nil {
@@ -89,7 +89,7 @@ func TestOutputSafety(t *testing.T) {
 	if err := os.WriteFile(troeOnly, []byte(src+"fits: [troe]\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--out", dir, troeOnly); code != exitOK {
+	if code, _, errs := runCLI(t, "rates", "-q", "--skip-check", "--write-failed", "--out", dir, troeOnly); code != exitOK {
 		t.Fatalf("re-run: exit %d: %s", code, errs)
 	}
 	for _, gone := range []string{"reactions-plog.yaml", "reactions-chebyshev.txt"} {

@@ -6,25 +6,32 @@ import (
 	"encoding/json"
 	"fmt"
 	"path/filepath"
+	"slices"
+	"time"
 
 	"github.com/spf13/pflag"
 
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/job"
+	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
 type ratesOptions struct {
 	json, csv, quiet, skipCheck, skeleton bool
+	skipHeldOut, freeLimits, writeFailed  bool
+	workLimit                             time.Duration
 	jobs                                  int
 	grain, ceiling                        energyFlag
 	out, plots                            string
 	directionText, energyUnit             string
 	tolerancePct                          float64
 	disp                                  display
+	plotTempTexts                         []string
 
 	// Parsed by validate.
 	direction job.Direction
 	units     export.Units
+	plotTemps []float64 // K, --plot-temperatures
 }
 
 func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
@@ -34,13 +41,18 @@ func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
 	o.grain.add(fs, "grain", `master-equation grain with its unit, e.g. "50 cm-1", at every temperature (default: automatic, min(α, kT)/5)`)
 	o.ceiling.add(fs, "ceiling", `top of the master-equation grid with its unit (default: automatic per temperature)`)
 	fs.BoolVar(&o.skipCheck, "skip-check", false, "skip the grain and ceiling convergence check")
+	fs.BoolVar(&o.skipHeldOut, "skip-held-out", false, "do not solve between the grid points (the fits' held-out error is then estimated by cross-validation)")
+	fs.DurationVar(&o.workLimit, "work-limit", job.DefaultWorkLimit*time.Second, "refuse a run whose estimated CPU time exceeds this, e.g. 2h")
 	fs.StringVar(&o.directionText, "direction", string(job.Forward), "write the reaction forward (as computed) or as the reverse recombination")
+	fs.BoolVar(&o.freeLimits, "free-limits", false, "let the falloff fits move k0 and k∞ from the computed limits when the broadening alone misses the tolerance (the report shows how far)")
 	fs.Float64Var(&o.tolerancePct, "tolerance", 1, "largest acceptable fit error in per cent: decides extra fit terms and the recommended form")
 	fs.StringVarP(&o.out, "out", "o", "", "write reactions.yaml, reactions.txt, a file per fitted form, grid.csv and summary.json to this directory")
 	fs.StringVar(&o.energyUnit, "energy-unit", "cal/mol", "activation-energy unit of the mechanism files: cal/mol, kcal/mol, J/mol, kJ/mol or K")
 	o.disp.addFlags(fs)
+	fs.BoolVar(&o.writeFailed, "write-failed", false, "with --out, write failed fits too (marked FAILED), and reactions.yaml with the best form when none meets the tolerance")
 	fs.BoolVar(&o.skeleton, "skeleton", false, "with --out, also write phase-example.yaml: how a Cantera phase uses the reactions")
-	fs.StringVar(&o.plots, "plots", "", "write SVG plots (falloff curves, Arrhenius plot of k0 and k∞, k(E), ρ(E)) to this directory")
+	fs.StringVar(&o.plots, "plots", "", "write SVG figures (falloff curves, k∞ and k0, k against 1000/T, fit residuals, Fcent, k(E), ρ(E)) to this directory")
+	fs.StringSliceVar(&o.plotTempTexts, "plot-temperatures", nil, `with --plots, the temperatures of the falloff curves, e.g. "300 K,1000 K", each shown at the nearest grid temperature (default: lowest, middle, highest)`)
 	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no chatter or warnings on stderr")
 }
 
@@ -53,6 +65,9 @@ func (o *ratesOptions) validate(args []string) error {
 	}
 	if o.jobs < 0 {
 		return usagef("--jobs %d: must be 0 (automatic) or positive", o.jobs)
+	}
+	if o.workLimit <= 0 {
+		return usagef("--work-limit %v: must be positive, e.g. 2h", o.workLimit)
 	}
 	var err error
 	if o.direction, err = job.ParseDirection(o.directionText); err != nil {
@@ -70,13 +85,22 @@ func (o *ratesOptions) validate(args []string) error {
 	if err := o.grain.validate(); err != nil {
 		return err
 	}
+	o.plotTemps = nil
+	for _, text := range o.plotTempTexts {
+		t, err := units.Parse(text, units.Temperature)
+		if err != nil || !(t > 0) {
+			return usagef("--plot-temperatures %q: give positive temperatures with their unit, e.g. \"300 K,1000 K\"", text)
+		}
+		o.plotTemps = append(o.plotTemps, t)
+	}
 	return o.ceiling.validate()
 }
 
 // job returns the library's options for the run.
 func (o *ratesOptions) job(progress func()) job.Options {
 	return job.Options{Grain: o.grain.set, Ceiling: o.ceiling.set, Jobs: o.jobs, SkipCheck: o.skipCheck,
-		Direction: o.direction, Tolerance: o.tolerancePct / 100, Progress: progress}
+		Direction: o.direction, Tolerance: o.tolerancePct / 100, Progress: progress,
+		SkipHeldOut: o.skipHeldOut, WorkLimit: o.workLimit.Seconds(), FreeLimits: o.freeLimits}
 }
 
 // ratesJSON is the JSON of `rates` (docs/design.md §8, docs/output.md): the
@@ -145,16 +169,19 @@ func runRatesCmd(args []string, s streams) error {
 // paths written.
 func writeRatesFiles(set *export.FileSet, o ratesOptions, n *job.Network, res *job.RatesResult, s streams) ([]string, error) {
 	if o.out != "" {
-		files, err := res.MechanismFiles(job.FileOptions{Units: o.units, PressureUnit: o.disp.pressureUnit, Skeleton: o.skeleton})
+		files, err := res.MechanismFiles(job.FileOptions{Units: o.units, PressureUnit: o.disp.pressureUnit, Skeleton: o.skeleton, WriteFailed: o.writeFailed})
 		if err != nil {
 			return nil, err
+		}
+		if !o.quiet && !slices.ContainsFunc(files, func(f job.File) bool { return f.Name == "reactions.yaml" }) {
+			fmt.Fprintln(s.err, "warning: no reactions.yaml written: no fitted form meets the tolerance for every reaction (hint: see the fit table; --write-failed writes the best form marked FAILED, or raise --tolerance)")
 		}
 		for _, f := range files {
 			set.Add(filepath.Join(o.out, f.Name), f.Data)
 		}
 	}
 	if o.plots != "" {
-		if err := addRatePlots(set, o.plots, n, res, o.disp); err != nil {
+		if err := addRatePlots(set, o.plots, n, res, o.disp, o.plotTemps); err != nil {
 			return nil, err
 		}
 	}
@@ -252,20 +279,15 @@ func printRates(s streams, title string, res *job.RatesResult, files []string, d
 	}
 	if res.Fits != nil {
 		fmt.Fprintf(s.out, "\nfits to the grid (%s, k in %s):\n", res.Direction, res.KUnits)
-		if err := renderTable(s.out, fitHeader, fitRows(res.Fits)); err != nil {
+		if err := printFits(s, res.Fits, d); err != nil {
 			return err
-		}
-		if res.Fits.Recommended != "" {
-			fmt.Fprintf(s.out, "recommended: %s (%s)\n", res.Fits.Recommended, res.Fits.Reason)
-		} else {
-			fmt.Fprintf(s.out, "no form meets the tolerance: %s\n", res.Fits.Reason)
 		}
 		for _, c := range res.Channels {
 			if c.Fits == nil {
 				continue
 			}
 			fmt.Fprintf(s.out, "\nfits to channel %s:\n", c.Name)
-			if err := renderTable(s.out, fitHeader, fitRows(c.Fits)); err != nil {
+			if err := printFits(s, c.Fits, d); err != nil {
 				return err
 			}
 		}

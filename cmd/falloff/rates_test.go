@@ -206,7 +206,7 @@ func TestRatesConvergenceCheckEdges(t *testing.T) {
 			"  model: exponential-down\n  alpha-300: 200 cm-1\n  alpha-exponent: 0.8\n", "  model: strong-collider\n")},
 		{"grain below twice the fine grain", strong("grain.yaml", "../../testdata/demo.yaml",
 			"  model: exponential-down\n  alpha-300: 250 cm-1\n  alpha-exponent: 0.85\n", "  model: strong-collider\n",
-			"points: 12}", "points: 2}",
+			"points: 16}", "points: 2}",
 			"fits: [troe, plog, chebyshev]", "energy-grid: {fine-grain: 10 cm-1, master-equation-grain: 15 cm-1}")},
 	}
 	for _, tc := range cases {
@@ -248,7 +248,7 @@ func TestSeparationWarning(t *testing.T) {
 		args []string
 		want string // "" for no warning
 	}{
-		{[]string{"rates", "--json", "--skip-check"}, "at 2500 K the low-pressure rate is more than 0.1 of the collision rate"},
+		{[]string{"rates", "--json", "--skip-check", "../../testdata/catalogue-base.yaml"}, "at 2500 K the low-pressure rate is more than 0.1 of the collision rate"},
 		{[]string{"rates", "--json", "--skip-check", ch3ncFile}, ""},
 	} {
 		code, out, errs := runCLI(t, tc.args...)

@@ -66,7 +66,7 @@ func verbs() []verb {
 		{"micro", "RRKM k(E) and its thermal average beside canonical k∞(T)", runMicroCmd, false},
 		{"rates", "master-equation k(T,P) on the temperature and pressure grid", runRatesCmd, true},
 		{"compare", "the grid under strong-collider and exponential-down models side by side", runCompareCmd, true},
-		{"fit", "fit Arrhenius, falloff, PLOG and Chebyshev forms to a k(T,P) table (CSV)", runFitCmd, false},
+		{"fit", "fit Arrhenius, falloff, PLOG and Chebyshev forms to a k(T,P) table (CSV)", runFitCmd, true},
 		{"example", "print the built-in demo input (edit it to make your own)", runExampleCmd, false},
 	}
 }

@@ -574,3 +574,31 @@ func TestRateFactorAndLabel(t *testing.T) {
 		}
 	}
 }
+
+// The keyword text is plain ASCII (old mechanism parsers read bytes): the
+// symbols of the header and the notes are spelled out, and every line,
+// counted in bytes, stays within 80 characters.
+func TestTextIsASCII(t *testing.T) {
+	h := Header{Title: "Ring ⟨ΔE⟩down", Input: "in.yaml", Checksum: "sha256:0", Program: "falloff test",
+		TMin: 300, TMax: 2000, PMin: 100, PMax: 1e8,
+		Lines: []string{"Collision model: exponential-down, ⟨ΔE⟩down = 250 cm-1 × (T/300 K)^0.85; k∞ and k0 held, ρ(E) counted, κ applied, 12 Å — all ≤ 1 %, σ ε ν μ ‡ ½ ∮"}}
+	f := &fit.Arrhenius{A: 1e13, N: 0, Ta: 20000}
+	b, err := Text(h, DefaultUnits, []Reaction{{Reactants: []string{"A"}, Products: []string{"B"}, Order: 1, Form: f, Note: "k∞ fit, Δ ≤ 1 %"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, l := range strings.Split(string(b), "\n") {
+		if len(l) > 80 {
+			t.Errorf("line %d has %d bytes", i+1, len(l))
+		}
+		for _, r := range l {
+			if r > 127 {
+				t.Errorf("line %d is not ASCII: %q", i+1, l)
+				break
+			}
+		}
+	}
+	if !strings.Contains(string(b), "<dE>down") || !strings.Contains(string(b), "kinf") || !strings.Contains(string(b), "?") {
+		t.Errorf("symbols not spelled out:\n%s", b)
+	}
+}

@@ -42,7 +42,7 @@ func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
 	u = u.withDefaults()
 	var b bytes.Buffer
 	for _, l := range h.lines() {
-		for _, w := range wrap(l, maxLine-2) {
+		for _, w := range wrap(asciiText(l), maxLine-2) {
 			fmt.Fprintf(&b, "! %s\n", w)
 		}
 	}
@@ -52,7 +52,7 @@ func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
 			return nil, err
 		}
 		if r.Note != "" {
-			for _, w := range wrap(r.Note, maxLine-2) {
+			for _, w := range wrap(asciiText(r.Note), maxLine-2) {
 				fmt.Fprintf(&b, "! %s\n", w)
 			}
 		}
@@ -114,4 +114,31 @@ func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
 		}
 	}
 	return b.Bytes(), nil
+}
+
+// asciiSpelling spells the symbols our comments use in plain ASCII: the
+// keyword text is read by old parsers that expect it (the reactions
+// themselves are ASCII already).
+var asciiSpelling = strings.NewReplacer(
+	"∞", "inf", "⟨", "<", "⟩", ">", "Δ", "d", "×", "x", "‡", "TS", "·", "*",
+	"α", "alpha", "β", "beta", "σ", "sigma", "ε", "eps", "κ", "kappa", "ν", "nu",
+	"μ", "mu", "ρ", "rho", "½", "1/2", "≤", "<=", "≥", ">=", "−", "-", "–", "-", "—", "-",
+	"⁻", "-", "¹", "1", "²", "2", "³", "3", "⁶", "6", "Å", "angstrom", "°", " deg",
+)
+
+// asciiText returns s with every character outside ASCII spelled by
+// asciiSpelling, or replaced by '?' if it has no spelling there.
+func asciiText(s string) string {
+	s = asciiSpelling.Replace(s)
+	for _, r := range s {
+		if r > 127 {
+			return strings.Map(func(r rune) rune {
+				if r > 127 {
+					return '?'
+				}
+				return r
+			}, s)
+		}
+	}
+	return s
 }

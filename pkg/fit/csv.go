@@ -66,6 +66,13 @@ const minCSVRows = 3
 
 const headerExample = "T/K,P/atm,k/s-1"
 
+// replicateMaxRatio is the largest factor by which replicates (rows with
+// the same T and P) may differ in a table without uncertainties: beyond
+// a factor of 10 a row is far more likely mistyped (an exponent, a unit)
+// than a measurement, and an unweighted fit would average the two.
+// (Common practice, no source.)
+const replicateMaxRatio = 10.0
+
 // headerRE splits "name/unit", "name [unit]" and "name (unit)".
 var headerRE = regexp.MustCompile(`^\s*([A-Za-z_]+)\s*(?:/\s*(.*?)|\[\s*(.*?)\s*\]|\(\s*(.*?)\s*\))?\s*$`)
 
@@ -87,7 +94,9 @@ const (
 //	sigma      optional relative uncertainty of k as a fraction (0.05), or
 //	sigma/%, uncertainty/%  the same in per cent (5)
 //
-// "name [unit]" and "name (unit)" are accepted too. A UTF-8 byte-order mark
+// "name [unit]" and "name (unit)" are accepted too. Rows with the same T
+// and P are replicates, all kept; without an uncertainty column they must
+// agree within a factor of 10 (replicateMaxRatio). A UTF-8 byte-order mark
 // at the start (as spreadsheet programs write) is skipped. name is used in
 // error messages. Every error is a *CSVError naming the line and column.
 func ReadCSV(name string, r io.Reader) (*Table, error) {
@@ -185,8 +194,15 @@ func ReadCSV(name string, r io.Reader) (*Table, error) {
 		}
 	}
 
+	// Replicates (the same T and P on several rows) are kept; without an
+	// uncertainty column they must agree within replicateMaxRatio.
 	type key struct{ T, P float64 }
-	seen := map[key]int{}
+	type rep struct {
+		lo, hi         float64 // smallest and largest k so far
+		loLine, hiLine int
+	}
+	seen := map[key]*rep{}
+	_, weighted := have[colSigma]
 	for {
 		rec, err := cr.Read()
 		if err == io.EOF {
@@ -250,10 +266,27 @@ func ReadCSV(name string, r io.Reader) (*Table, error) {
 			}
 		}
 		k := key{pt.T, pt.P}
-		if l, dup := seen[k]; dup {
-			return nil, fail(line, 0, "", strings.Join(rec, ","), fmt.Errorf("same T and P as line %d", l), "give each (T, P) point once")
+		if r, dup := seen[k]; !dup {
+			seen[k] = &rep{pt.K, pt.K, line, line}
+		} else {
+			if !weighted {
+				other, l := r.lo, r.loLine
+				if pt.K < r.lo {
+					other, l = r.hi, r.hiLine
+				}
+				if f := math.Max(pt.K/other, other/pt.K); f > replicateMaxRatio {
+					return nil, fail(line, 0, "", strings.Join(rec, ","),
+						fmt.Errorf("k differs by a factor %.3g from the replicate on line %d (same T and P), more than the %g that replicates without uncertainties may differ", f, l, replicateMaxRatio),
+						"check that row's number and units, or add a sigma column so that the fits weigh the scatter")
+				}
+			}
+			if pt.K < r.lo {
+				r.lo, r.loLine = pt.K, line
+			}
+			if pt.K > r.hi {
+				r.hi, r.hiLine = pt.K, line
+			}
 		}
-		seen[k] = line
 		t.Points = append(t.Points, pt)
 	}
 	if len(t.Points) < minCSVRows {

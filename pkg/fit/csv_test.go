@@ -33,6 +33,8 @@ func TestReadCSVGood(t *testing.T) {
 		{"sigma fraction", "T/K,P/kPa,k/s-1,sigma\n300,100,1,0.1\n400,100,2,0.2\n500,100,3,0.1\n", "s-1", Point{T: 300, P: 1e5, K: 1, Sigma: 0.1}, 3},
 		{"uncertainty per cent", "T/K,P/hPa,k/s-1,uncertainty/%\n300,1000,1,10\n400,1000,2,20\n500,1000,3,10\n", "s-1", Point{T: 300, P: 1e5, K: 1, Sigma: 0.1}, 3},
 		{"Pa and mbar", "T/K,P/mbar,k/s-1\n300,1000,1\n400,1000,2\n500,1000,3\n", "s-1", Point{T: 300, P: 1e5, K: 1}, 3},
+		{"replicates", "T/K,P/atm,k/s-1\n300,1,1\n300,1,2\n500,1,3\n", "s-1", Point{T: 300, P: units.AtmPa, K: 1}, 3},
+		{"replicates 25x apart with uncertainties", "T/K,P/atm,k/s-1,sigma\n300,1,1,0.5\n300,1,25,0.5\n500,1,3,0.5\n", "s-1", Point{T: 300, P: units.AtmPa, K: 1, Sigma: 0.5}, 3},
 		{"byte-order mark (spreadsheet export)", "\ufeffT/K,P/atm,k/s-1\r\n300,1,2.5e3\r\n400,1,3e3\r\n500,2,4e3\r\n", "s-1", Point{T: 300, P: units.AtmPa, K: 2.5e3}, 3},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -77,7 +79,7 @@ func TestReadCSVBad(t *testing.T) {
 		{"a word for a number", "T/K,P/atm,k/s-1\n300,1,1\n400,1,fast\n500,1,3\n", []string{"in.csv:3", "column 3 (k/s-1)", `"fast"`, "write a plain number"}},
 		{"mixed fields", "T/K,P/atm,k/s-1\n300,1,1\n400,1,2,5\n500,1,3\n", []string{"in.csv:3", "4 fields, the header has 3"}},
 		{"decimal comma", "T/K,P/atm,k/s-1\n300,1,1\n400,1,2,5\n", []string{"in.csv:3", "decimal commas"}},
-		{"duplicate point", "T/K,P/atm,k/s-1\n300,1,1\n300,1,2\n500,1,3\n", []string{"in.csv:3", "same T and P as line 2"}},
+		{"replicates 10x apart without uncertainties", "T/K,P/atm,k/s-1\n300,1,1\n300,1,2\n300,1,25\n500,1,3\n", []string{"in.csv:4", `"300,1,25"`, "factor 25", "line 2", "sigma column"}},
 		{"zero pressure", "T/K,P/atm,k/s-1\n300,0,1\n400,1,2\n500,1,3\n", []string{"in.csv:2", "column 2", "pressure must be positive"}},
 		{"uncertainty without unit", "T/K,P/atm,k/s-1,uncertainty\n300,1,1,5\n", []string{"in.csv:1", "column 4", "uncertainty/%"}},
 		{"duplicate column", "T/K,P/atm,P/bar,k/s-1\n300,1,1,1\n", []string{"in.csv:1", "column 3", "same quantity as column 2"}},

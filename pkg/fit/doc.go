@@ -14,7 +14,8 @@
 // F = 1 (Lindemann), the broadening of Gilbert, Luther & Troe (Ber.
 // Bunsenges. Phys. Chem. 87, 169, 1983) or of Stewart, Larson & Golden
 // (Combust. Flame 75, 25, 1989, "SRI"); PLOG, log k linear in log P between
-// tabulated pressures, each a sum of Arrhenius terms; and Chebyshev series of
+// tabulated pressures (measured pressures within Options.GroupTol are one),
+// each a sum of Arrhenius terms; and Chebyshev series of
 // log10 k in reduced 1/T and log P, in Cantera's conventions (rows are the
 // temperature index).
 //
@@ -25,7 +26,12 @@
 // misses the tolerance; Chebyshev by linear least squares in log10 k. All
 // fits weight ln k by 1/σ when the table gives relative uncertainties σ.
 // Each fit returns a Report of its relative errors over the table and the
-// range of the data; FitAll fits several forms and Recommend picks one.
+// range of the data, its held-out error (HeldOut: at extra points off the
+// table, Options.Holdout, or by leaving whole interior rows and columns
+// out), which chooses the Chebyshev order and PLOG's second terms, and,
+// with uncertainties, a χ² test against them (Scatter). Options.Fix holds
+// parameters a user fixes. FitAll fits several forms and Recommend picks
+// one.
 // Forms are named by FormName (FormTroe, …) and each fitted form is a Form:
 // it evaluates k(T,P) and gives its name, parameter count and a one-line
 // description.

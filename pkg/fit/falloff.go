@@ -11,23 +11,59 @@ import (
 // Limits are known low- and high-pressure limits, e.g. from the master
 // equation and the canonical k∞. Give either per-temperature values, in
 // the order of Table.Temperatures(), or Arrhenius expressions (which take
-// precedence). K0 and Low are in k units × cm³ molecule⁻¹, KInf and High
-// in k units.
+// precedence as the limits the fit uses; per-temperature values given as
+// well are then only the reference of the departure report). K0 and Low
+// are in k units × cm³ molecule⁻¹, KInf and High in k units.
+//
+// By default the falloff fits hold k0 and k∞ to the Arrhenius fits of the
+// given limits and fit only the broadening. Free lets them move: if the
+// held fit fails (see Report.Failed), k0 and k∞ are refitted with the
+// broadening and the result says LimitsRefined. Either way the result
+// reports how far the exported limits depart from the given ones.
 type Limits struct {
 	K0, KInf  []float64
 	Low, High *Arrhenius
+	Free      bool
 }
 
-// Broadening bounds of the falloff fits. Troe's T3, T1 and T2 stay in
-// [1 K, 1e10 K]: below 1 K or above 1e10 K their exponentials are 0 or 1
-// to double precision at any temperature a mechanism covers, so nothing is
-// lost. A stays in [0, 1], which keeps Fcent positive and is the range of
-// its meaning (the weight of the high-temperature term). SRI's a stays in
-// [1e-8, 1e8], b in [−5000 K, 50000 K] (so exp(−b/T) cannot overflow
-// above 10 K), c in [1 K, 1e10 K], d in [0.1, 10] and e in [−3, 3].
+// Range of Troe's T3 (T***), T1 (T*) and T2 (T**) and of SRI's c: 10 K to
+// 1e5 K. The Fcent terms exp(−T/T3), exp(−T/T1) and exp(−T2/T) describe a
+// temperature dependence only while their temperature is within a factor
+// of about 30 of the temperatures a mechanism covers (about 200–3000 K).
+// At 10 K, exp(−T/T3) is 2e-9 or less from 200 K up (the term is gone) and
+// exp(−T2/T) above 0.95 (a constant); at 1e5 K, exp(−T/T1) stays above
+// 0.97 up to 3000 K (a constant) and exp(−T2/T) below 4e-15 (gone).
+// Beyond these ends a parameter no longer describes anything the data can
+// fix; it only switches a term off or makes it constant, which the
+// simpler broadenings (constant Fcent, three parameters) say directly. A
+// fitted value at an end is therefore a bound hit (see boundHits) and
+// fails the fit. Published values lie inside: GRI-Mech 3.0 (Smith et al.,
+// 1999) has 73.2–9999 K for H+CH3 and 2CH3 (gri_test.go).
+const (
+	broadTMin = 10.0 // K
+	broadTMax = 1e5  // K
+)
+
+// Troe parameters that write a constant Fcent = A in Troe form: with T3 =
+// 1e-30 K and T1 = 1e30 K, (1−A)·exp(−T/T3) = 0 and A·exp(−T/T1) = A to
+// double precision at any temperature from 1e-27 K to 1e13 K, in every
+// reader of Troe parameters (common practice in published mechanisms, no
+// source). These are conventions, not fitted values, and lie outside the
+// fitted range on purpose.
+const (
+	troeConstT3 = 1e-30 // K
+	troeConstT1 = 1e30  // K
+)
+
+// Broadening bounds of the falloff fits. Troe's T3, T1 and T2 and SRI's c
+// stay in [broadTMin, broadTMax] (see there). A stays in [0, 1], which
+// keeps Fcent positive and is the range of its meaning (the weight of the
+// high-temperature term); the constant Fcent is also in [0, 1]. SRI's a
+// stays in [1e-8, 1e8], b in [−5000 K, 50000 K] (so exp(−b/T) cannot
+// overflow above 10 K), d in [0.1, 10] and e in [−3, 3].
 var (
 	boundA    = bound{0, 1}
-	boundLnT  = bound{0, math.Log(1e10)}
+	boundLnT  = bound{math.Log(broadTMin), math.Log(broadTMax)}
 	boundLnSa = bound{math.Log(1e-8), math.Log(1e8)}
 	boundSb   = bound{-5000, 50000}
 	boundLnSd = bound{math.Log(0.1), math.Log(10)}
@@ -35,11 +71,19 @@ var (
 	ln10      = math.Log(10)
 )
 
+// boundEffectFrac is the fraction of the tolerance below which a
+// parameter counts as sitting on an end of its range: if setting it to
+// that end changes no k of the table by more than 1 % of what the fit may
+// miss by, the data do not place it inside the range, and the value is
+// the bound's, not the data's (see boundHits).
+const boundEffectFrac = 0.01
+
 // falloffKind is the broadening of a falloff fit.
 type falloffKind int
 
 const (
 	kindLindemann falloffKind = iota
+	kindTroeConst             // constant Fcent, written in Troe form
 	kindTroe3
 	kindTroe4
 	kindSRI3
@@ -48,7 +92,19 @@ const (
 
 // nBroad returns the number of broadening parameters.
 func (k falloffKind) nBroad() int {
-	return [...]int{0, 3, 4, 3, 5}[k]
+	return [...]int{0, 1, 3, 4, 3, 5}[k]
+}
+
+// isTroe reports a Troe broadening (constant Fcent included).
+func (k falloffKind) isTroe() bool { return k == kindTroeConst || k == kindTroe3 || k == kindTroe4 }
+
+// ladders are the broadenings FitFalloff tries for each form, simplest
+// first; the first that meets the tolerance with no parameter on a bound
+// is the fit.
+var ladders = map[FormName][]falloffKind{
+	FormLindemann: {kindLindemann},
+	FormTroe:      {kindTroeConst, kindTroe3, kindTroe4},
+	FormSRI:       {kindSRI3, kindSRI5},
 }
 
 // fpoint is a table point as the falloff model uses it.
@@ -94,8 +150,13 @@ type broadening struct {
 	lnD float64    // SRI: ln d + e ln T
 }
 
-// troeParams returns the Troe parameters of coordinates v.
+// troeParams returns the Troe parameters of coordinates v: one
+// coordinate is the constant Fcent, three or four the Troe parameters.
 func troeParams(v []float64) Troe {
+	if len(v) == 1 {
+		a, _ := boundA.val(v[0])
+		return Troe{A: a, T3: troeConstT3, T1: troeConstT1}
+	}
 	a, _ := boundA.val(v[0])
 	l3, _ := boundLnT.val(v[1])
 	l1, _ := boundLnT.val(v[2])
@@ -107,8 +168,12 @@ func troeParams(v []float64) Troe {
 	return tr
 }
 
-// troeCoords returns the coordinates of tr (n = 3 or 4).
+// troeCoords returns the coordinates of tr (n = 1 for a constant Fcent
+// = tr.A, 3 or 4).
 func troeCoords(tr Troe, n int) []float64 {
+	if n == 1 {
+		return []float64{boundA.inv(tr.A)}
+	}
 	v := []float64{boundA.inv(tr.A), boundLnT.inv(math.Log(tr.T3)), boundLnT.inv(math.Log(tr.T1))}
 	if n == 4 {
 		v = append(v, boundLnT.inv(math.Log(tr.T2)))
@@ -146,6 +211,9 @@ func sriCoords(s SRI, n int) []float64 {
 func (m *falloffModel) perT(T float64, v []float64) broadening {
 	var b broadening
 	switch m.kind {
+	case kindTroeConst:
+		a, da := boundA.val(v[0])
+		b.fc, b.dfc[0] = a, da
 	case kindTroe3, kindTroe4:
 		// Fcent = (1−A)exp(−T/T3) + A·exp(−T/T1) + exp(−T2/T)
 		// (Gilbert, Luther & Troe 1983).
@@ -219,7 +287,7 @@ func (m *falloffModel) residuals(x, r []float64, jac *mat.Dense) {
 		var dF [5]float64  // ∂ln F/∂v
 		b := &bs[p.iT]
 		switch m.kind {
-		case kindTroe3, kindTroe4:
+		case kindTroeConst, kindTroe3, kindTroe4:
 			// log F = log Fcent/(1 + y²), y = x/(N − 0.14x), x = log Pr + c,
 			// c = −0.4 − 0.67 log Fcent, N = 0.75 − 1.27 log Fcent
 			// (Gilbert, Luther & Troe 1983).
@@ -276,6 +344,9 @@ func (m *falloffModel) residuals(x, r []float64, jac *mat.Dense) {
 func (m *falloffModel) form() Falloff {
 	f := Falloff{Low: m.nodes.arrhenius(m.z[0:3]), High: m.nodes.arrhenius(m.z[3:6])}
 	switch m.kind {
+	case kindTroeConst:
+		tr := troeParams(m.z[6:])
+		f.Troe = &tr
 	case kindTroe3, kindTroe4:
 		tr := troeParams(m.z[6:])
 		// (A, T3, T1) and (1−A, T1, T3) give the same Fcent; write the
@@ -307,14 +378,32 @@ func (m *falloffModel) fit(free []int, starts [][]float64) error {
 }
 
 // FalloffResult is a fitted Lindemann, Troe or SRI form with its report.
-// LimitsRefined tells that supplied limits were refitted with the
-// broadening because the fit with them held fixed missed the tolerance.
+//
+// Broadening says in words which broadening was chosen ("constant Fcent
+// = 0.5", "three-parameter Troe", …). With limits given, LimitDeparture
+// gives at each temperature of the table the ratio of the exported k0 and
+// k∞ to the given ones, and MaxLimitDeparture the largest factor between
+// them: with held limits this is the error of their Arrhenius fits, with
+// Limits.Free also how far the fit moved them. LimitsRefined tells that
+// the limits were refitted with the broadening (only with Limits.Free).
 type FalloffResult struct {
 	Falloff
-	LowUnits      string `json:"low_units"` // units of Low.A·T^n, i.e. of k0
-	LimitsRefined bool   `json:"limits_refined,omitempty"`
+	LowUnits          string           `json:"low_units"` // units of Low.A·T^n, i.e. of k0
+	Broadening        string           `json:"broadening"`
+	LimitsRefined     bool             `json:"limits_refined,omitempty"`
+	LimitDeparture    []LimitDeparture `json:"limit_departure,omitempty"`
+	MaxLimitDeparture float64          `json:"max_limit_departure,omitempty"` // max over T of max(r, 1/r), ≥ 1
 	Report
 	kind falloffKind
+	hits []string // parameters on a bound, in words
+}
+
+// LimitDeparture compares the exported limits with the given ones at one
+// temperature: K0Ratio = k0(exported)/k0(given), KInfRatio likewise.
+type LimitDeparture struct {
+	T         float64 `json:"T_K"`
+	K0Ratio   float64 `json:"k0_ratio"`
+	KInfRatio float64 `json:"kinf_ratio"`
 }
 
 // FitFalloff fits a Lindemann, Troe or SRI form (kind FormLindemann,
@@ -324,14 +413,17 @@ type FalloffResult struct {
 //   - k0 and k∞ are modified Arrhenius expressions. Without opt.Limits
 //     they start from Lindemann extrapolations of the two lowest and two
 //     highest pressures at each temperature and are fitted jointly with
-//     the broadening. With opt.Limits they are the Arrhenius fits of the
-//     supplied limits and are held while the broadening is fitted; only if
-//     that misses opt.Tolerance are they refitted with the broadening, kept
-//     if that lowers the maximum error by at least a tenth, and the result
-//     says LimitsRefined.
-//   - The broadening is fitted from several starts; Troe's T2 and SRI's d,
-//     e are added only if the simpler form misses the tolerance and adding
-//     them lowers the maximum error by at least a tenth.
+//     the broadening. With opt.Limits they are held to the Arrhenius fits
+//     of the supplied limits and only the broadening is fitted; with
+//     Limits.Free they are refitted with the broadening if the held fit
+//     fails, kept if that fit passes or, the held one missing the
+//     tolerance, lowers the maximum error by at least a tenth, and the
+//     result says LimitsRefined.
+//   - The broadening is the simplest that meets opt.Tolerance with no
+//     parameter on the end of its range (see boundHits): Troe tries a
+//     constant Fcent, then three parameters, then four (T2); SRI three,
+//     then five (d, e). If none passes, the result is marked Failed with
+//     the reasons (see fitLadder for which is returned).
 //
 // The table needs at least 3 temperatures, 2 pressures and more points
 // than parameters.
@@ -340,15 +432,8 @@ func FitFalloff(t *Table, kind FormName, opt Options) (*FalloffResult, error) {
 	if err := t.Validate(); err != nil {
 		return nil, err
 	}
-	var base falloffKind
-	switch kind {
-	case FormLindemann:
-		base = kindLindemann
-	case FormTroe:
-		base = kindTroe3
-	case FormSRI:
-		base = kindSRI3
-	default:
+	ladder, ok := ladders[kind]
+	if !ok {
 		panic(fmt.Sprintf("fit: FitFalloff: unknown kind %q", kind))
 	}
 	temps, press := t.Temperatures(), t.Pressures()
@@ -360,56 +445,91 @@ func FitFalloff(t *Table, kind FormName, opt Options) (*FalloffResult, error) {
 		return nil, fmt.Errorf("%w: %s: a %s fit needs at least 2 pressures to see the falloff; the table has %d (%g Pa)",
 			ErrTooFewData, t.name(), kind, len(press), press[0])
 	}
-	if n := 6 + base.nBroad(); len(t.Points) <= n {
+	if n := 6 + ladder[0].nBroad(); len(t.Points) <= n {
 		return nil, fmt.Errorf("%w: %s: a %s fit has %d parameters; the table has only %d points", ErrTooFewData, t.name(), kind, n, len(t.Points))
 	}
-	low, high, given, err := startLimits(t, temps, opt.Limits)
+	lim, err := resolveLimits(t, temps, opt.Limits)
 	if err != nil {
 		return nil, err
 	}
 
-	best, err := fitStage(t, base, low, high, given, broadStarts(base))
+	best, tried, err := fitLadder(t, ladder, lim.low, lim.high, lim.given, nil, opt.Tolerance)
+	if lim.given && opt.Limits.Free && (err != nil || best.Failed) {
+		// Refit the limits with the broadening, starting from the given
+		// ones and from each held broadening.
+		seeds := map[falloffKind][]float64{}
+		for _, r := range tried {
+			seeds[r.kind] = broadCoords(r)
+		}
+		free, _, ferr := fitLadder(t, ladder, lim.low, lim.high, false, seeds, opt.Tolerance)
+		if ferr == nil && (err != nil || !free.Failed || best.MaxError() > opt.Tolerance && free.MaxErrorPct < 0.9*best.MaxErrorPct) {
+			free.LimitsRefined = true
+			best, err = free, nil
+		}
+	}
 	if err != nil {
 		return nil, err
 	}
-	// More parameters must buy a tenth of the error at least: less is not
-	// worth carrying into a mechanism, nor worth leaving given limits for.
-	better := func(r *FalloffResult, err error) {
-		if err == nil && r.MaxErrorPct < 0.9*best.MaxErrorPct {
-			best = r
-		}
-	}
-	extend := func(r *FalloffResult, hold bool) {
-		if r.MaxError() > opt.Tolerance && (r.kind == kindTroe3 || r.kind == kindSRI3) {
-			better(fitStage(t, r.kind+1, r.Low, r.High, hold, extendedStarts(r)))
-		}
-	}
-	extend(best, given)
-	if given && best.MaxError() > opt.Tolerance {
-		// Refit the given limits with the broadening, as without limits
-		// but starting from them.
-		starts := broadStarts(base)
-		if best.kind == base {
-			starts = append(starts, broadCoords(best))
-		}
-		r, err := fitStage(t, base, low, high, false, starts)
-		if err == nil {
-			r.LimitsRefined = true
-			held := best
-			better(r, nil)
-			if best != held {
-				extend(best, false)
-				best.LimitsRefined = true
-			}
-		}
-	}
 	best.LowUnits = t.KUnits + " cm3/molecule"
+	best.Broadening = broadeningWords(&best.Falloff)
+	if lim.given {
+		best.LimitDeparture, best.MaxLimitDeparture = limitDeparture(&best.Falloff, temps, lim.k0, lim.kinf)
+		if !finite(best.MaxLimitDeparture) {
+			return nil, fmt.Errorf("%w: %s: the fitted limits differ from the given ones by a factor beyond float64 range; check the limits' units (k0 in %s cm3/molecule, k∞ in %s)",
+				ErrBadData, t.name(), t.KUnits, t.KUnits)
+		}
+	}
 	return best, nil
 }
 
+// fitLadder fits the broadenings kinds in turn, from limits low and high
+// (held if hold), and returns the first that passes (Report.Failed
+// false) and every result it tried. If none passes it returns the
+// simplest that is within the tolerance (and failed on a bound only) or
+// whose maximum error no later one lowers by a tenth: more parameters
+// must buy that much at least to be worth carrying into a mechanism.
+// seeds are extra starting coordinates per kind.
+func fitLadder(t *Table, kinds []falloffKind, low, high Arrhenius, hold bool, seeds map[falloffKind][]float64, tol float64) (*FalloffResult, []*FalloffResult, error) {
+	var tried []*FalloffResult
+	var prev *FalloffResult
+	var lastErr error
+	for _, k := range kinds {
+		if n := 6 + k.nBroad(); len(t.Points) <= n {
+			lastErr = fmt.Errorf("%w: %s: a fit with %d parameters needs more than %d points", ErrTooFewData, t.name(), n, len(t.Points))
+			continue
+		}
+		starts := ladderStarts(k, prev)
+		if s, ok := seeds[k]; ok {
+			starts = append(starts, s)
+		}
+		r, err := fitStage(t, k, low, high, hold, starts)
+		if err != nil {
+			lastErr = err
+			continue
+		}
+		r.hits = boundHits(t, &r.Falloff, k, tol)
+		r.judge(tol, r.hits...)
+		tried = append(tried, r)
+		if !r.Failed {
+			return r, tried, nil
+		}
+		prev = r
+	}
+	if len(tried) == 0 {
+		return nil, nil, lastErr
+	}
+	best := tried[0]
+	for _, r := range tried[1:] {
+		if best.MaxError() > tol && r.MaxErrorPct < 0.9*best.MaxErrorPct {
+			best = r
+		}
+	}
+	return best, tried, nil
+}
+
 // fitStage fits one kind of broadening from starting limits low and high
-// and the broadening starts (coordinates). With hold the limits stay as
-// given and only the broadening is fitted.
+// and the broadening starts (coordinates). With hold the limits stay
+// exactly low and high and only the broadening is fitted.
 func fitStage(t *Table, kind falloffKind, low, high Arrhenius, hold bool, broad [][]float64) (*FalloffResult, error) {
 	m, err := newFalloffModel(t, kind)
 	if err != nil {
@@ -442,13 +562,73 @@ func fitStage(t *Table, kind falloffKind, low, high Arrhenius, hold bool, broad 
 			return nil, err
 		}
 	}
-	return falloffResult(t, m)
+	var held *[2]Arrhenius
+	if hold {
+		held = &[2]Arrhenius{low, high}
+	}
+	return falloffResult(t, m, held)
 }
 
-// broadStarts returns the starting broadening coordinates of a fit from
-// scratch: Troe A ∈ {0.3, 0.7} × T3 ∈ {100, 1000} K × T1 ∈ {1000, 10000} K,
-// spanning the values of published fits; SRI a ∈ {0.5, 5} × b ∈ {200,
-// 2000} K × c ∈ {300, 3000} K.
+// ladderStarts returns the starting broadening coordinates of kind, after
+// the fit prev of the simpler kind before it on the ladder (nil if there
+// was none or it did not converge).
+//
+//   - Constant Fcent: 0.2, 0.5, 0.8.
+//   - Three-parameter Troe: A ∈ {0.3, 0.7} × T3 ∈ {100, 1000} K × T1 ∈
+//     {1000, 10000} K, spanning the values of published fits, and from a
+//     constant Fcent a: A = a, T3 = 20 K, T1 = 5e4 K, nearly that constant.
+//   - Four-parameter Troe: the three-parameter fit with T2 ∈ {1000, 3000,
+//     10000} K; if that fit sat on a bound or is missing, also the
+//     freshStarts with T2 = 3000 K, so the search can leave the bound.
+//   - SRI: a ∈ {0.5, 5} × b ∈ {200, 2000} K × c ∈ {300, 3000} K; the
+//     five-parameter form from the three-parameter fit with d = 1, e = 0,
+//     and likewise from the freshStarts if that sat on a bound.
+func ladderStarts(kind falloffKind, prev *FalloffResult) [][]float64 {
+	var out [][]float64
+	switch kind {
+	case kindTroeConst:
+		for _, a := range []float64{0.2, 0.5, 0.8} {
+			out = append(out, troeCoords(Troe{A: a}, 1))
+		}
+	case kindTroe3:
+		out = broadStarts(kindTroe3)
+		if prev != nil && prev.kind == kindTroeConst {
+			out = append(out, troeCoords(Troe{A: prev.Troe.A, T3: 2 * broadTMin, T1: broadTMax / 2}, 3))
+		}
+	case kindTroe4:
+		if prev != nil && prev.kind == kindTroe3 {
+			for _, t2 := range []float64{1000, 3000, 10000} {
+				tr := *prev.Troe
+				tr.T2, tr.HasT2 = t2, true
+				out = append(out, troeCoords(tr, 4))
+			}
+		}
+		if prev == nil || prev.kind != kindTroe3 || len(prev.hits) > 0 {
+			for _, v := range freshStarts(kindTroe3) {
+				out = append(out, append(v, boundLnT.inv(math.Log(3000))))
+			}
+		}
+	case kindSRI3:
+		out = broadStarts(kindSRI3)
+	case kindSRI5:
+		extend := func(s SRI) []float64 {
+			s.D, s.E = 1, 0
+			return sriCoords(s, 5)
+		}
+		if prev != nil && prev.kind == kindSRI3 {
+			out = append(out, extend(*prev.SRI))
+		}
+		if prev == nil || prev.kind != kindSRI3 || len(prev.hits) > 0 {
+			for _, v := range freshStarts(kindSRI3) {
+				out = append(out, extend(sriParams(v)))
+			}
+		}
+	}
+	return out
+}
+
+// broadStarts returns the starting coordinates of a three-parameter Troe
+// or SRI fit from scratch (see ladderStarts).
 func broadStarts(kind falloffKind) [][]float64 {
 	var out [][]float64
 	switch kind {
@@ -472,40 +652,42 @@ func broadStarts(kind falloffKind) [][]float64 {
 	return out
 }
 
-// extendedStarts returns the starts of the extended kind from the simpler
-// fit: T2 ∈ {1000, 3000, 10000} K for Troe; d = 1, e = 0 for SRI.
-func extendedStarts(prev *FalloffResult) [][]float64 {
-	switch prev.kind + 1 {
-	case kindTroe4:
-		var out [][]float64
-		for _, t2 := range []float64{1000, 3000, 10000} {
-			tr := *prev.Troe
-			tr.T2, tr.HasT2 = t2, true
-			out = append(out, troeCoords(tr, 4))
+// freshStarts returns half of broadStarts, the other parameters on the
+// diagonal (Troe T3, T1 = 100, 1000 K or 1000, 10000 K; SRI b, c = 200,
+// 300 K or 2000, 3000 K): the restarts of the extended forms when the
+// simpler fit sat on a bound. Half, because a run that ends on a bound
+// takes some twenty times as long as one that does not, and these
+// restarts are for the fits that do.
+func freshStarts(kind falloffKind) [][]float64 {
+	all := broadStarts(kind)
+	var out [][]float64
+	for i, v := range all {
+		if i%4 == 0 || i%4 == 3 {
+			out = append(out, v)
 		}
-		return out
-	case kindSRI5:
-		s := *prev.SRI
-		s.D, s.E = 1, 0
-		return [][]float64{sriCoords(s, 5)}
 	}
-	return nil
+	return out
 }
 
 // broadCoords returns the broadening coordinates of a fitted result.
 func broadCoords(r *FalloffResult) []float64 {
-	switch r.kind {
-	case kindTroe3, kindTroe4:
+	switch {
+	case r.kind.isTroe():
 		return troeCoords(*r.Troe, r.kind.nBroad())
-	case kindSRI3, kindSRI5:
+	case r.kind == kindSRI3 || r.kind == kindSRI5:
 		return sriCoords(*r.SRI, r.kind.nBroad())
 	}
 	return nil
 }
 
-// falloffResult builds the result of the model's current parameters.
-func falloffResult(t *Table, m *falloffModel) (*FalloffResult, error) {
+// falloffResult builds the result of the model's current parameters. If
+// held is not nil its limits (k0, k∞) replace the model's node values,
+// which equal them only to rounding.
+func falloffResult(t *Table, m *falloffModel, held *[2]Arrhenius) (*FalloffResult, error) {
 	f := m.form()
+	if held != nil {
+		f.Low, f.High = held[0], held[1]
+	}
 	vals := []float64{f.Low.A, f.Low.N, f.Low.Ta, f.High.A, f.High.N, f.High.Ta}
 	if f.Troe != nil {
 		vals = append(vals, f.Troe.A, f.Troe.T3, f.Troe.T1, f.Troe.T2)
@@ -523,33 +705,185 @@ func falloffResult(t *Table, m *falloffModel) (*FalloffResult, error) {
 	return &FalloffResult{Falloff: f, Report: rep, kind: m.kind}, nil
 }
 
-// startLimits returns the starting k0 and k∞ and whether they were given.
-func startLimits(t *Table, temps []float64, lim *Limits) (low, high Arrhenius, given bool, err error) {
-	if lim != nil {
-		switch {
-		case lim.Low != nil && lim.High != nil:
-			return *lim.Low, *lim.High, true, nil
-		case len(lim.K0) > 0 || len(lim.KInf) > 0:
-			if len(lim.K0) != len(temps) || len(lim.KInf) != len(temps) {
-				return low, high, false, fmt.Errorf("%w: limits: %d k0 and %d k∞ values for %d temperatures", ErrBadData, len(lim.K0), len(lim.KInf), len(temps))
+// boundHits lists, in words, the broadening parameters of f (of the given
+// kind) that sit on an end of their range in effect: setting the
+// parameter to that end, the others unchanged, changes no k of the table
+// by more than boundEffectFrac of the tolerance tol (a fraction). That
+// covers a parameter the fit pushed onto its bound and one it left
+// anywhere in a stretch where the data no longer see it (a T3 of 12 K
+// over 300–2500 K, whose term is below 1e-10).
+func boundHits(t *Table, f *Falloff, kind falloffKind, tol float64) []string {
+	var hits []string
+	// check tries the ends of bound b for the parameter set by set (which
+	// receives the coordinate y of the bound and changes a copy of f).
+	check := func(name string, b bound, set func(g *Falloff, y float64), show func(float64) string, now float64) {
+		for _, end := range []struct {
+			word string
+			y    float64
+		}{{"lower", b.lo}, {"upper", b.hi}} {
+			g := *f
+			if f.Troe != nil {
+				tr := *f.Troe
+				g.Troe = &tr
 			}
-			if low, err = FitArrhenius(temps, lim.K0, nil); err != nil {
-				return low, high, false, fmt.Errorf("limits: k0: %w", err)
+			if f.SRI != nil {
+				s := *f.SRI
+				g.SRI = &s
 			}
-			if high, err = FitArrhenius(temps, lim.KInf, nil); err != nil {
-				return low, high, false, fmt.Errorf("limits: k∞: %w", err)
+			set(&g, end.y)
+			worst := 0.0
+			for _, p := range t.Points {
+				d := math.Abs(g.Eval(p.T, p.P)/f.Eval(p.T, p.P) - 1)
+				if !(d <= worst) { // NaN counts as a large change
+					worst = d
+					if math.IsNaN(d) {
+						worst = math.Inf(1)
+					}
+				}
 			}
-			return low, high, true, nil
+			if worst <= boundEffectFrac*tol {
+				hits = append(hits, fmt.Sprintf("%s = %s sits on the %s end of its range, %s (no k changes by more than %.2g %% there)",
+					name, show(now), end.word, show(end.y), 100*worst))
+				return
+			}
 		}
 	}
+	plain := func(y float64) string { return g4(y) }
+	kelvin := func(lnT float64) string { return g4(math.Exp(lnT)) + " K" }
+	exp := func(ly float64) string { return g4(math.Exp(ly)) }
+	switch kind {
+	case kindTroeConst:
+		check("constant Fcent", boundA, func(g *Falloff, y float64) { g.Troe.A = y }, plain, f.Troe.A)
+	case kindTroe3, kindTroe4:
+		tr := f.Troe
+		check("Troe A", boundA, func(g *Falloff, y float64) { g.Troe.A = y }, plain, tr.A)
+		check("T3 (T***)", boundLnT, func(g *Falloff, y float64) { g.Troe.T3 = math.Exp(y) }, kelvin, math.Log(tr.T3))
+		check("T1 (T*)", boundLnT, func(g *Falloff, y float64) { g.Troe.T1 = math.Exp(y) }, kelvin, math.Log(tr.T1))
+		if tr.HasT2 {
+			check("T2 (T**)", boundLnT, func(g *Falloff, y float64) { g.Troe.T2 = math.Exp(y) }, kelvin, math.Log(tr.T2))
+		}
+	case kindSRI3, kindSRI5:
+		s := f.SRI
+		check("SRI a", boundLnSa, func(g *Falloff, y float64) { g.SRI.A = math.Exp(y) }, exp, math.Log(s.A))
+		check("SRI b", boundSb, func(g *Falloff, y float64) { g.SRI.B = y }, func(y float64) string { return g4(y) + " K" }, s.B)
+		check("SRI c", boundLnT, func(g *Falloff, y float64) { g.SRI.C = math.Exp(y) }, kelvin, math.Log(s.C))
+		if kind == kindSRI5 {
+			check("SRI d", boundLnSd, func(g *Falloff, y float64) { g.SRI.D = math.Exp(y) }, exp, math.Log(s.D))
+			check("SRI e", boundSe, func(g *Falloff, y float64) { g.SRI.E = y }, plain, s.E)
+		}
+	}
+	return hits
+}
+
+// broadeningWords says which broadening f has: "none (Lindemann)",
+// "constant Fcent = a" (Troe with T3 ≤ 1e-20 K, T1 ≥ 1e20 K and no T2,
+// the form FitFalloff writes with troeConstT3 and troeConstT1),
+// "three-parameter Troe", "four-parameter Troe (T** needed)",
+// "three-parameter SRI" or "five-parameter SRI (d, e needed)".
+func broadeningWords(f *Falloff) string {
+	switch tr, s := f.Troe, f.SRI; {
+	case constantFcent(tr):
+		return "constant Fcent = " + g4(tr.A)
+	case tr != nil && tr.HasT2:
+		return "four-parameter Troe (T** needed)"
+	case tr != nil:
+		return "three-parameter Troe"
+	case s != nil && s.D != 0:
+		return "five-parameter SRI (d, e needed)"
+	case s != nil:
+		return "three-parameter SRI"
+	}
+	return "none (Lindemann)"
+}
+
+// constantFcent reports whether tr (nil: no) is a constant Fcent = tr.A
+// written in Troe form: T3 ≤ 1e-20 K and T1 ≥ 1e20 K (where (1−A)·exp(−T/T3)
+// = 0 and A·exp(−T/T1) = A to double precision at least from 1e-17 K to
+// 1e4 K), no T2; FitFalloff writes troeConstT3 and troeConstT1.
+func constantFcent(tr *Troe) bool {
+	return tr != nil && !tr.HasT2 && tr.T3 <= 1e-20 && tr.T1 >= 1e20
+}
+
+// limitDeparture returns, at each temperature, the ratio of the limits of
+// f to the given k0 and k∞, and the largest factor max(r, 1/r) among them.
+func limitDeparture(f *Falloff, temps, k0, kinf []float64) ([]LimitDeparture, float64) {
+	out := make([]LimitDeparture, len(temps))
+	worst := 1.0
+	for i, T := range temps {
+		d := LimitDeparture{T: T, K0Ratio: f.Low.At(T) / k0[i], KInfRatio: f.High.At(T) / kinf[i]}
+		for _, r := range []float64{d.K0Ratio, d.KInfRatio} {
+			worst = math.Max(worst, math.Max(r, 1/r))
+		}
+		out[i] = d
+	}
+	return out, worst
+}
+
+// fitLimits are the limits a falloff fit starts from (and holds, if
+// given), with the per-temperature values the departure is measured
+// against when given.
+type fitLimits struct {
+	low, high Arrhenius
+	given     bool
+	k0, kinf  []float64 // per temperature of the table; nil unless given
+}
+
+// resolveLimits returns the limits of the fit: those of lim if not nil,
+// else estimates from the table.
+func resolveLimits(t *Table, temps []float64, lim *Limits) (fitLimits, error) {
+	var out fitLimits
+	var err error
+	if lim != nil && (len(lim.K0) > 0 || len(lim.KInf) > 0) {
+		if len(lim.K0) != len(temps) || len(lim.KInf) != len(temps) {
+			return out, fmt.Errorf("%w: limits: %d k0 and %d k∞ values for %d temperatures", ErrBadData, len(lim.K0), len(lim.KInf), len(temps))
+		}
+		for i, T := range temps {
+			for _, v := range []struct {
+				name string
+				k    float64
+			}{{"k0", lim.K0[i]}, {"k∞", lim.KInf[i]}} {
+				if !(v.k > 0) || math.IsInf(v.k, 0) {
+					return out, fmt.Errorf("%w: limits: %s = %g at %g K is not positive and finite", ErrBadData, v.name, v.k, T)
+				}
+			}
+		}
+		out.k0, out.kinf, out.given = lim.K0, lim.KInf, true
+		if out.low, err = FitArrhenius(temps, lim.K0, nil); err != nil {
+			return out, fmt.Errorf("limits: k0: %w", err)
+		}
+		if out.high, err = FitArrhenius(temps, lim.KInf, nil); err != nil {
+			return out, fmt.Errorf("limits: k∞: %w", err)
+		}
+	}
+	if lim != nil && lim.Low != nil && lim.High != nil {
+		for _, a := range []struct {
+			name string
+			a    *Arrhenius
+		}{{"low", lim.Low}, {"high", lim.High}} {
+			if !(a.a.A > 0) || !finite(a.a.A, a.a.N, a.a.Ta) {
+				return out, fmt.Errorf("%w: limits: %s-pressure Arrhenius A = %g, n = %g, Ta = %g K: A must be positive and all finite", ErrBadData, a.name, a.a.A, a.a.N, a.a.Ta)
+			}
+		}
+		out.low, out.high = *lim.Low, *lim.High
+		if !out.given {
+			out.k0, out.kinf = make([]float64, len(temps)), make([]float64, len(temps))
+			for i, T := range temps {
+				out.k0[i], out.kinf[i] = out.low.At(T), out.high.At(T)
+			}
+		}
+		out.given = true
+	}
+	if out.given {
+		return out, nil
+	}
 	k0, ki := extrapolateLimits(t, temps)
-	if low, err = FitArrhenius(temps, k0, nil); err != nil {
-		return low, high, false, fmt.Errorf("estimated k0: %w", err)
+	if out.low, err = FitArrhenius(temps, k0, nil); err != nil {
+		return out, fmt.Errorf("estimated k0: %w", err)
 	}
-	if high, err = FitArrhenius(temps, ki, nil); err != nil {
-		return low, high, false, fmt.Errorf("estimated k∞: %w", err)
+	if out.high, err = FitArrhenius(temps, ki, nil); err != nil {
+		return out, fmt.Errorf("estimated k∞: %w", err)
 	}
-	return low, high, false, nil
+	return out, nil
 }
 
 // extrapolateLimits estimates k0 and k∞ at each temperature from the

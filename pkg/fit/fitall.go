@@ -27,11 +27,38 @@ type Options struct {
 	ChebyshevNT, ChebyshevNP int
 	// Limits, if not nil, are known k0 and k∞ for the falloff fits.
 	Limits *Limits
+
+	// Holdout, if it has points, holds rate constants computed off the
+	// table (e.g. by the master equation between its temperatures and
+	// pressures), in the table's k units: each form's held-out error
+	// (Report.HeldOut) is its error at those inside the table's range,
+	// and the automatic choices (Chebyshev order, PLOG's interpolation
+	// error) use them. Without, they come from cross-validation.
+	Holdout *Table
+	// GroupTol is the relative tolerance within which pressures count as
+	// one PLOG entry, and temperatures or pressures as one row or column
+	// of the cross-validation (0 means DefaultGroupTol; negative means
+	// equal values only).
+	GroupTol float64
+	// PLOGMaxN, if positive, bounds the temperature exponent n of every
+	// PLOG term: |n| ≤ PLOGMaxN.
+	PLOGMaxN float64
+	// PLOGOneTerm fits one Arrhenius term at every PLOG pressure, never
+	// two.
+	PLOGOneTerm bool
+	// Fix holds parameters the user fixes (fixed.go).
+	Fix Fix
 }
 
 func (o Options) withDefaults() Options {
 	if o.Tolerance <= 0 || math.IsNaN(o.Tolerance) {
 		o.Tolerance = DefaultTolerance
+	}
+	switch {
+	case o.GroupTol == 0 || math.IsNaN(o.GroupTol):
+		o.GroupTol = DefaultGroupTol
+	case o.GroupTol < 0:
+		o.GroupTol = 0
 	}
 	return o
 }
@@ -121,6 +148,9 @@ func FitAll(t *Table, forms []FormName, opt Options) (*Results, error) {
 	if err := t.Validate(); err != nil {
 		return nil, err
 	}
+	if err := checkHoldout(opt); err != nil {
+		return nil, err
+	}
 	res := &Results{KUnits: t.KUnits, TolerancePct: 100 * opt.Tolerance, Errors: map[FormName]string{}}
 	for _, f := range Forms {
 		if !slices.Contains(forms, f) {
@@ -129,13 +159,13 @@ func FitAll(t *Table, forms []FormName, opt Options) (*Results, error) {
 		var err error
 		switch f {
 		case FormArrhenius:
-			res.Arrhenius, err = fitArrheniusTable(t)
+			res.Arrhenius, err = fitArrheniusTable(t, opt)
 		case FormLindemann:
-			res.Lindemann, err = FitFalloff(t, f, opt)
+			res.Lindemann, err = fitFalloffOpt(t, f, opt)
 		case FormTroe:
-			res.Troe, err = FitFalloff(t, f, opt)
+			res.Troe, err = fitFalloffOpt(t, f, opt)
 		case FormSRI:
-			res.SRI, err = FitFalloff(t, f, opt)
+			res.SRI, err = fitFalloffOpt(t, f, opt)
 		case FormPLOG:
 			res.PLOG, err = FitPLOG(t, opt)
 		case FormChebyshev:
@@ -148,8 +178,10 @@ func FitAll(t *Table, forms []FormName, opt Options) (*Results, error) {
 	if len(res.Errors) == 0 {
 		res.Errors = nil
 	}
+	res.annotate(t, opt)
+	res.markFailed(opt.Tolerance)
 	res.Recommended, res.Reason = Recommend(res.Reports(), opt.Tolerance)
-	if res.Recommended == "" {
+	if len(res.Reports()) == 0 {
 		var errs []error
 		for _, f := range forms {
 			errs = append(errs, fmt.Errorf("%s: %s", f, res.Errors[f]))
@@ -159,8 +191,9 @@ func FitAll(t *Table, forms []FormName, opt Options) (*Results, error) {
 	return res, nil
 }
 
-// fitArrheniusTable fits one Arrhenius expression to every point.
-func fitArrheniusTable(t *Table) (*ArrheniusResult, error) {
+// fitArrheniusTable fits one Arrhenius expression to every point, with n
+// fixed to opt.Fix.N if that is set.
+func fitArrheniusTable(t *Table, opt Options) (*ArrheniusResult, error) {
 	ts, ks, sig := make([]float64, len(t.Points)), make([]float64, len(t.Points)), []float64(nil)
 	if t.Weighted() {
 		sig = make([]float64, len(t.Points))
@@ -171,7 +204,13 @@ func fitArrheniusTable(t *Table) (*ArrheniusResult, error) {
 			sig[i] = p.Sigma
 		}
 	}
-	a, err := FitArrhenius(ts, ks, sig)
+	var a Arrhenius
+	var err error
+	if n := opt.Fix.N; n != nil {
+		a, err = fitArrheniusFixedN(ts, ks, sig, *n)
+	} else {
+		a, err = FitArrhenius(ts, ks, sig)
+	}
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", t.name(), err)
 	}
@@ -179,48 +218,60 @@ func fitArrheniusTable(t *Table) (*ArrheniusResult, error) {
 	if err != nil {
 		return nil, err
 	}
+	if opt.Fix.N != nil {
+		rep.NParams = 2
+	}
 	return &ArrheniusResult{Rate: a, Report: rep}, nil
 }
 
 // Recommend picks a form from reports (keyed by names from Forms) for the
 // maximum relative error tol (a fraction; 0 means DefaultTolerance). Rule:
 // the first form in the order of Forms — arrhenius, lindemann, troe, sri,
-// chebyshev, plog — whose maximum error is within tol. The falloff forms
-// come first because every simulator reads them and they extrapolate to
-// the right limits; Chebyshev before PLOG because its error over the table
-// measures the fit everywhere, while PLOG is exact in P at the table's
-// pressures, so its figure says nothing of the interpolation between them.
-// If no form is within tol, the one with the smallest maximum error. It
-// returns "" if reports is empty. reason says why, in one sentence.
+// chebyshev, plog — that has not failed: not marked Report.Failed (a
+// parameter on a bound, or the tolerance its fit was given) and with a
+// maximum error within tol, on the table and at the held-out points
+// (Report.HeldOut) where there are any. The falloff forms come first
+// because every simulator reads them and they extrapolate to the right
+// limits;
+// Chebyshev before PLOG because its error over the table measures the fit
+// everywhere, while PLOG is exact in P at the table's pressures, so its
+// figure says nothing of the interpolation between them. A failed form is
+// never recommended: if every form failed, or reports is empty, it
+// returns "". reason says why, in one sentence, naming each failure.
 func Recommend(reports map[FormName]Report, tol float64) (form FormName, reason string) {
 	if tol <= 0 || math.IsNaN(tol) {
 		tol = DefaultTolerance
 	}
-	var failed []string
+	var failed, failedNames []string
 	for _, f := range Forms {
 		r, ok := reports[f]
 		if !ok {
 			continue
 		}
-		if r.MaxError() <= tol {
-			why := fmt.Sprintf("%s is the simplest form within the %.3g %% tolerance (max error %.3g %%, rms %.3g %%, worst at %.4g K, %.4g Pa)",
-				f, 100*tol, r.MaxErrorPct, r.RMSErrorPct, r.WorstT, r.WorstP)
-			if len(failed) > 0 {
-				why += "; " + strings.Join(failed, ", ") + " exceeded it"
+		if !r.Failed && r.MaxError() <= tol && r.HeldOut.within(tol) {
+			// The worst point is in the report, in the units its reader
+			// chose; the sentence quotes only the errors.
+			why := fmt.Sprintf("%s is the simplest form within the %.3g %% tolerance (max error %.3g %%, rms %.3g %%%s)",
+				f, 100*tol, r.MaxErrorPct, r.RMSErrorPct, r.HeldOut.phrase())
+			if len(failedNames) > 0 {
+				why += "; the forms before it failed: " + strings.Join(failedNames, ", ")
 			}
 			return f, why
 		}
-		failed = append(failed, fmt.Sprintf("%s (%.3g %%)", f, r.MaxErrorPct))
-	}
-	var best FormName
-	for _, f := range Forms {
-		if r, ok := reports[f]; ok && (best == "" || r.MaxErrorPct < reports[best].MaxErrorPct) {
-			best = f
+		if !r.Failed || r.FailReason == "" {
+			r.judge(tol)
+			if why := r.HeldOut.problem(tol); why != "" {
+				r.FailReason = strings.TrimPrefix(r.FailReason+"; "+why, "; ")
+			}
 		}
+		if r.FailReason == "" {
+			r.FailReason = "marked failed"
+		}
+		failed = append(failed, fmt.Sprintf("%s (%s)", f, r.FailReason))
+		failedNames = append(failedNames, string(f))
 	}
-	if best == "" {
+	if len(failed) == 0 {
 		return "", "no form could be fitted"
 	}
-	return best, fmt.Sprintf("no form is within the %.3g %% tolerance (%s); %s has the smallest max error",
-		100*tol, strings.Join(failed, ", "), best)
+	return "", "every fitted form failed: " + strings.Join(failed, "; ")
 }

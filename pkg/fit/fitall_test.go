@@ -22,7 +22,7 @@ func TestDegenerateTables(t *testing.T) {
 	}{
 		{"one temperature", oneT, map[FormName]string{
 			"arrhenius": "at least 2 temperatures", "lindemann": "at least 3 temperatures",
-			"troe": "at least 3 temperatures", "sri": "at least 3 temperatures", "plog": "at least 3 temperatures",
+			"troe": "at least 3 temperatures", "sri": "at least 3 temperatures", "plog": "at least 2 temperatures",
 			"chebyshev": "range of temperature"}, true},
 		{"one pressure", oneP, map[FormName]string{
 			"lindemann": "at least 2 pressures", "troe": "at least 2 pressures", "sri": "at least 2 pressures",
@@ -97,7 +97,8 @@ func TestDegenerateTables(t *testing.T) {
 func TestFalloffLimits(t *testing.T) {
 	// With the exact limits given per temperature, the broadening alone
 	// reproduces the table (limits held); with k∞ given 2× too high the
-	// held fit misses 1 % and the limits are refitted.
+	// held fit misses 1 %: by default the limits stay held and the fit is
+	// marked failed; with Limits.Free they are refitted.
 	f := griHCH3()
 	temps := linGrid(300, 2500, 10)
 	tab := gridTable(f, temps, atm(logGrid(0.01, 100, 7)...), "cm3/mol/s")
@@ -121,8 +122,15 @@ func TestFalloffLimits(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	if r.LimitsRefined || !r.Failed || r.MaxErrorPct < 1 {
+		t.Errorf("wrong k∞, held: refined %v, failed %v, max error %.3g %%", r.LimitsRefined, r.Failed, r.MaxErrorPct)
+	}
+	r, err = FitFalloff(tab, FormTroe, Options{Limits: &Limits{K0: k0, KInf: kinf, Free: true}})
+	if err != nil {
+		t.Fatal(err)
+	}
 	if !r.LimitsRefined || r.MaxErrorPct > 1 {
-		t.Errorf("wrong k∞: refined %v, max error %.3g %%", r.LimitsRefined, r.MaxErrorPct)
+		t.Errorf("wrong k∞, free: refined %v, max error %.3g %%", r.LimitsRefined, r.MaxErrorPct)
 	}
 	if _, err := FitFalloff(tab, FormTroe, Options{Limits: &Limits{K0: k0[:3], KInf: kinf}}); !errors.Is(err, ErrBadData) {
 		t.Errorf("short limits: %v, want ErrBadData", err)
@@ -141,7 +149,10 @@ func TestRecommend(t *testing.T) {
 		{"lindemann simplest", map[FormName]Report{"lindemann": rep(0.9), "troe": rep(0.1)}, 0.01, "lindemann"},
 		{"chebyshev before plog", map[FormName]Report{"troe": rep(3), "plog": rep(0.1), "chebyshev": rep(0.8)}, 0.01, "chebyshev"},
 		{"plog last resort", map[FormName]Report{"troe": rep(3), "plog": rep(0.1), "chebyshev": rep(1.5)}, 0.01, "plog"},
-		{"none within: smallest", map[FormName]Report{"troe": rep(3), "plog": rep(2), "chebyshev": rep(2.5)}, 0.01, "plog"},
+		// A failed form is never recommended, not even the best of them.
+		{"none within: none", map[FormName]Report{"troe": rep(3), "plog": rep(2), "chebyshev": rep(2.5)}, 0.01, ""},
+		{"failed on a bound", map[FormName]Report{"troe": {MaxErrorPct: 0.2, Failed: true, FailReason: "T1 on a bound"}, "chebyshev": rep(0.5)}, 0.01, "chebyshev"},
+		{"all failed", map[FormName]Report{"troe": {MaxErrorPct: 0.2, Failed: true, FailReason: "T1 on a bound"}, "chebyshev": rep(5)}, 0.01, ""},
 		{"default tolerance", map[FormName]Report{"troe": rep(0.99)}, 0, "troe"},
 		{"nothing", map[FormName]Report{}, 0.01, ""},
 	} {

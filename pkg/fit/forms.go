@@ -209,10 +209,14 @@ func (f *Falloff) Name() FormName {
 	return FormLindemann
 }
 
-// NParams returns 6 (k0 and k∞) plus the broadening parameters: 3 for
-// Troe, 4 with T2; 3 for SRI, 5 with d and e (d ≠ 0).
+// NParams returns 6 (k0 and k∞) plus the broadening parameters: 1 for a
+// constant Fcent (Troe with T3 ≤ 1e-20 K, T1 ≥ 1e20 K, no T2: only A is
+// fitted), 3 for Troe, 4 with T2; 3 for SRI, 5 with d and e (d ≠ 0).
 func (f *Falloff) NParams() int {
 	n := 6
+	if constantFcent(f.Troe) {
+		return n + 1
+	}
 	if f.Troe != nil {
 		n += 3
 		if f.Troe.HasT2 {
@@ -228,7 +232,9 @@ func (f *Falloff) NParams() int {
 	return n
 }
 
-// Describe returns k∞ and k0 ("high: …; low: …") and the broadening.
+// Describe returns k∞ and k0 ("high: …; low: …") and the broadening,
+// with its kind in words ("(constant Fcent = 0.5)", "(three-parameter
+// Troe)", …).
 func (f *Falloff) Describe() string {
 	s := "high: " + f.High.Describe() + "; low: " + f.Low.Describe()
 	if t := f.Troe; t != nil {
@@ -242,6 +248,9 @@ func (f *Falloff) Describe() string {
 		if r.D != 0 {
 			s += fmt.Sprintf(" d=%s e=%s", g4(r.D), g4(r.E))
 		}
+	}
+	if f.Troe != nil || f.SRI != nil {
+		s += " (" + broadeningWords(f) + ")"
 	}
 	return s
 }

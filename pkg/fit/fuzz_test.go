@@ -13,8 +13,9 @@ import (
 // FuzzReadCSV checks ReadCSV on arbitrary bytes and file names: it never
 // panics; an error is a *CSVError naming the file given, with a one-line
 // message; an accepted table has at least three rows, units for k, and
-// positive, finite T, P and k, no (T, P) twice and a finite non-negative
-// uncertainty.
+// positive, finite T, P and k, a finite non-negative uncertainty, and,
+// without uncertainties, replicates (the same T and P) within a factor
+// replicateMaxRatio of each other.
 func FuzzReadCSV(f *testing.F) {
 	paths, err := filepath.Glob("testdata/*.csv")
 	if err != nil || len(paths) == 0 {
@@ -77,16 +78,16 @@ func FuzzReadCSV(f *testing.F) {
 				tab.Name, tab.KUnits, len(tab.Points), minCSVRows)
 		}
 		type key struct{ T, P float64 }
-		seen := map[key]bool{}
+		seen := map[key]float64{}
 		for i, p := range tab.Points {
 			if !positiveFinite(p.T) || !positiveFinite(p.P) || !positiveFinite(p.K) ||
 				!(p.Sigma >= 0) || math.IsInf(p.Sigma, 0) {
 				t.Errorf("point %d = %+v: want T, P, k positive and finite, sigma finite and ≥ 0", i, p)
 			}
-			if seen[key{p.T, p.P}] {
-				t.Errorf("point %d = %+v: the same T and P as an earlier point", i, p)
+			if k, ok := seen[key{p.T, p.P}]; ok && !tab.Weighted() && math.Max(k/p.K, p.K/k) > replicateMaxRatio {
+				t.Errorf("point %d = %+v: a replicate more than %g from k = %g", i, p, replicateMaxRatio, k)
 			}
-			seen[key{p.T, p.P}] = true
+			seen[key{p.T, p.P}] = p.K
 		}
 	})
 }

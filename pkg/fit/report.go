@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // Evaluator gives k at t K and p Pa in the table's units. Every Form is
@@ -24,6 +25,18 @@ type Report struct {
 	PRange      [2]float64 `json:"P_range_Pa"`
 	NParams     int        `json:"n_params"` // number of fitted parameters
 	NPoints     int        `json:"n_points"`
+	// Failed marks a fit that is not fit for use: its max error exceeds
+	// the tolerance, or a parameter sits on the end of its allowed range
+	// (the data did not determine it). FailReason says which, in words.
+	// Recommend never picks a failed fit.
+	Failed     bool   `json:"failed,omitempty"`
+	FailReason string `json:"fail_reason,omitempty"`
+	// HeldOut is the error at points the form was not fitted to
+	// (holdout.go); nil if none could be computed. Scatter compares the
+	// residuals with the table's stated uncertainties (scatter.go); nil
+	// for a table without them. Both are written flat into the JSON.
+	*HeldOut
+	*Scatter
 }
 
 // NewReport compares f with the table. It returns an error wrapping
@@ -57,3 +70,41 @@ func formReport(t *Table, f Form) (Report, error) { return NewReport(t, f, f.NPa
 
 // MaxError returns the largest relative error as a fraction.
 func (r Report) MaxError() float64 { return r.MaxErrorPct / 100 }
+
+// judge sets Failed and FailReason from the tolerance tol (a fraction)
+// and the problems found by the fit itself (e.g. parameters on a bound).
+func (r *Report) judge(tol float64, problems ...string) {
+	var why []string
+	if r.MaxError() > tol {
+		why = append(why, fmt.Sprintf("max error %.3g %% exceeds the %.3g %% tolerance", r.MaxErrorPct, 100*tol))
+	}
+	why = append(why, problems...)
+	r.Failed = len(why) > 0
+	r.FailReason = strings.Join(why, "; ")
+}
+
+// markFailed marks every fitted form of r whose max error exceeds tol (a
+// fraction) as failed; a form already failed (by its own fit, which also
+// checks its bounds) keeps its reason.
+func (r *Results) markFailed(tol float64) {
+	reps := []*Report{}
+	if r.Arrhenius != nil {
+		reps = append(reps, &r.Arrhenius.Report)
+	}
+	for _, f := range []*FalloffResult{r.Lindemann, r.Troe, r.SRI} {
+		if f != nil {
+			reps = append(reps, &f.Report)
+		}
+	}
+	if r.PLOG != nil {
+		reps = append(reps, &r.PLOG.Report)
+	}
+	if r.Chebyshev != nil {
+		reps = append(reps, &r.Chebyshev.Report)
+	}
+	for _, rep := range reps {
+		if !rep.Failed {
+			rep.judge(tol)
+		}
+	}
+}

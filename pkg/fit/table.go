@@ -103,16 +103,15 @@ func (t *Table) name() string {
 	return t.Name
 }
 
-// Validate checks that every value is finite and positive, that no (T,P)
-// point appears twice, and that uncertainties are given for all points or
-// none. Every fit calls it; the errors wrap ErrBadData.
+// Validate checks that every value is finite and positive and that
+// uncertainties are given for all points or none. A (T,P) point may appear
+// more than once: replicate measurements, which the fits treat as separate
+// data. Every fit calls it; the errors wrap ErrBadData.
 func (t *Table) Validate() error {
 	if len(t.Points) == 0 {
 		return fmt.Errorf("%w: %s has no points", ErrTooFewData, t.name())
 	}
 	w := t.Points[0].Sigma > 0
-	type key struct{ T, P float64 }
-	seen := make(map[key]int, len(t.Points))
 	for i, p := range t.Points {
 		at := fmt.Sprintf("%s: point %d (T = %g K, P = %g Pa)", t.name(), i+1, p.T, p.P)
 		switch {
@@ -129,13 +128,21 @@ func (t *Table) Validate() error {
 		case (p.Sigma > 0) != w:
 			return fmt.Errorf("%w: %s: uncertainties are given for some points but not all", ErrBadData, at)
 		}
-		k := key{p.T, p.P}
-		if j, ok := seen[k]; ok {
-			return fmt.Errorf("%w: %s: same T and P as point %d", ErrBadData, at, j+1)
-		}
-		seen[k] = i
 	}
 	return nil
+}
+
+// sites returns the number of distinct (T, P) points of the table:
+// replicates count once, since they add no information on the shape of
+// k(T, P) that a fitted coefficient could use.
+func (t *Table) sites() int {
+	type key struct{ T, P float64 }
+	seen := make(map[key]bool, len(t.Points))
+	temps, press := t.Temperatures(), t.Pressures()
+	for _, p := range t.Points {
+		seen[key{temps[index(temps, p.T)], press[index(press, p.P)]}] = true
+	}
+	return len(seen)
 }
 
 // weights returns the least-squares weights 1/σ of the points in log k

@@ -21,7 +21,7 @@ func ExampleParse() {
 	fmt.Println(m.Transfer.Model, m.Transfer.Alpha300, "cm-1; fits", m.Fits)
 	// Output:
 	// ring -> ring-TS, E0 = 14689.7 cm-1, ν‡ = 650i cm-1
-	// 12 temperatures from 300 to 2500 K, 13 pressures from 100 to 1e+08 Pa
+	// 16 temperatures from 300 to 2000 K, 19 pressures from 100 to 1e+08 Pa
 	// exponential-down 250 cm-1; fits [troe plog chebyshev]
 }
 

@@ -140,27 +140,27 @@ func TestDemo(t *testing.T) {
 		t.Error("Molecule lookup")
 	}
 
-	// 12 temperatures from 300 to 2500 K evenly spaced in 1/T, the ends exact.
+	// 16 temperatures from 300 to 2000 K evenly spaced in 1/T, the ends exact.
 	temps := m.Temperatures
-	if len(temps) != 12 || temps[0] != 300 || temps[11] != 2500 {
+	if len(temps) != 16 || temps[0] != 300 || temps[15] != 2000 {
 		t.Fatalf("temperatures = %v", temps)
 	}
-	step := (1.0/2500 - 1.0/300) / 11
+	step := (1.0/2000 - 1.0/300) / 15
 	for i := 1; i < len(temps); i++ {
 		if d := 1/temps[i] - 1/temps[i-1]; math.Abs(d-step) > 1e-12 {
 			t.Errorf("1/T[%d] − 1/T[%d] = %.15g K⁻¹, want %.15g", i, i-1, d, step)
 		}
 	}
 
-	// 13 pressures from 0.001 bar = 100 Pa to 1000 bar = 1e8 Pa, two per
+	// 19 pressures from 0.001 bar = 100 Pa to 1000 bar = 1e8 Pa, three per
 	// decade; the rounding of exp(log) allows a few ulps.
 	const logTol = 1e-12
 	pres := m.Pressures
-	if len(pres) != 13 {
+	if len(pres) != 19 {
 		t.Fatalf("pressures = %v", pres)
 	}
 	for i, p := range pres {
-		want := 100 * math.Pow(10, float64(i)/2)
+		want := 100 * math.Pow(10, float64(i)/3)
 		if !scalar.EqualWithinRel(p, want, logTol) {
 			t.Errorf("pressures[%d] = %.15g Pa, want %g", i, p, want)
 		}

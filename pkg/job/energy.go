@@ -286,3 +286,68 @@ func (n *Network) checkMatrixSize(grain, ceiling float64, grainSet, ceilingSet S
 		fmt.Sprintf("the automatic grid reaches E0 + %d kT or more in grains of min(α, kT)/5, so it grows with the temperature; lower the highest temperature or give energy-grid.master-equation-grain%s",
 			collision.CeilingKTMax, skip))
 }
+
+// Work estimates: the master equation costs about one matrix entry per
+// solve and entry (a banded factorisation and a few back-substitutions per
+// inverse iteration), a temperature's limits (k0, p½, Pr = 1) about
+// limitSolves solves more.
+const (
+	limitSolves = 15
+	// entrySolvesPerSecond is measured on one core of the reference
+	// machine (docs/performance.md): the demo with its held-out points,
+	// 2.8e7 entry-solves in 1.1 s of CPU time.
+	entrySolvesPerSecond = 2.5e7
+	// DefaultWorkLimit is the estimated CPU time, in seconds, beyond which
+	// Rates refuses to start unless Options.WorkLimit raises it.
+	DefaultWorkLimit = 3600
+)
+
+// WorkSeconds estimates the CPU time in seconds Rates takes with opt on
+// one core of the reference machine (docs/performance.md), from the matrix
+// sizes of every grid it builds: the run's, the convergence check's and
+// the held-out points'. Workers share it out over the cores.
+func (n *Network) WorkSeconds(opt Options) float64 {
+	m := n.Model
+	grain := opt.Grain.or(m.EnergyGrid.MEGrain)
+	ceiling := opt.Ceiling.or(m.EnergyGrid.Ceiling)
+	nP := float64(len(m.Pressures))
+	units := 0.0
+	for _, g := range n.meGrids(grain, ceiling, !opt.SkipCheck) {
+		if g.refine {
+			units += g.entries * 2 // the corner pressures
+			continue
+		}
+		units += g.entries * (nP + limitSolves)
+		if !opt.SkipHeldOut && g.i > 0 {
+			units += g.entries * (nP - 1 + limitSolves) // the midpoint temperature below
+		}
+	}
+	return units / entrySolvesPerSecond
+}
+
+// checkWork refuses a run whose estimated time exceeds the limit.
+func (n *Network) checkWork(opt Options) error {
+	limit := opt.WorkLimit
+	if limit <= 0 {
+		limit = DefaultWorkLimit
+	}
+	est := n.WorkSeconds(opt)
+	if est <= limit {
+		return nil
+	}
+	m := n.Model
+	return m.FieldError("grid", fmt.Errorf("the master equation over %d temperatures × %d pressures would take about %s of CPU time; the limit is %s",
+		len(m.Temperatures), len(m.Pressures), duration(est), duration(limit)),
+		"use fewer temperatures or pressures, a coarser energy-grid.master-equation-grain, --skip-check, or raise the limit with --work-limit")
+}
+
+// duration writes seconds as "40 s", "12 min" or "3.5 h".
+func duration(s float64) string {
+	switch {
+	case s < 120:
+		return fmt.Sprintf("%.2g s", s)
+	case s < 7200:
+		return fmt.Sprintf("%.3g min", s/60)
+	}
+	return fmt.Sprintf("%.3g h", s/3600)
+}

@@ -3,6 +3,7 @@ package job
 import (
 	"crypto/sha256"
 	"fmt"
+	"math"
 	"sort"
 	"strconv"
 	"strings"
@@ -36,20 +37,62 @@ func (r *RatesResult) Header() export.Header {
 			fmt.Sprintf("Bath gas: %s (%s)", r.Bath.Gas, r.Bath.Source),
 		}}
 	for _, e := range r.Entries {
-		prefix, fitWord, recWord := "", "Fit", "Recommended form"
+		prefix := ""
 		if len(r.Entries) > 1 {
-			prefix, fitWord, recWord = "Channel "+e.Label+": ", "fit", "recommended form"
+			prefix = "Channel " + e.Label + ": "
 		}
-		reps := e.Fits.Reports()
-		for _, name := range sortedForms(reps) {
-			rep := reps[name]
-			h.Lines = append(h.Lines, fmt.Sprintf("%s%s %s: max error %.3g %%, rms %.3g %% over the grid", prefix, fitWord, name, rep.MaxErrorPct, rep.RMSErrorPct))
-		}
-		if e.Fits.Recommended != "" {
-			h.Lines = append(h.Lines, prefix+recWord+": "+string(e.Fits.Recommended)+" ("+e.Fits.Reason+")")
-		}
+		h.Lines = append(h.Lines, fitLines(prefix, e.Fits)...)
 	}
 	return h
+}
+
+// fitLines describes each fit of res for the header: its errors on the
+// grid and off it, its broadening and limits for a falloff form, whether
+// it failed and why, and the recommendation.
+func fitLines(prefix string, res *fit.Results) []string {
+	var lines []string
+	reps := res.Reports()
+	for _, name := range sortedForms(reps) {
+		rep := reps[name]
+		l := fmt.Sprintf("%sFit %s: max error %.3g %%, rms %.3g %% over the grid", prefix, name, rep.MaxErrorPct, rep.RMSErrorPct)
+		if h := rep.HeldOut; h != nil {
+			l += fmt.Sprintf("; %.3g %% max off it (%s)", h.MaxErrorPct, h.Method)
+		}
+		lines = append(lines, l)
+		if f := falloffOf(res, name); f != nil && f.Broadening != "" {
+			l := fmt.Sprintf("%s  %s broadening: %s", prefix, name, f.Broadening)
+			if f.MaxLimitDeparture > 0 {
+				held := "held to Arrhenius fits of the computed k0 and k∞"
+				if f.LimitsRefined {
+					held = "refitted (--free-limits)"
+				}
+				l += fmt.Sprintf("; limits %s, within a factor %.3g of them", held, f.MaxLimitDeparture)
+			}
+			lines = append(lines, l)
+		}
+		if rep.Failed {
+			lines = append(lines, fmt.Sprintf("%s  FAILED %s: %s", prefix, name, rep.FailReason))
+		}
+	}
+	if res.Recommended != "" {
+		lines = append(lines, prefix+"Recommended form: "+string(res.Recommended)+" ("+res.Reason+")")
+	} else {
+		lines = append(lines, prefix+"No form recommended: none meets the tolerance on the grid and between its points")
+	}
+	return lines
+}
+
+// falloffOf returns the falloff result of form name, or nil.
+func falloffOf(res *fit.Results, name fit.FormName) *fit.FalloffResult {
+	switch name {
+	case fit.FormLindemann:
+		return res.Lindemann
+	case fit.FormTroe:
+		return res.Troe
+	case fit.FormSRI:
+		return res.SRI
+	}
+	return nil
 }
 
 // directionName is the direction as the mechanism header states it:
@@ -72,7 +115,8 @@ func sortedForms(reps map[fit.FormName]fit.Report) []fit.FormName {
 }
 
 // Reactions returns the mechanism entries of the fitted form name, one per
-// entry that has it; the recommended form of each entry if name is "".
+// entry that has it; the recommended form of each entry if name is "" (an
+// entry without one is left out). A failed fit's note says FAILED.
 func (r *RatesResult) Reactions(name fit.FormName) []export.Reaction {
 	var out []export.Reaction
 	for _, e := range r.Entries {
@@ -80,12 +124,45 @@ func (r *RatesResult) Reactions(name fit.FormName) []export.Reaction {
 		if n == "" {
 			n = e.Fits.Recommended
 		}
-		rep, ok := e.Fits.Reports()[n]
-		if !ok {
-			continue
+		if rx, ok := reaction(e, n); ok {
+			out = append(out, rx)
 		}
-		out = append(out, export.Reaction{Reactants: e.Reactants, Products: e.Products, Order: e.Order, Form: e.Fits.Form(n),
-			Note: fmt.Sprintf("%s fit, max error %.3g %% (worst at %s K, %s bar)", n, rep.MaxErrorPct, num(rep.WorstT), num(rep.WorstP/units.BarPa))})
+	}
+	return out
+}
+
+// reaction is entry e written with its fitted form n.
+func reaction(e Entry, n fit.FormName) (export.Reaction, bool) {
+	rep, ok := e.Fits.Reports()[n]
+	if !ok {
+		return export.Reaction{}, false
+	}
+	note := fmt.Sprintf("%s fit, max error %.3g %% (worst at %s K, %s bar)", n, rep.MaxErrorPct, num(rep.WorstT), num(rep.WorstP/units.BarPa))
+	if h := rep.HeldOut; h != nil {
+		note += fmt.Sprintf(", %.3g %% off the fitted points", h.MaxErrorPct)
+	}
+	if rep.Failed {
+		note = "FAILED " + note + ": " + rep.FailReason
+	}
+	return export.Reaction{Reactants: e.Reactants, Products: e.Products, Order: e.Order, Form: e.Fits.Form(n), Note: note}, true
+}
+
+// best returns the recommended form of fits, or with failed the form with
+// the smallest error (held-out where known) when none is recommended.
+func best(fits *fit.Results, failed bool) fit.FormName {
+	if fits.Recommended != "" || !failed {
+		return fits.Recommended
+	}
+	var out fit.FormName
+	worst := math.Inf(1)
+	for n, rep := range fits.Reports() {
+		e := rep.MaxError()
+		if h := rep.HeldOut; h != nil {
+			e = math.Max(e, h.MaxError())
+		}
+		if e < worst || e == worst && n < out {
+			out, worst = n, e
+		}
 	}
 	return out
 }
@@ -99,12 +176,18 @@ type FileOptions struct {
 	PressureUnit string
 	// Skeleton adds phase-example.yaml, a phase that uses the reactions.
 	Skeleton bool
+	// WriteFailed writes failed fits too: reactions-FORM files of forms
+	// that failed, and reactions.yaml with an entry's best form when none
+	// is recommended; their notes say FAILED.
+	WriteFailed bool
 }
 
 // MechanismFiles renders the mechanism files of the result: the
 // recommended form as reactions.yaml and reactions.txt, every fitted form
-// as reactions-FORM.yaml/.txt, the grid as grid.csv (the format `fit`
-// reads) and, with opt.Skeleton, phase-example.yaml (docs/output.md).
+// that did not fail as reactions-FORM.yaml/.txt (all of them with
+// opt.WriteFailed), the grid as grid.csv (the format `fit` reads) and, with
+// opt.Skeleton, phase-example.yaml (docs/output.md). Without a recommended
+// form for every entry there is no reactions.yaml unless opt.WriteFailed.
 func (r *RatesResult) MechanismFiles(opt FileOptions) ([]File, error) {
 	u := opt.Units
 	pUnit, paPer := "Pa", 1.0
@@ -129,18 +212,31 @@ func (r *RatesResult) MechanismFiles(opt FileOptions) ([]File, error) {
 		files = append(files, File{base + ".yaml", y}, File{base + ".txt", t})
 		return nil
 	}
-	if best := r.Reactions(""); len(best) > 0 {
-		if err := emit("reactions", best); err != nil {
+	// reactions.yaml holds every entry's recommended form, so only when
+	// each has one (or, with WriteFailed, its best form, marked FAILED).
+	var chosen []export.Reaction
+	for _, e := range r.Entries {
+		if rx, ok := reaction(e, best(e.Fits, opt.WriteFailed)); ok {
+			chosen = append(chosen, rx)
+		}
+	}
+	if len(chosen) == len(r.Entries) && len(chosen) > 0 {
+		if err := emit("reactions", chosen); err != nil {
 			return nil, err
 		}
 	}
 	all := map[fit.FormName]fit.Report{}
+	failed := map[fit.FormName]bool{}
 	for _, e := range r.Entries {
 		for n, rep := range e.Fits.Reports() {
 			all[n] = rep
+			failed[n] = failed[n] || rep.Failed
 		}
 	}
 	for _, n := range sortedForms(all) {
+		if failed[n] && !opt.WriteFailed {
+			continue // a failed fit is not a mechanism unless asked for
+		}
 		if err := emit("reactions-"+string(n), r.Reactions(n)); err != nil {
 			return nil, err
 		}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"math"
+	"strings"
 	"testing"
 
 	"github.com/falloff-kinetics/falloff/pkg/input"
@@ -145,5 +146,23 @@ func TestCoarseReportGrainRefused(t *testing.T) {
 	var fe *input.FieldError
 	if !errors.As(err, &fe) || fe.Path != "energy-grid.grain" {
 		t.Errorf("New: %v, want a FieldError at energy-grid.grain", err)
+	}
+}
+
+// A report of more than 10⁵ grains is refused before any count, naming the
+// option (states --ceiling "1e7 cm-1" once ran for minutes).
+func TestReportGrainsBounded(t *testing.T) {
+	m, err := input.ReadFile("../../testdata/catalogue-base.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	n, err := job.New(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = n.States(job.ReportGrid{Ceiling: job.Setting{Cm1: 1e7, Option: "--ceiling", Text: "1e7 cm-1"}})
+	var oe *job.OptionError
+	if !errors.As(err, &oe) || oe.Option != "--ceiling" || !strings.Contains(err.Error(), "grains") {
+		t.Errorf("States: %v, want an OptionError on --ceiling about the grains", err)
 	}
 }

@@ -35,6 +35,13 @@ type Options struct {
 	// Progress, if set, is called (from worker goroutines) after each
 	// temperature of the master equation.
 	Progress func()
+	// WorkLimit is the estimated CPU time in seconds (WorkSeconds) beyond
+	// which Rates refuses to start; 0 means DefaultWorkLimit.
+	WorkLimit float64
+	// FreeLimits lets the Troe, SRI and Lindemann fits move k0 and k∞ away
+	// from the Arrhenius fits of the computed limits when the broadening
+	// alone misses the tolerance (the result then reports how far).
+	FreeLimits bool
 	// SkipHeldOut skips the held-out points: the master equation solved
 	// between the grid's temperatures and pressures, on which every fit's
 	// error is measured off the fitted points.
@@ -100,6 +107,22 @@ type Grid struct {
 	Pressures    []float64     `json:"pressures_Pa"`
 	K            [][]float64   `json:"k"`
 	Channels     [][][]float64 `json:"channels_k,omitempty"`
+}
+
+// table returns the grid as a fit.Table in kUnits: the total k, or channel
+// c's share (c ≥ 0); nil for a nil grid.
+func (g *Grid) table(c int, kUnits string) *fit.Table {
+	if g == nil {
+		return nil
+	}
+	k := g.K
+	if c >= 0 {
+		if g.Channels == nil {
+			return nil
+		}
+		k = g.Channels[c]
+	}
+	return fit.FromGrid(g.Temperatures, g.Pressures, k, kUnits)
 }
 
 // ChannelRate is one channel's share of the grid (competing channels).
@@ -180,6 +203,9 @@ func (n *Network) Rates(ctx context.Context, opt Options) (*RatesResult, error) 
 	if err := n.checkMatrixSize(grain, ceiling, opt.Grain, opt.Ceiling, !opt.SkipCheck); err != nil {
 		return nil, err // before counting any states
 	}
+	if err := n.checkWork(opt); err != nil {
+		return nil, err
+	}
 	well, err := n.masterEquation(ctx, ceiling)
 	if err != nil {
 		return nil, err
@@ -208,7 +234,7 @@ func (n *Network) Rates(ctx context.Context, opt Options) (*RatesResult, error) 
 			return nil, err
 		}
 	}
-	if err := n.fitAll(out, opt.Tolerance); err != nil {
+	if err := n.fitAll(out, opt); err != nil {
 		return nil, err
 	}
 	return out, nil
@@ -306,9 +332,9 @@ func (n *Network) forwardName() string {
 
 // fitAll fits the reaction and, with competing channels, each channel, and
 // sets the mechanism entries.
-func (n *Network) fitAll(out *RatesResult, tol float64) error {
+func (n *Network) fitAll(out *RatesResult, opt Options) error {
 	var err error
-	if out.Fits, err = n.fit(out.K, out.KInfIntegrated, out.K0, out.KUnits, tol); err != nil {
+	if out.Fits, err = n.fit(out.K, out.KInfIntegrated, out.K0, out.KUnits, out.HeldOut.table(-1, out.KUnits), opt); err != nil {
 		return err
 	}
 	out.Entries = []Entry{{Label: out.Reaction, Reactants: out.Reactants, Products: out.Products, Order: out.Order, Fits: out.Fits}}
@@ -317,7 +343,7 @@ func (n *Network) fitAll(out *RatesResult, tol float64) error {
 		r := n.reactant()
 		for i := range out.Channels {
 			cr := &out.Channels[i]
-			if cr.Fits, err = n.fit(cr.K, cr.KInfIntegrated, cr.K0, "s-1", tol); err != nil {
+			if cr.Fits, err = n.fit(cr.K, cr.KInfIntegrated, cr.K0, "s-1", out.HeldOut.table(i, "s-1"), opt); err != nil {
 				return err
 			}
 			prods := cr.Products
@@ -334,8 +360,10 @@ func (n *Network) fitAll(out *RatesResult, tol float64) error {
 }
 
 // fit fits the file's forms (or defaultFits) to a k(T,P) grid, with the
-// computed limits given to the falloff fits.
-func (n *Network) fit(k [][]float64, kInf, k0 []float64, kUnits string, tol float64) (*fit.Results, error) {
+// computed limits given to the falloff fits (held unless opt.FreeLimits)
+// and held, k at the held-out points (nil: none), on which the fits'
+// held-out errors are measured.
+func (n *Network) fit(k [][]float64, kInf, k0 []float64, kUnits string, held *fit.Table, opt Options) (*fit.Results, error) {
 	m := n.Model
 	forms := defaultFits
 	if len(m.Fits) > 0 {
@@ -349,7 +377,9 @@ func (n *Network) fit(k [][]float64, kInf, k0 []float64, kUnits string, tol floa
 		}
 	}
 	t := fit.FromGrid(m.Temperatures, m.Pressures, k, kUnits)
-	res, err := fit.FitAll(t, forms, fit.Options{Tolerance: tol, Limits: &fit.Limits{K0: k0, KInf: kInf}})
+	fo := fit.Options{Tolerance: opt.Tolerance, Limits: &fit.Limits{K0: k0, KInf: kInf, Free: opt.FreeLimits}}
+	fo.Holdout = held
+	res, err := fit.FitAll(t, forms, fo)
 	if res == nil {
 		return nil, &NumericalError{fmt.Errorf("%s: fitting: %w", m.File, err)}
 	}

@@ -18,6 +18,11 @@ type ReportGrid struct {
 	Grain, Ceiling Setting
 }
 
+// maxReportGrains bounds the grains of a States or Micro report: each
+// costs a state sum with the rotor convolution, and a million grains took
+// minutes (states --ceiling "1e7 cm-1").
+const maxReportGrains = 100_000
+
 // minReportGrains is the fewest grains between the threshold and the
 // ceiling that States and Micro accept.
 const minReportGrains = 10
@@ -69,6 +74,19 @@ func (n *Network) reportGrid(opt ReportGrid) (grain, ceiling float64, err error)
 		err := fmt.Errorf("too coarse: fewer than %d grains between E0 = %s cm-1 and the ceiling %s cm-1", minReportGrains, num(main.E0), num(ceiling))
 		if opt.Grain.given() {
 			return 0, 0, &OptionError{Option: opt.Grain.Option, Text: opt.Grain.Text, Err: err, Hint: hint}
+		}
+		return 0, 0, m.FieldError("energy-grid.grain", err, hint)
+	}
+	if grains := ceiling / grain; grains > maxReportGrains {
+		hint := fmt.Sprintf("a grain of at least %s cm-1, or a lower ceiling", num(roundUp(ceiling/maxReportGrains, 2)))
+		err := fmt.Errorf("the report would have %s grains up to %s cm-1; the limit is %g", num(grains), num(ceiling), float64(maxReportGrains))
+		switch {
+		case opt.Ceiling.given():
+			return 0, 0, &OptionError{Option: opt.Ceiling.Option, Text: opt.Ceiling.Text, Err: err, Hint: hint}
+		case opt.Grain.given():
+			return 0, 0, &OptionError{Option: opt.Grain.Option, Text: opt.Grain.Text, Err: err, Hint: hint}
+		case m.EnergyGrid.Ceiling > 0:
+			return 0, 0, m.FieldError("energy-grid.ceiling", err, hint)
 		}
 		return 0, 0, m.FieldError("energy-grid.grain", err, hint)
 	}

@@ -82,6 +82,10 @@ type Summary struct {
 	// Unavailable lists the calculations the file does not support, and
 	// why: the ones that would refuse it although it is valid.
 	Unavailable []string `json:"unavailable,omitempty"`
+	// RatesCPUSeconds estimates the CPU time of `rates` with the file's
+	// settings (WorkSeconds), 0 without pressures. Rates refuses a run
+	// above its work limit (DefaultWorkLimit unless raised).
+	RatesCPUSeconds float64 `json:"rates_cpu_seconds_estimate,omitempty"`
 }
 
 // Summary returns what the network's file describes.
@@ -97,6 +101,8 @@ func (n *Network) Summary() *Summary {
 		Temperatures: m.Temperatures, Pressures: m.Pressures, Warnings: append([]string{}, m.Warnings...)}
 	if len(m.Pressures) == 0 {
 		s.Unavailable = append(s.Unavailable, "rates and compare: the file has no pressure grid (grid.pressures)")
+	} else {
+		s.RatesCPUSeconds = n.WorkSeconds(Options{})
 	}
 	if ts == nil {
 		s.Unavailable = append(s.Unavailable, "states and micro: the main channel is barrierless, without a transition state to report")
