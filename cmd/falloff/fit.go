@@ -239,10 +239,12 @@ func runFit(o fitOptions, path string, s streams) error {
 	if err := printFitChecks(s, t, res); err != nil {
 		return err
 	}
-	fmt.Fprintln(s.out, "\nparameters (Ea as Ea/R in K; low-pressure A in k units × cm3 molecule-1):")
+	ru := fit.ReportUnits{Energy: string(o.units.Energy), EnergyPerK: o.units.EnergyFactor(),
+		Pressure: o.disp.pressureUnit, PaPerUnit: o.disp.paPerUnit}
+	fmt.Fprintf(s.out, "\nparameters (Ea in %s, --energy-unit; A in k units, low-pressure A in k units × cm3 molecule-1):\n", o.units.Energy)
 	for _, name := range fit.Forms {
 		if form := res.Form(name); form != nil {
-			fmt.Fprintf(s.out, "  %-10s %s\n", name, form.Describe())
+			fmt.Fprintf(s.out, "  %-10s %s\n", name, form.DescribeIn(ru))
 		}
 	}
 	if len(files) > 0 {

@@ -397,3 +397,28 @@ func TestFitFlagErrors(t *testing.T) {
 		{"group tolerance", []string{"fit", "--group-tolerance", "100", griTable}, exitUsage, "--group-tolerance"},
 	})
 }
+
+// fit writes the parameters in the energy unit asked for: on the GRI-Mech
+// 3.0 H + CH3 (+M) table the Troe fit's limits read back the published
+// activation energies, 536 and 2440 cal/mol (Smith et al. 1999), to the 4
+// digits printed, and Ea/R = 536/R = 269.7 K with --energy-unit K
+// (R = 1.98720 cal mol⁻¹ K⁻¹, CODATA 2018).
+func TestFitEnergyUnit(t *testing.T) {
+	for _, c := range []struct {
+		unit string
+		want []string
+	}{
+		{"cal/mol", []string{"Ea=536 cal/mol", "Ea=2440 cal/mol", "Ea in cal/mol"}},
+		{"K", []string{"Ea/R=269.7 K", "Ea/R=1228 K"}},
+	} {
+		code, out, errs := runCLI(t, "fit", "--forms", "troe", "--energy-unit", c.unit, griTable)
+		if code != exitOK {
+			t.Fatalf("exit %d: %s", code, errs)
+		}
+		for _, w := range c.want {
+			if !strings.Contains(out, w) {
+				t.Errorf("--energy-unit %s: output lacks %q", c.unit, w)
+			}
+		}
+	}
+}

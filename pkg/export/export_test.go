@@ -489,10 +489,11 @@ func TestRejects(t *testing.T) {
 // otherForm is a fit.Form the writers do not know.
 type otherForm struct{}
 
-func (otherForm) Eval(_, _ float64) float64 { return 1 }
-func (otherForm) Name() fit.FormName        { return "other" }
-func (otherForm) NParams() int              { return 0 }
-func (otherForm) Describe() string          { return "" }
+func (otherForm) Eval(_, _ float64) float64         { return 1 }
+func (otherForm) Name() fit.FormName                { return "other" }
+func (otherForm) DescribeIn(fit.ReportUnits) string { return "" }
+func (otherForm) NParams() int                      { return 0 }
+func (otherForm) Describe() string                  { return "" }
 
 func TestParseUnits(t *testing.T) {
 	for _, c := range []struct {

@@ -57,6 +57,34 @@ type Form interface {
 	// Describe returns the parameters on one line, for reports: numbers to
 	// 4 significant digits, Ea as Ea/R in K, pressures in bar.
 	Describe() string
+	// DescribeIn is Describe with activation energies and pressures in
+	// the units u.
+	DescribeIn(u ReportUnits) string
+}
+
+// ReportUnits choose the units of DescribeIn. The zero value is Describe's:
+// Ea as Ea/R in K, pressures in bar.
+type ReportUnits struct {
+	Energy     string  // activation-energy unit, e.g. "kcal/mol"; "" means Ea/R in K
+	EnergyPerK float64 // Ea in Energy of Ea/R = 1 K (R in that unit)
+	Pressure   string  // pressure unit; "" means bar
+	PaPerUnit  float64 // Pa in one Pressure unit
+}
+
+// ea writes an activation temperature ta (K) in u's energy unit.
+func (u ReportUnits) ea(ta float64) string {
+	if u.Energy == "" || u.Energy == "K" || !(u.EnergyPerK > 0) {
+		return "Ea/R=" + g4(ta) + " K"
+	}
+	return "Ea=" + g4(ta*u.EnergyPerK) + " " + u.Energy
+}
+
+// p writes a pressure in Pa in u's pressure unit.
+func (u ReportUnits) p(pa float64) string {
+	if u.Pressure == "" || !(u.PaPerUnit > 0) {
+		return g4(pa/units.BarPa) + " bar"
+	}
+	return g4(pa/u.PaPerUnit) + " " + u.Pressure
 }
 
 var (
@@ -99,8 +127,11 @@ func (a *Arrhenius) NParams() int {
 }
 
 // Describe returns "A=… n=… Ea/R=… K".
-func (a *Arrhenius) Describe() string {
-	return fmt.Sprintf("A=%s n=%s Ea/R=%s K", g4(a.A), g4(a.N), g4(a.Ta))
+func (a *Arrhenius) Describe() string { return a.DescribeIn(ReportUnits{}) }
+
+// DescribeIn returns "A=… n=… Ea=… UNIT" (or Ea/R in K).
+func (a *Arrhenius) DescribeIn(u ReportUnits) string {
+	return fmt.Sprintf("A=%s n=%s %s", g4(a.A), g4(a.N), u.ea(a.Ta))
 }
 
 // Troe holds the broadening parameters of Gilbert, Luther & Troe (Ber.
@@ -235,8 +266,11 @@ func (f *Falloff) NParams() int {
 // Describe returns k∞ and k0 ("high: …; low: …") and the broadening,
 // with its kind in words ("(constant Fcent = 0.5)", "(three-parameter
 // Troe)", …).
-func (f *Falloff) Describe() string {
-	s := "high: " + f.High.Describe() + "; low: " + f.Low.Describe()
+func (f *Falloff) Describe() string { return f.DescribeIn(ReportUnits{}) }
+
+// DescribeIn is Describe with Ea in u's unit.
+func (f *Falloff) DescribeIn(u ReportUnits) string {
+	s := "high: " + f.High.DescribeIn(u) + "; low: " + f.Low.DescribeIn(u)
 	if t := f.Troe; t != nil {
 		s += fmt.Sprintf("; Troe a=%s T3=%s T1=%s", g4(t.A), g4(t.T3), g4(t.T1))
 		if t.HasT2 {
@@ -324,8 +358,15 @@ func (pl *PLOG) nTerms() int {
 }
 
 // Describe returns the numbers of pressures and of Arrhenius terms.
-func (pl *PLOG) Describe() string {
-	return fmt.Sprintf("%d pressures, %d Arrhenius terms", len(pl.Entries), pl.nTerms())
+func (pl *PLOG) Describe() string { return pl.DescribeIn(ReportUnits{}) }
+
+// DescribeIn is Describe, with the range of pressures in u's unit.
+func (pl *PLOG) DescribeIn(u ReportUnits) string {
+	s := fmt.Sprintf("%d pressures, %d Arrhenius terms", len(pl.Entries), pl.nTerms())
+	if n := len(pl.Entries); n > 0 && u.Pressure != "" {
+		s += " over " + u.p(pl.Entries[0].P) + " to " + u.p(pl.Entries[n-1].P)
+	}
+	return s
 }
 
 // Chebyshev is log10 k = Σ_t Σ_p Coef[t][p]·φ_t(T̃)·φ_p(P̃) with Chebyshev
@@ -407,8 +448,11 @@ func (c *Chebyshev) order() (nT, nP int) {
 }
 
 // Describe returns the order and the range in T and P (bar).
-func (c *Chebyshev) Describe() string {
+func (c *Chebyshev) Describe() string { return c.DescribeIn(ReportUnits{}) }
+
+// DescribeIn is Describe with the pressure range in u's unit.
+func (c *Chebyshev) DescribeIn(u ReportUnits) string {
 	nT, nP := c.order()
-	return fmt.Sprintf("%d x %d coefficients over %s-%s K, %s-%s bar", nT, nP,
-		g4(c.Tmin), g4(c.Tmax), g4(c.Pmin/units.BarPa), g4(c.Pmax/units.BarPa))
+	return fmt.Sprintf("%d x %d coefficients over %s-%s K, %s to %s", nT, nP,
+		g4(c.Tmin), g4(c.Tmax), u.p(c.Pmin), u.p(c.Pmax))
 }

@@ -41,7 +41,7 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) (vals []float
 	shape := fmt.Sprintf("{from: %s, to: %s, points: 12} or {unit: %s, values: [...]}",
 		map[units.Dimension]string{units.Temperature: "300 K", units.Pressure: "0.001 bar"}[d],
 		map[units.Dimension]string{units.Temperature: "2500 K", units.Pressure: "1000 bar"}[d], d.Internal())
-	isRange := given(&r.From) || given(&r.To) || given(&r.Points)
+	isRange := given(&r.From) || given(&r.To) || given(&r.Points) || given(&r.Spacing)
 	isList := given(&r.Unit) || given(&r.Values)
 	switch {
 	case isRange && isList:
@@ -98,6 +98,29 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) (vals []float
 		return nil, nil, p.errAt(pp, &r.Points, problemf("one point cannot span from %s to %s", r.From.Value, r.To.Value),
 			"give 2 or more points, or make from equal to to")
 	}
+	// spacing: even (the default) or chebyshev, the Chebyshev–Gauss–Lobatto
+	// nodes x = mid + half·cos(iπ/(n−1)) of the same reduced coordinate,
+	// ends included: the points on which a Chebyshev fit of that order
+	// interpolates best (Trefethen, Approximation Theory and Approximation
+	// Practice, SIAM 2013, ch. 2 and 15).
+	cheb := false
+	if given(&r.Spacing) {
+		sp, err := p.name(path+".spacing", &r.Spacing)
+		if err != nil {
+			return nil, nil, err
+		}
+		switch sp {
+		case "even":
+		case "chebyshev":
+			cheb = true
+		default:
+			hint := "use even (evenly in 1/T or log P, the default) or chebyshev (Chebyshev nodes, for a Chebyshev fit)"
+			if c := closest(sp, []string{"even", "chebyshev"}, nil); c != "" {
+				hint = "did you mean " + c + "? " + hint
+			}
+			return nil, nil, p.errAt(path+".spacing", &r.Spacing, problemf("unknown spacing"), hint)
+		}
+	}
 	if n == 1 {
 		return []float64{from}, []string{path + ".from"}, nil
 	}
@@ -111,7 +134,11 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) (vals []float
 	out := make([]float64, n)
 	paths = make([]string, n)
 	for i := range out {
-		out[i] = inv(x0 + (x1-x0)*float64(i)/float64(n-1))
+		f := float64(i) / float64(n-1)
+		if cheb {
+			f = (1 - math.Cos(math.Pi*f)) / 2
+		}
+		out[i] = inv(x0 + (x1-x0)*f)
 		paths[i] = path
 	}
 	out[0], out[n-1] = from, to

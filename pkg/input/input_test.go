@@ -4,6 +4,7 @@ import (
 	"errors"
 	"io/fs"
 	"math"
+	"os"
 	"reflect"
 	"strconv"
 	"strings"
@@ -781,4 +782,60 @@ func TestAlias(t *testing.T) {
 	if ts.Symmetry != 2 || ts.Rotors[0].Consts[0] != r.Rotors[0].Consts[0] {
 		t.Errorf("ts rotation %+v, symmetry %v; want the reactant's", ts.Rotors, ts.Symmetry)
 	}
+}
+
+// spacing: chebyshev puts a range on the Chebyshev–Gauss–Lobatto nodes of
+// its reduced coordinate, 1/T for temperatures and log P for pressures:
+// the reduced coordinate of point i is cos(iπ/(n−1)) (by definition,
+// Trefethen, Approximation Theory and Approximation Practice, 2013, ch. 2),
+// the ends exact; an unknown spacing is refused with a suggestion.
+func TestChebyshevSpacing(t *testing.T) {
+	const nodeTol = 1e-12 // rounding of 1/T and exp(log P)
+	text := strings.Replace(string(demoText(t)), "temperatures: {from: 300 K, to: 2000 K, points: 16}",
+		"temperatures: {from: 300 K, to: 2000 K, points: 7, spacing: chebyshev}", 1)
+	text = strings.Replace(text, "pressures: {from: 0.001 bar, to: 1000 bar, points: 19}",
+		"pressures: {from: 0.001 bar, to: 1000 bar, points: 5, spacing: chebyshev}", 1)
+	m, err := Parse("cheb.yaml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	reduced := func(x, lo, hi float64) float64 { return (2*x - (lo + hi)) / (hi - lo) }
+	for _, ax := range []struct {
+		name   string
+		vals   []float64
+		f      func(float64) float64
+		lo, hi float64
+		first  float64
+	}{
+		{"temperatures", m.Temperatures, func(v float64) float64 { return 1 / v }, 1.0 / 2000, 1.0 / 300, 300},
+		{"pressures", m.Pressures, math.Log, math.Log(100), math.Log(1e8), 100},
+	} {
+		n := len(ax.vals)
+		if ax.vals[0] != ax.first {
+			t.Errorf("%s: first point %v", ax.name, ax.vals[0])
+		}
+		for i, v := range ax.vals {
+			want := math.Cos(math.Pi * float64(i) / float64(n-1))
+			if ax.name == "pressures" {
+				want = -want // log P rises with i, 1/T falls
+			}
+			if got := reduced(ax.f(v), ax.lo, ax.hi); math.Abs(got-want) > nodeTol {
+				t.Errorf("%s[%d] = %v: reduced %v, want %v", ax.name, i, v, got, want)
+			}
+		}
+	}
+	_, err = Parse("bad.yaml", []byte(strings.Replace(text, "points: 7, spacing: chebyshev", "points: 7, spacing: chebychev", 1)))
+	if err == nil || !strings.Contains(err.Error(), "did you mean chebyshev") {
+		t.Errorf("misspelt spacing: %v", err)
+	}
+}
+
+// demoText returns the demo input's text.
+func demoText(t *testing.T) []byte {
+	t.Helper()
+	b, err := os.ReadFile("../../internal/demo/demo.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
 }

@@ -134,9 +134,10 @@ type rawGrid struct {
 
 // rawRange is either {from, to, points} or {unit, values}.
 type rawRange struct {
-	From   yaml.Node `yaml:"from"`
-	To     yaml.Node `yaml:"to"`
-	Points yaml.Node `yaml:"points"`
+	From    yaml.Node `yaml:"from"`
+	To      yaml.Node `yaml:"to"`
+	Points  yaml.Node `yaml:"points"`
+	Spacing yaml.Node `yaml:"spacing"`
 	Unit   yaml.Node `yaml:"unit"`
 	Values yaml.Node `yaml:"values"`
 }
