@@ -138,8 +138,8 @@ type rawRange struct {
 	To      yaml.Node `yaml:"to"`
 	Points  yaml.Node `yaml:"points"`
 	Spacing yaml.Node `yaml:"spacing"`
-	Unit   yaml.Node `yaml:"unit"`
-	Values yaml.Node `yaml:"values"`
+	Unit    yaml.Node `yaml:"unit"`
+	Values  yaml.Node `yaml:"values"`
 }
 
 type rawEnergyGrid struct {
