@@ -273,6 +273,25 @@ func printFits(s streams, res *fit.Results, d display) error {
 	for _, n := range slices.Sorted(maps.Keys(res.Errors)) {
 		fmt.Fprintf(s.out, "%s could not be fitted: %s\n", n, res.Errors[n])
 	}
+	for _, f := range []*fit.FalloffResult{res.Lindemann, res.Troe, res.SRI} {
+		if f == nil || len(f.LimitDeparture) == 0 {
+			continue
+		}
+		how := "held to Arrhenius fits of the computed k0 and k∞"
+		if f.LimitsRefined {
+			how = "refitted (--free-limits)"
+		}
+		worst, at := 1.0, 0.0
+		for _, d := range f.LimitDeparture {
+			for _, r := range []float64{d.K0Ratio, d.KInfRatio} {
+				if x := math.Max(r, 1/r); x > worst {
+					worst, at = x, d.T
+				}
+			}
+		}
+		fmt.Fprintf(s.out, "%s: limits %s; exported k0 and k∞ within a factor %s of the computed ones (worst at %s K)\n",
+			f.Name(), how, num(worst), num(at))
+	}
 	var err error
 	if res.Recommended != "" {
 		_, err = fmt.Fprintf(s.out, "recommended: %s (%s)\n", res.Recommended, res.Reason)
