@@ -122,8 +122,12 @@ func TestMicroWithTunnelling(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	worst := 0.0
+	defer func() { t.Logf("worst TST deviation with Eckart tunnelling: %.2g", worst) }()
 	for i, tK := range mc.Temperatures {
-		if d := math.Abs(mc.KInfIntegrated[i]/mc.KInf[i] - 1); d > tstTol {
+		d := math.Abs(mc.KInfIntegrated[i]/mc.KInf[i] - 1)
+		worst = math.Max(worst, d)
+		if d > tstTol {
 			t.Errorf("%g K: <k(E)> %.6g, k∞·κ %.6g", tK, mc.KInfIntegrated[i], mc.KInf[i])
 		}
 		if mc.KInf[i] != res.Channels[0].KInf[i] {
