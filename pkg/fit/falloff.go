@@ -705,6 +705,20 @@ func falloffResult(t *Table, m *falloffModel, held *[2]Arrhenius) (*FalloffResul
 	return &FalloffResult{Falloff: f, Report: rep, kind: m.kind}, nil
 }
 
+// clone returns a copy of f that shares no broadening with it.
+func (f *Falloff) clone() Falloff {
+	g := *f
+	if f.Troe != nil {
+		tr := *f.Troe
+		g.Troe = &tr
+	}
+	if f.SRI != nil {
+		s := *f.SRI
+		g.SRI = &s
+	}
+	return g
+}
+
 // boundHits lists, in words, the broadening parameters of f (of the given
 // kind) that sit on an end of their range in effect: setting the
 // parameter to that end, the others unchanged, changes no k of the table
@@ -721,15 +735,7 @@ func boundHits(t *Table, f *Falloff, kind falloffKind, tol float64) []string {
 			word string
 			y    float64
 		}{{"lower", b.lo}, {"upper", b.hi}} {
-			g := *f
-			if f.Troe != nil {
-				tr := *f.Troe
-				g.Troe = &tr
-			}
-			if f.SRI != nil {
-				s := *f.SRI
-				g.SRI = &s
-			}
+			g := f.clone()
 			set(&g, end.y)
 			worst := 0.0
 			for _, p := range t.Points {

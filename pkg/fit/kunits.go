@@ -107,17 +107,9 @@ func Scaled(f Form, c float64) Form {
 		a.A *= c
 		return &a
 	case *Falloff:
-		g := *f
+		g := f.clone()
 		g.Low.A *= c
 		g.High.A *= c
-		if f.Troe != nil {
-			tr := *f.Troe
-			g.Troe = &tr
-		}
-		if f.SRI != nil {
-			s := *f.SRI
-			g.SRI = &s
-		}
 		return &g
 	case *PLOG:
 		var g PLOG

@@ -26,14 +26,7 @@ import (
 // tunnelling k0 counts grains far below the barrier as reactive, a known
 // open question of the low-pressure limit's definition, not checked here.)
 func TestChannelsThroughLibrary(t *testing.T) {
-	m, err := input.ReadFile("../../testdata/ch3nc-channels.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	n, err := job.New(m)
-	if err != nil {
-		t.Fatal(err)
-	}
+	n := network(t, "../../testdata/ch3nc-channels.yaml")
 	if len(n.Channels) != 3 || n.Channels[0].Tunnelling != input.Eckart || n.Channels[1].Tunnelling != input.Wigner || n.Channels[2].ILT == nil {
 		t.Fatalf("channels %+v: want Eckart, Wigner and barrierless", n.Channels)
 	}
@@ -69,15 +62,8 @@ func TestChannelsThroughLibrary(t *testing.T) {
 // before any work, so a file New accepts runs, and Rates refuses nothing
 // of the file that New accepted, except what only Rates needs (pressures).
 func TestNewRefusesBeforeWork(t *testing.T) {
-	m, err := input.ReadFile("../../testdata/hcn-isomerization.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	n, err := job.New(m)
-	if err != nil {
-		t.Fatal(err)
-	}
-	_, err = n.Rates(context.Background(), job.Options{})
+	n := network(t, "../../testdata/hcn-isomerization.yaml")
+	_, err := n.Rates(context.Background(), job.Options{})
 	var fe *input.FieldError
 	if !asFieldError(err, &fe) || fe.Path != "grid.pressures" {
 		t.Errorf("rates without pressures: %v, want a FieldError at grid.pressures", err)
@@ -93,14 +79,7 @@ func asFieldError(err error, fe **input.FieldError) bool { return errors.As(err,
 // grain error; and micro's k∞ is the k∞ rates gives for that channel.
 func TestMicroWithTunnelling(t *testing.T) {
 	const tstTol = 0.005
-	m, err := input.ReadFile("../../testdata/ch3nc-channels.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	n, err := job.New(m)
-	if err != nil {
-		t.Fatal(err)
-	}
+	n := network(t, "../../testdata/ch3nc-channels.yaml")
 	mi, err := n.Micro(job.ReportGrid{})
 	if err != nil {
 		t.Fatal(err)
@@ -156,7 +135,18 @@ func TestCoarseReportGrainRefused(t *testing.T) {
 // A report of more than 10⁵ grains is refused before any count, naming the
 // option (states --ceiling "1e7 cm-1" once ran for minutes).
 func TestReportGrainsBounded(t *testing.T) {
-	m, err := input.ReadFile("../../testdata/catalogue-base.yaml")
+	n := network(t, "../../testdata/catalogue-base.yaml")
+	_, err := n.States(job.ReportGrid{Ceiling: job.Setting{Cm1: 1e7, Option: "--ceiling", Text: "1e7 cm-1"}})
+	var oe *job.OptionError
+	if !errors.As(err, &oe) || oe.Option != "--ceiling" || !strings.Contains(err.Error(), "grains") {
+		t.Errorf("States: %v, want an OptionError on --ceiling about the grains", err)
+	}
+}
+
+// network reads the input at path and builds its network.
+func network(t *testing.T, path string) *job.Network {
+	t.Helper()
+	m, err := input.ReadFile(path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -164,9 +154,5 @@ func TestReportGrainsBounded(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, err = n.States(job.ReportGrid{Ceiling: job.Setting{Cm1: 1e7, Option: "--ceiling", Text: "1e7 cm-1"}})
-	var oe *job.OptionError
-	if !errors.As(err, &oe) || oe.Option != "--ceiling" || !strings.Contains(err.Error(), "grains") {
-		t.Errorf("States: %v, want an OptionError on --ceiling about the grains", err)
-	}
+	return n
 }
