@@ -5,6 +5,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"github.com/falloff-kinetics/falloff/internal/figures"
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/plots"
@@ -85,14 +86,14 @@ func runCompareCmd(args []string, s streams) error {
 	}
 	fmt.Fprintf(s.out, "%s: %s\nk(T,P)/k∞ under each energy-transfer model, at the same collision rate:\n\n", res.File, n.Model.Title)
 	d := o.disp
-	header := []string{"T / K", "P / " + d.pressureUnit}
+	header := []string{"T / K", "P / " + d.Pressure}
 	for _, md := range res.Models {
 		header = append(header, md.Name)
 	}
 	var rows [][]string
 	for i, t := range res.Temperatures {
 		for j, p := range res.Pressures {
-			row := []string{num(t), num(d.p(p))}
+			row := []string{num(t), num(d.P(p))}
 			for _, md := range res.Models {
 				row = append(row, num(md.K[i][j]/res.KInf[i]))
 			}
@@ -102,12 +103,12 @@ func runCompareCmd(args []string, s streams) error {
 	if err := renderTable(s.out, header, rows); err != nil {
 		return err
 	}
-	fmt.Fprintf(s.out, "\nk0 / %s:\n", d.rateUnit(1))
+	fmt.Fprintf(s.out, "\nk0 / %s:\n", d.RateUnit(1))
 	rows = rows[:0]
 	for i, t := range res.Temperatures {
 		row := []string{num(t)}
 		for _, md := range res.Models {
-			row = append(row, num(d.rate(md.K0[i], 1)))
+			row = append(row, num(d.Rate(md.K0[i], 1)))
 		}
 		rows = append(rows, row)
 	}
@@ -121,25 +122,13 @@ func runCompareCmd(args []string, s streams) error {
 	return err
 }
 
-// plotTemperatures picks up to three temperatures: lowest, middle, highest.
-func plotTemperatures(n int) []int {
-	if n <= 3 {
-		idx := make([]int, n)
-		for i := range idx {
-			idx[i] = i
-		}
-		return idx
-	}
-	return []int{0, n / 2, n - 1}
-}
-
 func writeComparePlot(path string, res *job.CompareResult, d display, s streams) error {
-	f := plots.Figure{Title: "Energy-transfer models", XLabel: "P / " + d.pressureUnit, YLabel: "k / k∞", LogX: true, LogY: true}
+	f := plots.Figure{Title: "Energy-transfer models", XLabel: "P / " + d.Pressure, YLabel: "k / k∞", LogX: true, LogY: true}
 	var ps []float64
 	for _, p := range res.Pressures {
-		ps = append(ps, d.p(p))
+		ps = append(ps, d.P(p))
 	}
-	for g, it := range plotTemperatures(len(res.Temperatures)) {
+	for g, it := range figures.DefaultTemperatures(len(res.Temperatures)) {
 		for d, md := range res.Models {
 			y := make([]float64, len(ps))
 			for j := range ps {

@@ -15,6 +15,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"github.com/falloff-kinetics/falloff/internal/figures"
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/job"
@@ -112,7 +113,7 @@ func (o *fitOptions) validate(args []string) error {
 	if err := o.disp.validate(); err != nil {
 		return err
 	}
-	if o.units, err = export.ParseUnits(o.energyUnit, string(o.disp.quantity.Quantity)); err != nil {
+	if o.units, err = export.ParseUnits(o.energyUnit, string(o.disp.Quantity.Quantity)); err != nil {
 		return usagef("%v", err)
 	}
 	if o.out != "" && o.plots != "" && filepath.Clean(o.out) == filepath.Clean(o.plots) {
@@ -182,10 +183,16 @@ func runFitCmd(args []string, s streams) error {
 }
 
 func runFit(o fitOptions, path string, s streams) error {
-	var set export.FileSet
+	var set, plotSet export.FileSet // --out and --plots, each published whole
 	defer set.Release()
+	defer plotSet.Release()
 	if o.out != "" {
 		if err := set.ReserveFolder(o.out); err != nil {
+			return err
+		}
+	}
+	if o.plots != "" {
+		if err := plotSet.ReserveFolder(o.plots); err != nil {
 			return err
 		}
 	}
@@ -217,7 +224,14 @@ func runFit(o fitOptions, path string, s streams) error {
 		return err
 	}
 	if o.plots != "" {
-		if err := writeFitPlots(o.plots, t, res, s); err != nil {
+		figs, err := figures.Table(t, res)
+		if err != nil {
+			return err
+		}
+		for _, f := range figs {
+			plotSet.Add(filepath.Join(o.plots, f.Name), f.Data)
+		}
+		if _, err := plotSet.Commit(s.ctx); err != nil {
 			return err
 		}
 	}
@@ -232,7 +246,7 @@ func runFit(o fitOptions, path string, s streams) error {
 	}
 	ts, ps := t.Temperatures(), t.Pressures()
 	fmt.Fprintf(s.out, "%s: %d points, %d temperatures %s-%s K, %d pressures %s-%s %s, k in %s\n\n", path, len(t.Points),
-		len(ts), num(ts[0]), num(ts[len(ts)-1]), len(ps), num(o.disp.p(ps[0])), num(o.disp.p(ps[len(ps)-1])), o.disp.pressureUnit, t.KUnits)
+		len(ts), num(ts[0]), num(ts[len(ts)-1]), len(ps), num(o.disp.P(ps[0])), num(o.disp.P(ps[len(ps)-1])), o.disp.Pressure, t.KUnits)
 	if err := printFits(s, res, o.disp); err != nil {
 		return err
 	}
@@ -240,7 +254,7 @@ func runFit(o fitOptions, path string, s streams) error {
 		return err
 	}
 	ru := fit.ReportUnits{Energy: string(o.units.Energy), EnergyPerK: o.units.EnergyFactor(),
-		Pressure: o.disp.pressureUnit, PaPerUnit: o.disp.paPerUnit}
+		Pressure: o.disp.Pressure, PaPerUnit: o.disp.PaPerUnit}
 	fmt.Fprintf(s.out, "\nparameters (Ea in %s, --energy-unit; A in k units, low-pressure A in k units × cm3 molecule-1):\n", o.units.Energy)
 	for _, name := range fit.Forms {
 		if form := res.Form(name); form != nil {
@@ -305,7 +319,7 @@ func printFits(s streams, res *fit.Results, d display) error {
 // name, then the forms that could not be fitted. The status column says
 // recommended, failed (the reasons follow the table, printFits) or ok.
 func fitRows(res *fit.Results, d display) [][]string {
-	at := func(t, p float64) string { return fmt.Sprintf("%s K, %s %s", num(t), num(d.p(p)), d.pressureUnit) }
+	at := func(t, p float64) string { return fmt.Sprintf("%s K, %s %s", num(t), num(d.P(p)), d.Pressure) }
 	reps := res.Reports()
 	var rows [][]string
 	for _, n := range slices.Sorted(maps.Keys(reps)) {

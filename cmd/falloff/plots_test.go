@@ -6,7 +6,6 @@ import (
 	"errors"
 	"io"
 	"math"
-	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -15,9 +14,9 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/falloff-kinetics/falloff/internal/figures"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/job"
-	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
 // svgText is one <text> element of an SVG file.
@@ -162,7 +161,7 @@ func TestRatePlots(t *testing.T) {
 			}
 			nT, nP := len(res.Temperatures), len(res.Pressures)
 			texts := map[string][]svgText{}
-			for _, name := range []string{falloffPlot, limitsPlot, kvsTPlot, residualsPlot, fcentPlot, microPlot, densityPlot} {
+			for _, name := range []string{figures.FalloffPlot, figures.LimitsPlot, figures.KvsTPlot, figures.ResidualsPlot, figures.FcentPlot, figures.MicroPlot, figures.DensityPlot} {
 				texts[name] = readSVG(t, filepath.Join(dir, name))
 				for _, x := range texts[name] {
 					if longFloat.MatchString(x.text) {
@@ -170,43 +169,43 @@ func TestRatePlots(t *testing.T) {
 					}
 				}
 			}
-			form, formName := plotForm(res.Fits)
+			form, formName := figures.PlotForm(res.Fits)
 			if form == nil {
 				t.Fatal("no fitted form to plot")
 			}
 			// Three temperatures, each with its points and the fit.
-			if got := svgCurves(t, filepath.Join(dir, falloffPlot)); got != 2*3 {
-				t.Errorf("%s: %d curves, want 6", falloffPlot, got)
+			if got := svgCurves(t, filepath.Join(dir, figures.FalloffPlot)); got != 2*3 {
+				t.Errorf("%s: %d curves, want 6", figures.FalloffPlot, got)
 			}
 			// One legend entry per pressure (points and fit share it).
-			if got := countTexts(texts[kvsTPlot], regexp.MustCompile(`^[0-9.e-]+ bar$`)); got != min(nP, maxPlotPressures) {
-				t.Errorf("%s: %d pressures in the legend, want %d", kvsTPlot, got, min(nP, maxPlotPressures))
+			if got := countTexts(texts[figures.KvsTPlot], regexp.MustCompile(`^[0-9.e-]+ bar$`)); got != min(nP, figures.MaxPlotPressures) {
+				t.Errorf("%s: %d pressures in the legend, want %d", figures.KvsTPlot, got, min(nP, figures.MaxPlotPressures))
 			}
-			if countTexts(texts[kvsTPlot], regexp.MustCompile("^"+regexp.QuoteMeta(formName)+"$")) != 1 {
-				t.Errorf("%s: the key lacks %q", kvsTPlot, formName)
+			if countTexts(texts[figures.KvsTPlot], regexp.MustCompile("^"+regexp.QuoteMeta(formName)+"$")) != 1 {
+				t.Errorf("%s: the key lacks %q", figures.KvsTPlot, formName)
 			}
-			_, hasFalloff := falloffForm(res.Fits)
+			_, hasFalloff := figures.FalloffForm(res.Fits)
 			wantLimits := 2
 			if hasFalloff != "" {
 				wantLimits = 4 // and the fitted k∞ and k0
 			}
-			if got := countTexts(texts[limitsPlot], regexp.MustCompile(`^k(∞|0), `)); got != wantLimits {
-				t.Errorf("%s: %d legend entries, want %d", limitsPlot, got, wantLimits)
+			if got := countTexts(texts[figures.LimitsPlot], regexp.MustCompile(`^k(∞|0), `)); got != wantLimits {
+				t.Errorf("%s: %d legend entries, want %d", figures.LimitsPlot, got, wantLimits)
 			}
 			for _, title := range []string{"High-pressure limit", "Low-pressure limit"} {
-				if countTexts(texts[limitsPlot], regexp.MustCompile("^"+title+"$")) != 1 {
-					t.Errorf("%s: no panel %q", limitsPlot, title)
+				if countTexts(texts[figures.LimitsPlot], regexp.MustCompile("^"+title+"$")) != 1 {
+					t.Errorf("%s: no panel %q", figures.LimitsPlot, title)
 				}
 			}
 			wantFcent := 1
 			if res.Fits.Troe != nil {
 				wantFcent = 2
 			}
-			if got := countTexts(texts[fcentPlot], regexp.MustCompile(`^(master equation|troe fit)$`)); got != wantFcent {
-				t.Errorf("%s: %d legend entries, want %d", fcentPlot, got, wantFcent)
+			if got := countTexts(texts[figures.FcentPlot], regexp.MustCompile(`^(master equation|troe fit)$`)); got != wantFcent {
+				t.Errorf("%s: %d legend entries, want %d", figures.FcentPlot, got, wantFcent)
 			}
-			if got := countTexts(texts[microPlot], regexp.MustCompile(`^E0 = `)); (got == 1) != tc.tunnelling {
-				t.Errorf("%s: %d threshold marks, tunnelling %v", microPlot, got, tc.tunnelling)
+			if got := countTexts(texts[figures.MicroPlot], regexp.MustCompile(`^E0 = `)); (got == 1) != tc.tunnelling {
+				t.Errorf("%s: %d threshold marks, tunnelling %v", figures.MicroPlot, got, tc.tunnelling)
 			}
 			tab := fit.FromGrid(res.Temperatures, res.Pressures, res.K, res.KUnits)
 			var want []float64
@@ -216,7 +215,7 @@ func TestRatePlots(t *testing.T) {
 			if len(want) != nT*nP {
 				t.Fatalf("%d points", len(want))
 			}
-			checkAnnotations(t, annotations(t, texts[residualsPlot]), want)
+			checkAnnotations(t, annotations(t, texts[figures.ResidualsPlot]), want)
 		})
 	}
 }
@@ -242,10 +241,10 @@ func TestPlotTemperatures(t *testing.T) {
 		{"above", []float64{1300}, nil, true},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			idx, err := plotTemperatureIndices(grid, tc.want)
+			idx, err := figures.TemperatureIndices(grid, tc.want)
 			if tc.bad {
-				var ue *usageError
-				if err == nil || !errors.As(err, &ue) {
+				var oe *job.OptionError
+				if err == nil || !errors.As(err, &oe) || exitCode(err, io.Discard) != exitUsage {
 					t.Fatalf("error %v, want a usage error", err)
 				}
 				return
@@ -260,7 +259,7 @@ func TestPlotTemperatures(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	texts := readSVG(t, filepath.Join(dir, falloffPlot))
+	texts := readSVG(t, filepath.Join(dir, figures.FalloffPlot))
 	if got := countTexts(texts, regexp.MustCompile(`^(800|1200) K, `)); got != 4 {
 		t.Errorf("%d curves at 800 K and 1200 K, want 4", got)
 	}
@@ -287,7 +286,7 @@ func TestFitPlots(t *testing.T) {
 	}
 	tab := readTable(t, griTable)
 	texts := map[string][]svgText{}
-	for _, name := range []string{kvsTPlot, kvsPPlot, residualsPlot} {
+	for _, name := range []string{figures.KvsTPlot, figures.KvsPPlot, figures.ResidualsPlot} {
 		texts[name] = readSVG(t, filepath.Join(dir, name))
 		for _, x := range texts[name] {
 			if longFloat.MatchString(x.text) {
@@ -295,11 +294,11 @@ func TestFitPlots(t *testing.T) {
 			}
 		}
 	}
-	if got := countTexts(texts[kvsTPlot], regexp.MustCompile(`^[0-9.]+ bar$`)); got != 5 {
-		t.Errorf("%s: %d pressures, want 5", kvsTPlot, got)
+	if got := countTexts(texts[figures.KvsTPlot], regexp.MustCompile(`^[0-9.]+ bar$`)); got != 5 {
+		t.Errorf("%s: %d pressures, want 5", figures.KvsTPlot, got)
 	}
-	if got := countTexts(texts[kvsPPlot], regexp.MustCompile(`^[0-9.]+ K$`)); got != maxPlotTemperatures {
-		t.Errorf("%s: %d temperatures, want %d", kvsPPlot, got, maxPlotTemperatures)
+	if got := countTexts(texts[figures.KvsPPlot], regexp.MustCompile(`^[0-9.]+ K$`)); got != figures.MaxPlotTemperatures {
+		t.Errorf("%s: %d temperatures, want %d", figures.KvsPPlot, got, figures.MaxPlotTemperatures)
 	}
 	form := res.Form(res.Recommended)
 	if form == nil {
@@ -309,7 +308,7 @@ func TestFitPlots(t *testing.T) {
 	for _, p := range tab.Points {
 		want = append(want, 100*(form.Eval(p.T, p.P)/p.K-1))
 	}
-	checkAnnotations(t, annotations(t, texts[residualsPlot]), want)
+	checkAnnotations(t, annotations(t, texts[figures.ResidualsPlot]), want)
 }
 
 // readTable reads a CSV table.
@@ -325,149 +324,4 @@ func readTable(t *testing.T, path string) *fit.Table {
 		t.Fatal(err)
 	}
 	return tab
-}
-
-// tableEval is a form that gives the table's own k at its points.
-type tableEval struct{ tab *fit.Table }
-
-func (e tableEval) Eval(t, p float64) float64 {
-	for _, pt := range e.tab.Points {
-		if pt.T == t && pt.P == p {
-			return pt.K
-		}
-	}
-	return math.NaN()
-}
-
-// scaled is a form that is exactly (1 + r) times another.
-type scaled struct {
-	f fit.Evaluator
-	r float64
-}
-
-func (s scaled) Eval(t, p float64) float64 { return (1 + s.r) * s.f.Eval(t, p) }
-
-// residuals puts 100·(k_fit/k − 1) of each point in the cell of its
-// temperature and pressure. Checked against pkg/fit's own report, computed
-// independently by fit.NewReport: the largest |residual| is the report's
-// max error, at its worst (T, P), and the root mean square its rms error;
-// a form 2 % above the table everywhere gives 2 % in every cell (exact);
-// points in any order give the same map, and a missing point an empty
-// cell.
-func TestResiduals(t *testing.T) {
-	// relTol: the map and the report compute the same quotient with
-	// float64 in another order; 1e-12 leaves room for that only.
-	const relTol = 1e-12
-	tab := readTable(t, griTable)
-	res, err := fit.FitAll(tab, []fit.FormName{fit.FormTroe}, fit.Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	form := res.Form(fit.FormTroe)
-	rep := res.Reports()[fit.FormTroe]
-	temps, pressures, z := residuals(tab, form)
-	worst, worstT, worstP, ss, n := 0.0, 0.0, 0.0, 0.0, 0
-	for j, p := range pressures {
-		for i, tk := range temps {
-			v := z[j][i]
-			if math.IsNaN(v) {
-				t.Fatalf("cell %v K, %v Pa empty in a full grid", tk, p)
-			}
-			if math.Abs(v) > worst {
-				worst, worstT, worstP = math.Abs(v), tk, p
-			}
-			ss += v * v
-			n++
-		}
-	}
-	if n != len(tab.Points) {
-		t.Fatalf("%d cells for %d points", n, len(tab.Points))
-	}
-	if math.Abs(worst-rep.MaxErrorPct) > relTol*rep.MaxErrorPct || worstT != rep.WorstT || worstP != rep.WorstP {
-		t.Errorf("largest |residual| %v %% at %v K, %v Pa; report %v %% at %v K, %v Pa", worst, worstT, worstP, rep.MaxErrorPct, rep.WorstT, rep.WorstP)
-	}
-	if rms := math.Sqrt(ss / float64(n)); math.Abs(rms-rep.RMSErrorPct) > 1e-9*rep.RMSErrorPct {
-		t.Errorf("rms residual %v %%, report %v %%", rms, rep.RMSErrorPct)
-	}
-
-	// A form exactly 2 % above every point: every cell 2 (to the
-	// rounding of 1.02·k/k, a few 1e-16).
-	_, _, z2 := residuals(tab, scaled{tableEval{tab}, 0.02})
-	for j := range z2 {
-		for i := range z2[j] {
-			if math.Abs(z2[j][i]-2) > 1e-12 {
-				t.Errorf("cell (%d, %d): %v %%, want 2 %%", j, i, z2[j][i])
-			}
-		}
-	}
-
-	// Shuffled, with one point dropped.
-	shuffled := &fit.Table{KUnits: tab.KUnits, Points: slices.Clone(tab.Points)}
-	rng := rand.New(rand.NewPCG(1, 1))
-	rng.Shuffle(len(shuffled.Points), func(a, b int) {
-		shuffled.Points[a], shuffled.Points[b] = shuffled.Points[b], shuffled.Points[a]
-	})
-	dropped := shuffled.Points[0]
-	shuffled.Points = shuffled.Points[1:]
-	_, _, zs := residuals(shuffled, form)
-	for j, p := range pressures {
-		for i, tk := range temps {
-			if tk == dropped.T && p == dropped.P {
-				if !math.IsNaN(zs[j][i]) {
-					t.Errorf("dropped point %v K, %v Pa: cell %v, want empty", tk, p, zs[j][i])
-				}
-				continue
-			}
-			if zs[j][i] != z[j][i] {
-				t.Errorf("cell %v K, %v Pa: %v shuffled, %v in order", tk, p, zs[j][i], z[j][i])
-			}
-		}
-	}
-}
-
-// microRange cuts k(E) where the brief says. On a synthetic channel whose
-// flux k(E)ρ(E)e^(−E/kT) is known in closed form: with constant ρ, k(E) =
-// k₁ above E0 and k₁·e^((E−E0)/w) below (a tunnelling tail of width w <
-// kT), the flux peaks at E0 and falls below it as e^((E−E0)(1/w − 1/kT)),
-// so it reaches microFluxFloor of the peak at E0 − ln(1/microFluxFloor) /
-// (1/w − 1/kT) at the lowest temperature; the top is E0 + microAboveKT·kT
-// at the highest (exact). Without the tail the range starts at the first
-// grain with k > 0.
-func TestMicroRange(t *testing.T) {
-	const grain = 10.0 // cm⁻¹
-	const e0, w = 10000.0, 50.0
-	temps := []float64{300, 1000, 2000}
-	var mc job.MicroChannel
-	mc.E0, mc.Grain = e0, grain
-	var density []float64
-	for e := 0.0; e <= 80000; e += grain {
-		mc.Energies = append(mc.Energies, e)
-		density = append(density, 1)
-		k := 1e8
-		if e < e0 {
-			k = 1e8 * math.Exp((e-e0)/w)
-		}
-		mc.K = append(mc.K, k)
-	}
-	kT := units.KT(300)
-	wantLo := e0 - math.Log(1/microFluxFloor)/(1/w-1/kT)
-	wantHi := e0 + microAboveKT*units.KT(2000)
-	lo, hi := microRange(mc, mc.Energies, density, temps)
-	if math.Abs(lo-wantLo) > grain || hi != wantHi {
-		t.Errorf("tunnelling: range %v–%v cm-1, want %v (± one grain)–%v", lo, hi, wantLo, wantHi)
-	}
-	for i, e := range mc.Energies {
-		if e < e0 {
-			mc.K[i] = 0
-		}
-	}
-	if lo, hi = microRange(mc, mc.Energies, density, temps); lo != e0 || hi != wantHi {
-		t.Errorf("no tunnelling: range %v–%v cm-1, want %v–%v", lo, hi, e0, wantHi)
-	}
-	f := microFigure(mc, mc.Energies, density, temps)
-	for _, e := range f.Series[0].X {
-		if e < e0 || e > wantHi {
-			t.Fatalf("micro.svg shows E = %v cm-1 outside %v–%v", e, e0, wantHi)
-		}
-	}
 }

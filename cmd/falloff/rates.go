@@ -11,6 +11,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"github.com/falloff-kinetics/falloff/internal/figures"
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/units"
@@ -79,7 +80,7 @@ func (o *ratesOptions) validate(args []string) error {
 	if err := o.disp.validate(); err != nil {
 		return err
 	}
-	if o.units, err = export.ParseUnits(o.energyUnit, string(o.disp.quantity.Quantity)); err != nil {
+	if o.units, err = export.ParseUnits(o.energyUnit, string(o.disp.Quantity.Quantity)); err != nil {
 		return usagef("%v", err)
 	}
 	if err := o.grain.validate(); err != nil {
@@ -125,6 +126,12 @@ func runRatesCmd(args []string, s streams) error {
 	if err != nil {
 		return err
 	}
+	if o.plots != "" {
+		// A temperature outside the grid is refused before any work.
+		if _, err := figures.TemperatureIndices(n.Model.Temperatures, o.plotTemps); err != nil {
+			return err
+		}
+	}
 	// The output folders are checked and locked before any work, so that
 	// an unwritable or busy folder costs nothing.
 	var set export.FileSet
@@ -169,7 +176,7 @@ func runRatesCmd(args []string, s streams) error {
 // paths written.
 func writeRatesFiles(set *export.FileSet, o ratesOptions, n *job.Network, res *job.RatesResult, s streams) ([]string, error) {
 	if o.out != "" {
-		files, err := res.MechanismFiles(job.FileOptions{Units: o.units, PressureUnit: o.disp.pressureUnit, Skeleton: o.skeleton, WriteFailed: o.writeFailed})
+		files, err := res.MechanismFiles(job.FileOptions{Units: o.units, PressureUnit: o.disp.Pressure, Skeleton: o.skeleton, WriteFailed: o.writeFailed})
 		if err != nil {
 			return nil, err
 		}
@@ -181,8 +188,12 @@ func writeRatesFiles(set *export.FileSet, o ratesOptions, n *job.Network, res *j
 		}
 	}
 	if o.plots != "" {
-		if err := addRatePlots(set, o.plots, n, res, o.disp, o.plotTemps); err != nil {
+		figs, err := figures.Rates(n, res, o.disp.Units, o.plotTemps)
+		if err != nil {
 			return nil, err
+		}
+		for _, f := range figs {
+			set.Add(filepath.Join(o.plots, f.Name), f.Data)
 		}
 	}
 	if o.out != "" {
@@ -204,12 +215,12 @@ func writeRatesFiles(set *export.FileSet, o ratesOptions, n *job.Network, res *j
 // the units in the header as fit reads them.
 func writeGridCSV(s streams, res *job.RatesResult, d display) error {
 	w := csv.NewWriter(s.out)
-	if err := w.Write([]string{"T/K", "P/" + d.pressureUnit, "k/" + d.rateUnit(res.KPowers())}); err != nil {
+	if err := w.Write([]string{"T/K", "P/" + d.Pressure, "k/" + d.RateUnit(res.KPowers())}); err != nil {
 		return err
 	}
 	for i, t := range res.Temperatures {
 		for j, p := range res.Pressures {
-			if err := w.Write([]string{fullNum(t), fullNum(d.p(p)), fullNum(d.rate(res.K[i][j], res.KPowers()))}); err != nil {
+			if err := w.Write([]string{fullNum(t), fullNum(d.P(p)), fullNum(d.Rate(res.K[i][j], res.KPowers()))}); err != nil {
 				return err
 			}
 		}
@@ -220,29 +231,29 @@ func writeGridCSV(s streams, res *job.RatesResult, d display) error {
 
 func printRates(s streams, title string, res *job.RatesResult, files []string, d display) error {
 	kp, k0p := res.KPowers(), res.K0Powers()
-	ku, pu := d.rateUnit(kp), d.pressureUnit
+	ku, pu := d.RateUnit(kp), d.Pressure
 	fmt.Fprintf(s.out, "%s: %s\nreaction %s (%s), L = %g\nbath %s (%s); %s\ntunnelling: %s\n\n",
 		res.File, title, res.Reaction, res.Direction, res.PathDegeneracy, res.Bath.Gas, res.Bath.Source, res.Transfer, res.Tunnelling)
 	var rows [][]string
 	for i, t := range res.Temperatures {
-		rows = append(rows, []string{num(t), num(d.rate(res.KInf[i], kp)), num6(res.KInfIntegrated[i] / res.KInf[i]),
-			num(d.rate(res.K0[i], k0p)), num(d.p(res.HalfPressure[i])), num(d.p(res.PrOne[i])), num(res.Fcent[i]),
+		rows = append(rows, []string{num(t), num(d.Rate(res.KInf[i], kp)), num6(res.KInfIntegrated[i] / res.KInf[i]),
+			num(d.Rate(res.K0[i], k0p)), num(d.P(res.HalfPressure[i])), num(d.P(res.PrOne[i])), num(res.Fcent[i]),
 			num(res.Grain[i]), numE(res.Ceiling[i])})
 	}
-	if err := renderTable(s.out, []string{"T / K", "k∞ / " + ku, "k∞(ME)/k∞", "k0 / " + d.rateUnit(k0p),
+	if err := renderTable(s.out, []string{"T / K", "k∞ / " + ku, "k∞(ME)/k∞", "k0 / " + d.RateUnit(k0p),
 		"p½ / " + pu, "P(Pr=1) / " + pu, "Fcent", "grain / cm-1", "ceiling / cm-1"}, rows); err != nil {
 		return err
 	}
 	fmt.Fprintf(s.out, "\nk(T,P) / %s; columns are pressures in %s:\n", ku, pu)
 	header := []string{"T / K"}
 	for _, p := range res.Pressures {
-		header = append(header, num(d.p(p)))
+		header = append(header, num(d.P(p)))
 	}
 	rows = rows[:0]
 	for i, t := range res.Temperatures {
 		row := []string{num(t)}
 		for _, k := range res.K[i] {
-			row = append(row, num(d.rate(k, kp)))
+			row = append(row, num(d.Rate(k, kp)))
 		}
 		rows = append(rows, row)
 	}
@@ -258,7 +269,7 @@ func printRates(s streams, title string, res *job.RatesResult, files []string, d
 		rows = rows[:0]
 		for i, t := range res.Temperatures {
 			for j, p := range res.Pressures {
-				row := []string{num(t), num(d.p(p))}
+				row := []string{num(t), num(d.P(p))}
 				for _, c := range res.Channels {
 					row = append(row, num(c.Branching[i][j]))
 				}

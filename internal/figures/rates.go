@@ -1,13 +1,11 @@
-package main
+package figures
 
 import (
 	"fmt"
 	"math"
-	"path/filepath"
 	"strconv"
 	"strings"
 
-	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/plots"
@@ -16,16 +14,16 @@ import (
 
 // Rules of the figures.
 const (
-	// maxPlotPressures is the most pressures k-vs-T.svg shows: more
+	// MaxPlotPressures is the most pressures k-vs-T.svg shows: more
 	// curves than colours the eye tells apart on one axis would hide
 	// each other.
-	maxPlotPressures = 5
-	// microAboveKT: micro.svg shows k(E) up to E0 + microAboveKT·kT at the
+	MaxPlotPressures = 5
+	// MicroAboveKT: micro.svg shows k(E) up to E0 + MicroAboveKT·kT at the
 	// highest temperature of the grid. The thermal population there is
 	// e^−30 ≈ 1e-13 of that at E0 — nothing at any grid temperature
 	// depends on k(E) above it; the master equation's own ceiling is
 	// E0 + 30–40 kT (docs/design.md §4).
-	microAboveKT = 30
+	MicroAboveKT = 30
 	// microFluxFloor: with tunnelling, micro.svg starts below E0 where the
 	// reactive flux k(E)·ρ(E)·e^(−E/kT) at the lowest grid temperature
 	// (where tunnelling reaches deepest) rises above this fraction of its
@@ -39,55 +37,57 @@ const (
 
 // The figure files a rates run writes under --plots.
 const (
-	falloffPlot   = "falloff.svg"
-	limitsPlot    = "arrhenius.svg"
-	kvsTPlot      = "k-vs-T.svg"
-	kvsPPlot      = "k-vs-P.svg"
-	residualsPlot = "residuals.svg"
-	fcentPlot     = "fcent.svg"
-	microPlot     = "micro.svg"
-	densityPlot   = "density.svg"
+	FalloffPlot   = "falloff.svg"
+	LimitsPlot    = "arrhenius.svg"
+	KvsTPlot      = "k-vs-T.svg"
+	KvsPPlot      = "k-vs-P.svg"
+	ResidualsPlot = "residuals.svg"
+	FcentPlot     = "fcent.svg"
+	MicroPlot     = "micro.svg"
+	DensityPlot   = "density.svg"
 )
 
-// addRatePlots queues in set, under dir:
+// Rates renders the figures of a rates run:
 //
 //   - falloff.svg: k/k∞ against P at the temperatures asked for (temps in
 //     K, each shown at the nearest grid temperature; none: the lowest,
 //     middle and highest), computed points and the recommended fit;
 //   - arrhenius.svg: two panels, k∞ and k0 against 1000/T, each in its own
 //     unit, with the fitted falloff form's limits;
-//   - k-vs-T.svg: k against 1000/T at up to maxPlotPressures pressures,
+//   - k-vs-T.svg: k against 1000/T at up to MaxPlotPressures pressures,
 //     computed points and the recommended fit;
 //   - residuals.svg: 100·(k_fit/k − 1) of the recommended fit over the grid;
 //   - fcent.svg: Fcent(T) of the master equation, and of the Troe fit if
 //     there is one;
 //   - micro.svg and density.svg: k(E) of the main channel (from the
-//     threshold, or below it with tunnelling, to E0 + microAboveKT·kT at
+//     threshold, or below it with tunnelling, to E0 + MicroAboveKT·kT at
 //     the highest temperature) and the reactant's ρ(E), when the channel
 //     has a transition state.
 //
-// A temperature outside the grid is a usage error.
-func addRatePlots(set *export.FileSet, dir string, n *job.Network, res *job.RatesResult, d display, temps []float64) error {
-	its, err := plotTemperatureIndices(res.Temperatures, temps)
+// A temperature outside the grid is an error (a *job.OptionError on
+// --plot-temperatures).
+func Rates(n *job.Network, res *job.RatesResult, d Units, temps []float64) ([]job.File, error) {
+	its, err := TemperatureIndices(res.Temperatures, temps)
 	if err != nil {
-		return err
+		return nil, err
 	}
+	var files []job.File
 	save := func(name string, svg func() ([]byte, error)) error {
 		b, err := svg()
 		if err != nil {
 			return &job.NumericalError{Err: fmt.Errorf("%s: %w", name, err)}
 		}
-		set.Add(filepath.Join(dir, name), b)
+		files = append(files, job.File{Name: name, Data: b})
 		return nil
 	}
-	form, formName := plotForm(res.Fits)
+	form, formName := PlotForm(res.Fits)
 	kp := res.KPowers()
 	ps := make([]float64, len(res.Pressures))
 	for j, p := range res.Pressures {
-		ps[j] = d.p(p)
+		ps[j] = d.P(p)
 	}
 
-	fall := plots.Figure{Title: "Falloff curves", XLabel: "P / " + d.pressureUnit, YLabel: "k / k∞", LogX: true, LogY: true}
+	fall := plots.Figure{Title: "Falloff curves", XLabel: "P / " + d.Pressure, YLabel: "k / k∞", LogX: true, LogY: true}
 	for g, it := range its {
 		t, kInf := res.Temperatures[it], res.KInfIntegrated[it]
 		y := make([]float64, len(ps))
@@ -99,61 +99,62 @@ func addRatePlots(set *export.FileSet, dir string, n *job.Network, res *job.Rate
 			fx := logSpace(ps[0], ps[len(ps)-1], fitCurvePoints)
 			fy := make([]float64, len(fx))
 			for i, x := range fx {
-				fy[i] = form.Eval(t, x*d.paPerUnit) / kInf
+				fy[i] = form.Eval(t, x*d.PaPerUnit) / kInf
 			}
 			fall.Series = append(fall.Series, plots.Series{Name: num(t) + " K, " + formName, X: fx, Y: fy, Group: g + 1})
 		}
 	}
-	if err := save(falloffPlot, fall.SVG); err != nil {
-		return err
+	if err := save(FalloffPlot, fall.SVG); err != nil {
+		return nil, err
 	}
 
-	if err := save(limitsPlot, func() ([]byte, error) { return plots.Panels(limitFigures(res, d)...) }); err != nil {
-		return err
+	if err := save(LimitsPlot, func() ([]byte, error) { return plots.Panels(limitFigures(res, d)...) }); err != nil {
+		return nil, err
 	}
 
 	tab := fit.FromGrid(res.Temperatures, res.Pressures, res.K, res.KUnits)
-	kT := kvsTFigure(tab, form, formName, "master equation", d.paPerUnit, d.pressureUnit,
-		func(k float64) float64 { return d.rate(k, kp) }, d.rateUnit(kp))
-	if err := save(kvsTPlot, kT.SVG); err != nil {
-		return err
+	kT := kvsTFigure(tab, form, formName, "master equation", d.PaPerUnit, d.Pressure,
+		func(k float64) float64 { return d.Rate(k, kp) }, d.RateUnit(kp))
+	if err := save(KvsTPlot, kT.SVG); err != nil {
+		return nil, err
 	}
 	if form != nil {
-		m := residualFigure(tab, form, formName, "master equation", d.paPerUnit, d.pressureUnit)
-		if err := save(residualsPlot, m.SVG); err != nil {
-			return err
+		m := residualFigure(tab, form, formName, "master equation", d.PaPerUnit, d.Pressure)
+		if err := save(ResidualsPlot, m.SVG); err != nil {
+			return nil, err
 		}
 	}
-	if err := save(fcentPlot, fcentFigure(res).SVG); err != nil {
-		return err
+	if err := save(FcentPlot, fcentFigure(res).SVG); err != nil {
+		return nil, err
 	}
 
 	if n.Main().TS == nil {
-		return nil // k(E) and ρ(E) plots need a transition state (see micro)
+		return files, nil // k(E) and ρ(E) plots need a transition state (see micro)
 	}
 	counts, err := n.Count(job.ReportGrid{})
 	if err != nil {
-		return err
+		return nil, err
 	}
 	mi, err := counts.Micro()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	name, energies, density := counts.ReactantDensity()
-	if err := save(microPlot, microFigure(mi.Channels[0], energies, density, res.Temperatures).SVG); err != nil {
-		return err
+	if err := save(MicroPlot, microFigure(mi.Channels[0], energies, density, res.Temperatures).SVG); err != nil {
+		return nil, err
 	}
-	return save(densityPlot, plots.Figure{Title: "Density of states", XLabel: "E / cm-1", YLabel: "ρ(E) / states per cm-1", LogY: true,
+	err = save(DensityPlot, plots.Figure{Title: "Density of states", XLabel: "E / cm-1", YLabel: "ρ(E) / states per cm-1", LogY: true,
 		Series: []plots.Series{{Name: name, X: energies, Y: density}}}.SVG)
+	return files, err
 }
 
-// plotTemperatureIndices returns the indices in grid of the temperatures
+// TemperatureIndices returns the indices in grid of the temperatures
 // to plot: for each of want (K), the grid temperature nearest in 1/T,
 // without repeats; with want empty, the lowest, middle and highest. A
 // temperature outside the grid's range is a usage error.
-func plotTemperatureIndices(grid, want []float64) ([]int, error) {
+func TemperatureIndices(grid, want []float64) ([]int, error) {
 	if len(want) == 0 {
-		return plotTemperatures(len(grid)), nil
+		return DefaultTemperatures(len(grid)), nil
 	}
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, t := range grid {
@@ -165,7 +166,8 @@ func plotTemperatureIndices(grid, want []float64) ([]int, error) {
 		// The slack lets "300 K" select a grid point at 300 K computed
 		// from a range in other units.
 		if t < lo*(1-1e-9) || t > hi*(1+1e-9) {
-			return nil, usagef("--plot-temperatures: %s K is outside the grid's temperatures, %s–%s K (hint: give temperatures within the grid)", num(t), num(lo), num(hi))
+			return nil, &job.OptionError{Option: "--plot-temperatures", Err: fmt.Errorf("%s K is outside the grid's temperatures, %s–%s K", num(t), num(lo), num(hi)),
+				Hint: "give temperatures within the grid"}
 		}
 		best := 0
 		for i, g := range grid {
@@ -181,10 +183,10 @@ func plotTemperatureIndices(grid, want []float64) ([]int, error) {
 	return idx, nil
 }
 
-// plotForm returns the form the figures draw: the recommended one, or,
+// PlotForm returns the form the figures draw: the recommended one, or,
 // when none meets the tolerance, the one with the smallest largest error
 // (named so); nil if nothing was fitted.
-func plotForm(res *fit.Results) (fit.Form, string) {
+func PlotForm(res *fit.Results) (fit.Form, string) {
 	if res == nil {
 		return nil, ""
 	}
@@ -203,10 +205,10 @@ func plotForm(res *fit.Results) (fit.Form, string) {
 	return res.Form(best), string(best) + " fit (above tolerance)"
 }
 
-// falloffForm returns the falloff form whose k0 and k∞ the limits panels
+// FalloffForm returns the falloff form whose k0 and k∞ the limits panels
 // draw: the recommended one if it is a falloff form, else Troe, Lindemann
 // or SRI, whichever was fitted first; nil if none.
-func falloffForm(res *fit.Results) (*fit.Falloff, string) {
+func FalloffForm(res *fit.Results) (*fit.Falloff, string) {
 	if res == nil {
 		return nil, ""
 	}
@@ -221,23 +223,23 @@ func falloffForm(res *fit.Results) (*fit.Falloff, string) {
 // limitFigures returns the panels of arrhenius.svg: k∞ and k0 against
 // 1000/T, each with its unit, the computed points and the falloff fit's
 // modified Arrhenius limits.
-func limitFigures(res *job.RatesResult, d display) []plots.Figure {
+func limitFigures(res *job.RatesResult, d Units) []plots.Figure {
 	inv := make([]float64, len(res.Temperatures))
 	kInf, k0 := make([]float64, len(inv)), make([]float64, len(inv))
 	for i, t := range res.Temperatures {
 		inv[i] = 1000 / t
-		kInf[i], k0[i] = d.rate(res.KInfIntegrated[i], res.KPowers()), d.rate(res.K0[i], res.K0Powers())
+		kInf[i], k0[i] = d.Rate(res.KInfIntegrated[i], res.KPowers()), d.Rate(res.K0[i], res.K0Powers())
 	}
-	high := plots.Figure{Title: "High-pressure limit", XLabel: "1000 K / T", YLabel: "k∞ / " + d.rateUnit(res.KPowers()), LogY: true, LegendTop: true,
+	high := plots.Figure{Title: "High-pressure limit", XLabel: "1000 K / T", YLabel: "k∞ / " + d.RateUnit(res.KPowers()), LogY: true, LegendTop: true,
 		Series: []plots.Series{{Name: "k∞, master equation", X: inv, Y: kInf, Points: true, Group: 1}}}
-	low := plots.Figure{Title: "Low-pressure limit", XLabel: "1000 K / T", YLabel: "k0 / " + d.rateUnit(res.K0Powers()), LogY: true, LegendTop: true,
+	low := plots.Figure{Title: "Low-pressure limit", XLabel: "1000 K / T", YLabel: "k0 / " + d.RateUnit(res.K0Powers()), LogY: true, LegendTop: true,
 		Series: []plots.Series{{Name: "k0, master equation", X: inv, Y: k0, Points: true, Group: 2}}}
-	if f, name := falloffForm(res.Fits); f != nil {
+	if f, name := FalloffForm(res.Fits); f != nil {
 		tx := invSpace(res.Temperatures, fitCurvePoints)
 		fx, hy, ly := make([]float64, len(tx)), make([]float64, len(tx)), make([]float64, len(tx))
 		for i, t := range tx {
 			fx[i] = 1000 / t
-			hy[i], ly[i] = d.rate(f.High.At(t), res.KPowers()), d.rate(f.Low.At(t), res.K0Powers())
+			hy[i], ly[i] = d.Rate(f.High.At(t), res.KPowers()), d.Rate(f.Low.At(t), res.K0Powers())
 		}
 		high.Series = append(high.Series, plots.Series{Name: "k∞, " + name + " fit", X: fx, Y: hy, Group: 1})
 		low.Series = append(low.Series, plots.Series{Name: "k0, " + name + " fit", X: fx, Y: ly, Group: 2})
@@ -245,7 +247,7 @@ func limitFigures(res *job.RatesResult, d display) []plots.Figure {
 	return []plots.Figure{high, low}
 }
 
-// kvsTFigure draws k against 1000/T at up to maxPlotPressures of the
+// kvsTFigure draws k against 1000/T at up to MaxPlotPressures of the
 // table's pressures: the table's points (named source) and form's curves.
 // paPerUnit and pUnit give the pressures' display unit, kDisplay and
 // kUnit k's.
@@ -253,7 +255,7 @@ func kvsTFigure(tab *fit.Table, form fit.Evaluator, formName, source string, paP
 	kDisplay func(float64) float64, kUnit string) plots.Figure {
 	f := plots.Figure{Title: "Rate constant against temperature", XLabel: "1000 K / T", YLabel: "k / " + kUnit, LogY: true}
 	temps, pressures := tab.Temperatures(), tab.Pressures()
-	for g, jp := range spread(len(pressures), maxPlotPressures) {
+	for g, jp := range spread(len(pressures), MaxPlotPressures) {
 		p := pressures[jp]
 		name := plotNum(p/paPerUnit) + " " + pUnit
 		var x, y []float64
@@ -278,7 +280,7 @@ func kvsTFigure(tab *fit.Table, form fit.Evaluator, formName, source string, paP
 	return f
 }
 
-// kvsPFigure draws k against P at up to maxPlotPressures of the table's
+// kvsPFigure draws k against P at up to MaxPlotPressures of the table's
 // temperatures (the indices its), as kvsTFigure does against 1000/T.
 func kvsPFigure(tab *fit.Table, its []int, form fit.Evaluator, formName, source string, paPerUnit float64, pUnit string,
 	kDisplay func(float64) float64, kUnit string) plots.Figure {
@@ -359,7 +361,7 @@ func fcentFigure(res *job.RatesResult) plots.Figure {
 }
 
 // microFigure draws k(E) of channel mc over the energies that matter
-// (see microAboveKT, microFluxFloor); energies and density are the
+// (see MicroAboveKT, microFluxFloor); energies and density are the
 // reactant's ρ(E) on the same grains, temps the grid temperatures.
 func microFigure(mc job.MicroChannel, energies, density, temps []float64) plots.Figure {
 	lo, hi := microRange(mc, energies, density, temps)
@@ -383,10 +385,10 @@ func microFigure(mc job.MicroChannel, energies, density, temps []float64) plots.
 // microRange returns the energies (cm⁻¹) micro.svg shows: from the first
 // grain with k(E) > 0, or with tunnelling from where the reactive flux at
 // the lowest temperature reaches microFluxFloor of its peak, to E0 +
-// microAboveKT·kT at the highest temperature.
+// MicroAboveKT·kT at the highest temperature.
 func microRange(mc job.MicroChannel, energies, density, temps []float64) (lo, hi float64) {
 	tLo, tHi := minMax(temps)
-	hi = mc.E0 + microAboveKT*units.KT(tHi)
+	hi = mc.E0 + MicroAboveKT*units.KT(tHi)
 	first := -1
 	for i, k := range mc.K {
 		if k > 0 {
