@@ -192,6 +192,7 @@ func parseYAML(t *testing.T, b []byte) (ents []parsedEntry, eaUnit string, perMo
 			TRange   []float64          `yaml:"temperature-range"`
 			PRange   []string           `yaml:"pressure-range"`
 			Data     [][]float64        `yaml:"data"`
+			Dup      bool               `yaml:"duplicate"`
 		} `yaml:"reactions"`
 	}
 	dec := yaml.NewDecoder(bytes.NewReader(b))
@@ -309,6 +310,8 @@ func parseText(t *testing.T, b []byte) (ents []parsedEntry, eaUnit string, perMo
 			}
 		case f[0] == "END":
 			flush()
+		case f[0] == "DUPLICATE":
+			// a flag on the reaction above
 		case strings.Contains(l, "/"):
 			if strings.Contains(l, "=") {
 				t.Errorf("auxiliary line with '=': %q", l)
@@ -601,5 +604,106 @@ func TestTextIsASCII(t *testing.T) {
 	}
 	if !strings.Contains(string(b), "<dE>down") || !strings.Contains(string(b), "kinf") || !strings.Contains(string(b), "?") {
 		t.Errorf("symbols not spelled out:\n%s", b)
+	}
+}
+
+// The YAML units block names the quantity as Cantera's unit parser reads
+// it: mol, or molec for molecules ("molecule" is refused by it; Cantera's
+// YAML reference, general.md, units section, from memory).
+func TestYAMLQuantitySpelling(t *testing.T) {
+	f := &fit.Arrhenius{A: 1e13, N: 0, Ta: 20000}
+	for q, want := range map[QuantityUnit]string{Mole: "mol", Molecule: "molec"} {
+		b, err := YAML(Header{Title: "t", Program: "p"}, Units{Quantity: q}, []Reaction{{Reactants: []string{"A", "B"}, Products: []string{"C"}, Order: 2, Form: f}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var doc struct {
+			Units map[string]string `yaml:"units"`
+		}
+		if err := yaml.Unmarshal(b, &doc); err != nil {
+			t.Fatal(err)
+		}
+		if doc.Units["quantity"] != want {
+			t.Errorf("%s: quantity %q, want %q", q, doc.Units["quantity"], want)
+		}
+	}
+}
+
+// Reactions that share an equation (two channels to the same products, or
+// one reaction written in several forms) are flagged duplicate in both
+// formats, and only those: simulators refuse undeclared duplicates.
+func TestDuplicatesFlagged(t *testing.T) {
+	a := &fit.Arrhenius{A: 1e13, N: 0, Ta: 20000}
+	rs := []Reaction{
+		{Reactants: []string{"A"}, Products: []string{"B", "C"}, Order: 1, Form: a},
+		{Reactants: []string{"A"}, Products: []string{"C", "B"}, Order: 1, Form: a}, // same, other order
+		{Reactants: []string{"A"}, Products: []string{"D"}, Order: 1, Form: a},
+	}
+	y, err := YAML(Header{Title: "t", Program: "p"}, DefaultUnits, rs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc struct {
+		Reactions []struct {
+			Equation  string `yaml:"equation"`
+			Duplicate bool   `yaml:"duplicate"`
+		} `yaml:"reactions"`
+	}
+	if err := yaml.Unmarshal(y, &doc); err != nil {
+		t.Fatal(err)
+	}
+	for i, want := range []bool{true, true, false} {
+		if doc.Reactions[i].Duplicate != want {
+			t.Errorf("YAML reaction %d (%s): duplicate %v, want %v", i, doc.Reactions[i].Equation, doc.Reactions[i].Duplicate, want)
+		}
+	}
+	txt, err := Text(Header{Title: "t", Program: "p"}, DefaultUnits, rs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := strings.Count(string(txt), "\n    DUPLICATE\n"); n != 2 {
+		t.Errorf("text has %d DUPLICATE lines, want 2:\n%s", n, txt)
+	}
+}
+
+// Names a mechanism format reserves, or that one of them cannot carry, are
+// refused; a name with YAML syntax is quoted and reads back as written;
+// floats keep a decimal point; a comment word longer than a line is cut,
+// never an error.
+func TestNamesAndScalars(t *testing.T) {
+	a := &fit.Arrhenius{A: 1e10, N: 0, Ta: 20000}
+	for _, bad := range []string{"M", "hv", "é", "A\u2028"} {
+		_, err := YAML(Header{Title: "t", Program: "p"}, DefaultUnits, []Reaction{{Reactants: []string{bad}, Products: []string{"B"}, Order: 1, Form: a}})
+		if err == nil {
+			t.Errorf("species %q accepted", bad)
+		}
+	}
+	long := strings.Repeat("x", 300)
+	h := Header{Title: long, Input: "/very/" + long + ".yaml", Program: "p"}
+	rs := []Reaction{{Reactants: []string{"*A:1"}, Products: []string{"1,3-C4H6"}, Order: 1, Form: a}}
+	y, err := YAML(h, DefaultUnits, rs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc struct {
+		Reactions []struct {
+			Equation string                 `yaml:"equation"`
+			Rate     map[string]interface{} `yaml:"rate-constant"`
+		} `yaml:"reactions"`
+	}
+	if err := yaml.Unmarshal(y, &doc); err != nil {
+		t.Fatal(err)
+	}
+	if doc.Reactions[0].Equation != "*A:1 <=> 1,3-C4H6" {
+		t.Errorf("equation read back as %q", doc.Reactions[0].Equation)
+	}
+	if !strings.Contains(string(y), "A: 1.0e+10") {
+		t.Errorf("A without a decimal point:\n%s", y)
+	}
+	if _, ok := doc.Reactions[0].Rate["A"].(float64); !ok {
+		t.Errorf("A read back as %T", doc.Reactions[0].Rate["A"])
+	}
+	if _, err := Text(h, DefaultUnits, []Reaction{{Reactants: []string{"A"}, Products: []string{"B"}, Order: 1, Form: a}}); err != nil {
+		t.Errorf("a long title and path stopped the text export: %v", err)
 	}
 }

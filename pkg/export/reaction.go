@@ -3,6 +3,7 @@ package export
 import (
 	"fmt"
 	"math"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -57,11 +58,21 @@ func (h Header) lines() []string {
 
 func g4(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
 
-// wrap folds text into lines of at most width runes at spaces.
+// wrap folds text into lines of at most width runes at spaces; a word
+// longer than width (a long path or name) is cut into pieces of width, so
+// no text can make a comment line too long.
 func wrap(s string, width int) []string {
 	var out []string
 	line := ""
+	var words []string
 	for _, w := range strings.Fields(s) {
+		for r := []rune(w); len(r) > 0; {
+			n := min(width, len(r))
+			words = append(words, string(r[:n]))
+			r = r[n:]
+		}
+	}
+	for _, w := range words {
 		switch {
 		case line == "":
 			line = w
@@ -78,6 +89,9 @@ func wrap(s string, width int) []string {
 	return out
 }
 
+// reserved are species names the mechanism formats give another meaning.
+var reserved = map[string]bool{"M": true, "HV": true}
+
 func (r Reaction) check() error {
 	if r.Order != 1 && r.Order != 2 {
 		return fmt.Errorf("export: reaction order %d (1 or 2)", r.Order)
@@ -88,6 +102,14 @@ func (r Reaction) check() error {
 	for _, n := range append(append([]string{}, r.Reactants...), r.Products...) {
 		if n == "" || strings.ContainsAny(n, " \t=<>+!/") {
 			return fmt.Errorf("export: species name %q: names in mechanism files cannot be empty or contain spaces or = < > + ! /", n)
+		}
+		if reserved[strings.ToUpper(n)] {
+			return fmt.Errorf("export: species name %q: mechanism formats reserve it (M is the third body, HV a photon); rename the species", n)
+		}
+		for _, c := range n {
+			if c < 0x21 || c > 0x7e {
+				return fmt.Errorf("export: species name %q: only printable ASCII characters can be written in both mechanism formats", n)
+			}
 		}
 	}
 	if r.Form == nil {
@@ -172,5 +194,29 @@ func chebyshevData(c *fit.Chebyshev, u Units, order int) [][]float64 {
 		out[i] = append([]float64(nil), row...)
 	}
 	out[0][0] += math.Log10(u.aFactor(order - 1))
+	return out
+}
+
+// key identifies a reaction's equation for duplicate detection: the same
+// reactants and products in any order, with or without a collider.
+func (r Reaction) key() string {
+	lhs, rhs := append([]string{}, r.Reactants...), append([]string{}, r.Products...)
+	sort.Strings(lhs)
+	sort.Strings(rhs)
+	_, falloff := r.Form.(*fit.Falloff)
+	return fmt.Sprint(lhs, rhs, falloff)
+}
+
+// duplicates marks the reactions whose equation another one shares:
+// simulators stop on undeclared duplicates, so both formats flag them.
+func duplicates(rs []Reaction) []bool {
+	count := map[string]int{}
+	for _, r := range rs {
+		count[r.key()]++
+	}
+	out := make([]bool, len(rs))
+	for i, r := range rs {
+		out[i] = count[r.key()] > 1
+	}
 	return out
 }

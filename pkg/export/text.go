@@ -47,7 +47,8 @@ func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
 		}
 	}
 	fmt.Fprintf(&b, "\nREACTIONS   %s\n", textUnitWords(u))
-	for _, r := range rs {
+	dup := duplicates(rs)
+	for i, r := range rs {
 		if err := r.check(); err != nil {
 			return nil, err
 		}
@@ -105,6 +106,9 @@ func Text(h Header, u Units, rs []Reaction) ([]byte, error) {
 			for i := 0; i < len(flat); i += 4 {
 				fmt.Fprintf(&b, "    CHEB / %s /\n", strings.Join(flat[i:min(i+4, len(flat))], " "))
 			}
+		}
+		if dup[i] {
+			b.WriteString("    DUPLICATE\n")
 		}
 	}
 	b.WriteString("END\n")

@@ -4,6 +4,9 @@ import (
 	"bytes"
 	"fmt"
 	"strconv"
+	"strings"
+
+	"go.yaml.in/yaml/v3"
 
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/units"
@@ -11,7 +14,25 @@ import (
 
 // yf writes a float as YAML reads it, e.g. 1.39e+16 or -0.534, with up to 10
 // significant digits (enough for Ea in J/mol to keep exp(−Ea/RT) to 1e-7).
-func yf(x float64) string { return strconv.FormatFloat(x, 'g', 10, 64) }
+// The mantissa always has a decimal point ("1.0e+10", not "1e+10"), which
+// YAML 1.1 readers need to see a float rather than a string.
+func yf(x float64) string {
+	s := strconv.FormatFloat(x, 'g', 10, 64)
+	if i := strings.IndexAny(s, "eE"); i >= 0 && !strings.Contains(s[:i], ".") {
+		s = s[:i] + ".0" + s[i:]
+	}
+	return s
+}
+
+// yamlString writes s as a YAML scalar, quoted where YAML needs it (a name
+// with ':' or starting with '*'), through the YAML library.
+func yamlString(s string) string {
+	b, err := yaml.Marshal(s)
+	if err != nil {
+		return strconv.Quote(s)
+	}
+	return strings.TrimSuffix(string(b), "\n")
+}
 
 // YAML returns a Cantera YAML reactions file (a units block and a reactions
 // list) for the reactions rs. Reference it from a phase with
@@ -27,8 +48,9 @@ func YAML(h Header, u Units, rs []Reaction) ([]byte, error) {
 			fmt.Fprintf(&b, "# %s\n", w)
 		}
 	}
-	fmt.Fprintf(&b, "\nunits: {length: cm, time: s, quantity: %s, activation-energy: %s}\n\nreactions:\n", u.Quantity, u.Energy)
-	for _, r := range rs {
+	fmt.Fprintf(&b, "\nunits: {length: cm, time: s, quantity: %s, activation-energy: %s}\n\nreactions:\n", yamlQuantity(u.Quantity), u.Energy)
+	dup := duplicates(rs)
+	for i, r := range rs {
 		if err := r.check(); err != nil {
 			return nil, err
 		}
@@ -37,7 +59,10 @@ func YAML(h Header, u Units, rs []Reaction) ([]byte, error) {
 				fmt.Fprintf(&b, "# %s\n", w)
 			}
 		}
-		fmt.Fprintf(&b, "- equation: %s\n", r.equation(true))
+		fmt.Fprintf(&b, "- equation: %s\n", yamlString(r.equation(true)))
+		if dup[i] {
+			b.WriteString("  duplicate: true\n")
+		}
 		arr := func(a fit.Arrhenius, order int) string {
 			A, n, ea := u.arrhenius(a, order)
 			return fmt.Sprintf("{A: %s, b: %s, Ea: %s}", yf(A), yf(n), yf(ea))
@@ -105,4 +130,14 @@ func PhaseSkeleton(reactionsFile string, species []string) []byte {
 	}
 	fmt.Fprintf(&b, "]\n  kinetics: gas\n  reactions: [%s/reactions]\n  state: {T: 300.0, P: 1 atm}\n\nspecies: []  # add each species with its thermo data\n", reactionsFile)
 	return b.Bytes()
+}
+
+// yamlQuantity is the quantity unit as Cantera's YAML units block spells
+// it: "mol", or "molec" for molecules (its unit parser knows kmol, mol and
+// molec; "molecule" makes it refuse the whole file).
+func yamlQuantity(q QuantityUnit) string {
+	if q == Molecule {
+		return "molec"
+	}
+	return "mol"
 }
