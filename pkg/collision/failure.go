@@ -40,7 +40,7 @@ func (e *PointError) Hint() string {
 		return "here the reaction is about as fast as collisional energy relaxation, so k(T,P) is poorly defined; " +
 			"drop this point from the grid, or check E0 and the frequencies"
 	case errors.Is(e.Err, ErrIllConditioned):
-		return "use a coarser master-equation grain (energy-grid.master-equation-grain or --grain) or a lower ceiling"
+		return "give a lower ceiling (energy-grid.ceiling or --ceiling), or a coarser master-equation grain (energy-grid.master-equation-grain or --grain)"
 	case errors.Is(e.Err, errNotFinite):
 		return "check the transition state's frequencies and E0, and the tunnelling or inverse-Laplace parameters"
 	case errors.Is(e.Err, errUnphysical):

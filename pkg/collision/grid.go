@@ -155,10 +155,12 @@ func (ch Channel) ceiling(tK float64) (float64, error) {
 			return 0, fmt.Errorf("collision: at %g K the thermal distribution reaches beyond the counted states (%.0f cm-1) (hint: count states up to CeilingBound, %.0f cm-1)",
 				tK, counted, ch.E0+float64(most)*kt)
 		}
-		lr := math.Log(math.Max(ch.Reactant.Sum(e+kt/2)-ch.Reactant.Sum(e-kt/2), 1e-300)) - e/kt
+		// In log space: a large molecule's numbers of states here are
+		// beyond the floating-point range (rrkm.Counter.Scale).
+		lr := ch.Reactant.LogStates(e-kt/2, e+kt/2) - e/kt
 		lt := math.Inf(-1)
 		if ch.TS != nil {
-			lt = math.Log(math.Max(ch.TS.Sum(x), 1e-300)) - x/kt
+			lt = ch.TS.LogSum(x) - x/kt
 		}
 		gR, gT = math.Max(gR, lr), math.Max(gT, lt)
 		if m >= least && lr < gR+lnTol && (ch.TS == nil || lt < gT+lnTol) {

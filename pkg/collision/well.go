@@ -18,7 +18,10 @@ type Well struct {
 	K      []float64 // k(E), s⁻¹
 	E0     float64   // reaction threshold, cm⁻¹
 	Grain  float64   // grain width, cm⁻¹
-	Counts []float64 // states per grain
+	Counts []float64 // states per grain, times 2^−CountScale
+	// CountScale is the binary exponent of Counts (rrkm.Micro.Scale): 0
+	// unless the numbers of states outgrow float64.
+	CountScale int
 	// Index maps each grain of the well to its grain on the rrkm grid.
 	Index []int
 	// KC is k(E) per channel (KC[c][i]); K is their sum. Nil for a well
@@ -30,34 +33,39 @@ type Well struct {
 // grains' Boltzmann weights from the reactant's counter (exact for sparse
 // low-energy levels; rrkm.Counter.BoltzmannCounts). Grains with no state are
 // left out: they carry no population and would make detailed balance
-// singular.
+// singular. The weights are formed in log space and normalised there, since
+// the numbers of states of a large molecule at its thermal energies, and
+// their Boltzmann factors, lie beyond the floating-point range; a grain
+// whose weight is then below the smallest normal float64 (2.2e-308 of the
+// population, the far low-energy end of a very large molecule at high
+// temperature) is left out as well, for the same reason as an empty one.
 func NewWell(m *rrkm.Micro, reactant *rrkm.Counter, tK float64) *Well {
-	w := &Well{T: tK, E0: m.E0, Grain: m.Grains.Width}
+	w := &Well{T: tK, E0: m.E0, Grain: m.Grains.Width, CountScale: m.Scale}
 	beta := 1 / units.KT(tK)
+	lbc := reactant.LogBoltzmannCounts(m.Grains, tK)
+	logf := make([]float64, len(lbc))
 	lmax := math.Inf(-1)
-	var logf []float64
-	bc := reactant.BoltzmannCounts(m.Grains, tK)
 	for i, n := range m.Counts {
-		if n <= 0 || bc[i] <= 0 {
+		logf[i] = math.Inf(-1)
+		if n > 0 && !math.IsInf(lbc[i], 0) && !math.IsNaN(lbc[i]) {
+			logf[i] = lbc[i] - beta*m.Grains.Energy(i)
+			lmax = math.Max(lmax, logf[i])
+		}
+	}
+	sum := 0.0
+	for _, lf := range logf {
+		sum += math.Exp(lf - lmax)
+	}
+	for i, lf := range logf {
+		f := math.Exp(lf-lmax) / sum
+		if !(f >= 0x1p-1022) {
 			continue
 		}
-		e := m.Grains.Energy(i)
-		w.E = append(w.E, e)
+		w.E = append(w.E, m.Grains.Energy(i))
 		w.K = append(w.K, m.K[i])
-		w.Counts = append(w.Counts, n)
+		w.Counts = append(w.Counts, m.Counts[i])
 		w.Index = append(w.Index, i)
-		lf := math.Log(bc[i]) - beta*e
-		logf = append(logf, lf)
-		lmax = math.Max(lmax, lf)
-	}
-	w.F = make([]float64, len(logf))
-	sum := 0.0
-	for i, lf := range logf {
-		w.F[i] = math.Exp(lf - lmax)
-		sum += w.F[i]
-	}
-	for i := range w.F {
-		w.F[i] /= sum
+		w.F = append(w.F, f)
 	}
 	return w
 }

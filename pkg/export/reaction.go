@@ -6,6 +6,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/units"
@@ -60,12 +61,23 @@ func g4(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
 
 // wrap folds text into lines of at most width runes at spaces; a word
 // longer than width (a long path or name) is cut into pieces of width, so
-// no text can make a comment line too long.
+// no text can make a comment line too long. Every character that is not
+// printable (unicode.IsPrint: control characters such as ESC or NUL, which
+// YAML refuses anywhere in a file and which would reach a terminal raw,
+// format characters such as a byte-order mark or a bidirectional override,
+// unassigned code points) becomes '?'; line and paragraph separators are
+// spaces to strings.Fields, so no text can break a comment line either.
 func wrap(s string, width int) []string {
 	var out []string
 	line := ""
 	var words []string
 	for _, w := range strings.Fields(s) {
+		w = strings.Map(func(r rune) rune {
+			if !unicode.IsPrint(r) {
+				return '?'
+			}
+			return r
+		}, w)
 		for r := []rune(w); len(r) > 0; {
 			n := min(width, len(r))
 			words = append(words, string(r[:n]))

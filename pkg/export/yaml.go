@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"go.yaml.in/yaml/v3"
 
@@ -126,10 +127,29 @@ func PhaseSkeleton(reactionsFile string, species []string) []byte {
 		if i > 0 {
 			b.WriteString(", ")
 		}
-		b.WriteString(s)
+		b.WriteString(flowString(s))
 	}
 	fmt.Fprintf(&b, "]\n  kinetics: gas\n  reactions: [%s/reactions]\n  state: {T: 300.0, P: 1 atm}\n\nspecies: []  # add each species with its thermo data\n", reactionsFile)
 	return b.Bytes()
+}
+
+// flowString writes s as a scalar inside a YAML flow sequence ([a, b]):
+// plain if it is made of letters, digits and "_-()." and YAML reads it back
+// as the same string (not a number or a boolean), else double-quoted: flow
+// context gives more characters a meaning than block context (yamlString)
+// does (", [ ] { }", and '?' opening a key). Go's quoting of printable text
+// is YAML's.
+func flowString(s string) string {
+	plain := s != "" && yamlString(s) == s
+	for _, r := range s {
+		if !unicode.IsLetter(r) && !unicode.IsDigit(r) && !strings.ContainsRune("_-().", r) {
+			plain = false
+		}
+	}
+	if plain {
+		return s
+	}
+	return strconv.Quote(s)
 }
 
 // yamlQuantity is the quantity unit as Cantera's YAML units block spells

@@ -21,7 +21,9 @@ import (
 //   - the master-equation grain: collision.GrainFor, moved onto E0 as
 //     collision.MatrixSize does;
 //   - the memory estimates: checkCountSize and checkMatrixSize, applied by
-//     New with the file's settings and by each calculation with its own.
+//     New with the file's settings and by each calculation with its own;
+//     with them, checkCountRange, whether the numbers of states stay within
+//     what rrkm's scaled counts hold (rrkm.MaxLogStates).
 
 // Setting is an energy given outside the input file, such as a
 // command-line option, with the text the user wrote, for messages. The zero
@@ -117,7 +119,7 @@ func (n *Network) checkCountSize() error {
 	top := n.CountTop(g.Ceiling)
 	bins := fineBins(g.Fine, top)
 	if bins <= rrkm.MaxFineBins {
-		return nil
+		return n.checkCountRange()
 	}
 	limit := float64(rrkm.MaxFineBins)
 	err := &sizeError{rrkm.ErrTooLarge, fmt.Sprintf("the state count up to %s cm-1 on a fine grain of %s cm-1 would need %s bins, %s of memory; the limit is %s",
@@ -148,6 +150,61 @@ func (n *Network) checkCountSize() error {
 		hint = "with this fine grain not even E0 fits: use a coarser energy-grid.fine-grain"
 	}
 	return m.FieldError(m.TemperaturePath(i), err, hint)
+}
+
+// countRange returns the largest estimated ln W over the species counted up
+// to top cm⁻¹ above the reactant (rrkm.Species.LogSumEstimate: each
+// transition state to top − E0, or to the Eckart barrier's lower end) and
+// the species it belongs to.
+func (n *Network) countRange(top float64) (float64, string) {
+	worst, name := n.reactant().Species.LogSumEstimate(top), n.reactant().Name
+	for _, c := range n.Channels {
+		if c.TS == nil {
+			continue
+		}
+		tsTop := top - c.E0
+		if e := c.Eckart(); e != nil {
+			tsTop = top - e.Emin()
+		}
+		if l := c.TS.Species.LogSumEstimate(tsTop); l > worst {
+			worst, name = l, c.TS.Name
+		}
+	}
+	return worst, name
+}
+
+// checkCountRange refuses a state count whose numbers of states would pass
+// what rrkm's scaled counts hold (rrkm.MaxLogStates, about 1e460; a
+// molecule of several hundred atoms at 2500 K), naming energy-grid.ceiling
+// if the automatic ceiling would fit, else the highest temperature, with
+// the highest temperature that fits.
+func (n *Network) checkCountRange() error {
+	m := n.Model
+	g := m.EnergyGrid
+	fits := func(top float64) bool { l, _ := n.countRange(top); return l <= rrkm.MaxLogStates }
+	top := n.CountTop(g.Ceiling)
+	if fits(top) {
+		return nil
+	}
+	l, name := n.countRange(top)
+	err := &sizeError{rrkm.ErrRange, fmt.Sprintf("the state count of %s up to %s cm-1 would reach about 1e%.0f states, beyond the 1e%.0f that the count holds",
+		name, num(top), l/math.Ln10, rrkm.MaxLogStates/math.Ln10)}
+	if g.Ceiling > 0 && fits(n.CountTop(0)) {
+		return m.FieldError("energy-grid.ceiling", err, "lower the ceiling, or delete it to have it chosen automatically")
+	}
+	// The highest temperature whose automatic count fits, by bisection.
+	i := len(m.Temperatures) - 1
+	lo, hi := 0.0, m.Temperatures[i]
+	for range 60 {
+		if mid := (lo + hi) / 2; fits(n.countTopAt(0, mid)) {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return m.FieldError(m.TemperaturePath(i), err,
+		fmt.Sprintf("the automatic ceiling follows the thermal distribution, where a molecule this large has more states than the count holds; it fits up to %s K, or give a lower energy-grid.ceiling (or --ceiling)",
+			num(math.Floor(lo))))
 }
 
 // meGrid is one master-equation grid a run builds.

@@ -29,7 +29,42 @@ type Counter struct {
 	cum1    []float64 // cum1[j] = Σ_{k<j} k·comb[k]
 	rotB    float64
 	rotDim  int
+	// scale is the binary exponent of the stored counts: comb, cum0, cum1
+	// and rot hold the true numbers of states times 2^−scale (see
+	// combMaxExp). It is 0 unless the counts outgrow float64.
+	scale int
 }
+
+// The numbers of states of a large molecule outgrow float64 (1.8e308) at the
+// energies its thermal distribution reaches: a molecule of 150 atoms passes
+// 1e308 states per cm⁻¹ near 7e5 cm⁻¹, which its Boltzmann population
+// occupies at 2000–2500 K. The counter therefore keeps its comb times
+// 2^−scale, an exact change of unit (a power of two) that every sum, rotor
+// convolution and grain count inherits because each is linear in the comb:
+// whenever the comb's largest entry could pass 2^combMaxExp it is scaled
+// down to 2^combResetExp. Above 2^combMaxExp there is room for what is built
+// from the comb: prefix sums Σ j·c_j (at most 2^52 times more over 5e7
+// bins), the rotors' block moments (at most 2^130 more) and powers of the
+// energy (x^p < 2^200 for x < 1e7 cm⁻¹ and p ≤ 8.5). The scale may grow
+// until a state split between two fine bins (whose smaller share is at least
+// 1e-9, see split) would leave the normal floating-point range: maxScale.
+// A count that needs more (about 2^(maxScale+combMaxExp) ≈ 1e470 states in a
+// fine bin) fails with ErrRange.
+const (
+	combMaxExp   = 600
+	combResetExp = 300
+	maxScale     = 960
+)
+
+// ErrRange reports a number of states beyond what the counter can represent
+// (about 1e470, see combMaxExp).
+var ErrRange = errors.New("rrkm: number of states beyond the floating-point range")
+
+// MaxLogStates is the natural logarithm of a number of states (about 1e460)
+// that a Counter always represents: a count whose largest fine bin stays
+// below it never fails with ErrRange, since one step of the count grows an
+// entry by less than 2^32 (see rescaler).
+const MaxLogStates = (maxScale + combMaxExp - 32) * math.Ln2
 
 // NewCounter counts the quantized states of s on a fine grain of fine cm⁻¹ up
 // to ceiling cm⁻¹ by the Beyer–Swinehart algorithm (Beyer & Swinehart 1973),
@@ -63,8 +98,14 @@ func NewCounterContext(ctx context.Context, s *Species, fine, ceiling float64) (
 	n := int(nf)
 	comb := make([]float64, n)
 	comb[0] = 1
+	r := rescaler{bound: 1}
 	for _, v := range s.Vibrations {
 		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		// One oscillator of n0 ≥ 1 bins multiplies no entry by more than
+		// the number of its quanta that fit, (n−1)/n0 + 1.
+		if err := r.before(comb, float64(n-1)/math.Max(1, math.Floor(v/fine))+1, s.Name, ceiling); err != nil {
 			return nil, err
 		}
 		addOscillator(comb, v/fine)
@@ -78,15 +119,22 @@ func NewCounterContext(ctx context.Context, s *Species, fine, ceiling float64) (
 		if err != nil {
 			return nil, fmt.Errorf("rrkm: species %q: hindered[%d]: %w", s.Name, i, err)
 		}
+		if err := r.before(comb, totalDegeneracy(levels), s.Name, ceiling); err != nil {
+			return nil, err
+		}
 		if comb, err = convolveLevels(ctx, comb, levels, fine); err != nil {
 			return nil, err
 		}
 	}
-	comb, err := convolveLevels(ctx, comb, s.levels(), fine)
+	levels := s.levels()
+	if err := r.before(comb, totalDegeneracy(levels), s.Name, ceiling); err != nil {
+		return nil, err
+	}
+	comb, err := convolveLevels(ctx, comb, levels, fine)
 	if err != nil {
 		return nil, err
 	}
-	c := &Counter{species: s, fine: fine, comb: comb, ceiling: ceiling}
+	c := &Counter{species: s, fine: fine, comb: comb, ceiling: ceiling, scale: r.scale}
 	c.cum0 = make([]float64, n+1)
 	c.cum1 = make([]float64, n+1)
 	for j, x := range comb {
@@ -98,6 +146,54 @@ func NewCounterContext(ctx context.Context, s *Species, fine, ceiling float64) (
 		c.rot = newPowerSum(comb, fine)
 	}
 	return c, nil
+}
+
+// rescaler keeps the comb below 2^combMaxExp while it is built: bound is an
+// upper bound on its largest entry, kept from the growth factors of the
+// steps, so that the comb is scanned only when the bound could pass the
+// limit (never for a small molecule).
+type rescaler struct {
+	bound float64
+	scale int
+}
+
+// before prepares the comb for a step that multiplies no entry by more than
+// growth: if the bound could then pass 2^combMaxExp, the comb is scanned and,
+// if needed, scaled down by a power of two (exact).
+func (r *rescaler) before(comb []float64, growth float64, name string, ceiling float64) error {
+	if next := r.bound * growth; next < 0x1p600 && !math.IsInf(next, 0) {
+		r.bound = next
+		return nil
+	}
+	top := 0.0
+	for _, x := range comb {
+		top = math.Max(top, x)
+	}
+	_, e := math.Frexp(top) // top < 2^e
+	if g := int(math.Ceil(math.Log2(growth))); e+g > combMaxExp {
+		k := min(e-combResetExp, maxScale-r.scale)
+		if e-k+g > combMaxExp {
+			return fmt.Errorf("%w: species %q: more than 1e%.0f states below %.0f cm-1",
+				ErrRange, name, float64(r.scale+e)*math.Log10(2), ceiling)
+		}
+		for j := range comb {
+			comb[j] = math.Ldexp(comb[j], -k)
+		}
+		r.scale += k
+		top = math.Ldexp(top, -k)
+	}
+	r.bound = top * growth
+	return nil
+}
+
+// totalDegeneracy is Σ of the levels' degeneracies, the most a convolution
+// with them multiplies an entry of the comb by.
+func totalDegeneracy(levels []Level) float64 {
+	g := 0.0
+	for _, l := range levels {
+		g += l.Degeneracy
+	}
+	return math.Max(g, 1)
 }
 
 // split returns the grain index n and fraction f of an energy r = x/δ in
@@ -118,6 +214,9 @@ func split(r float64) (int, float64) {
 // For a fractional r = n+f each quantum is shared between n and n+1 grains
 // with weights 1−f and f, which keeps its mean energy exactly.
 func addOscillator(c []float64, r float64) {
+	if !(r < float64(len(c))) {
+		return // a quantum beyond the comb adds no state to it
+	}
 	n, f := split(r)
 	if f == 0 {
 		for j := n; j < len(c); j++ {
@@ -143,6 +242,9 @@ func convolveLevels(ctx context.Context, c []float64, levels []Level, fine float
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
+		if !(l.Energy/fine < float64(len(c))) {
+			continue // a level beyond the comb (split's int would overflow)
+		}
 		n, f := split(l.Energy / fine)
 		for j := len(c) - 1; j >= n; j-- {
 			x := (1 - f) * c[j-n]
@@ -165,13 +267,24 @@ func (c *Counter) Species() *Species { return c.species }
 func (c *Counter) Ceiling() float64 { return c.ceiling }
 
 // Comb returns the fine-grain counts of quantized states: element j is the
-// number of states at energy j·δ. The slice is the counter's own; do not
-// modify it.
+// number of states at energy j·δ, times 2^−Scale(). The slice is the
+// counter's own; do not modify it.
 func (c *Counter) Comb() []float64 { return c.comb }
 
+// Scale returns the binary exponent of the counter's stored counts: Comb and
+// the Scaled… and Log… methods' linear values are the true numbers times
+// 2^−Scale(). It is 0 unless the numbers of states up to the ceiling
+// outgrow float64 (a molecule of about 100 atoms or more counted to its
+// thermal energies at 2000 K).
+func (c *Counter) Scale() int { return c.scale }
+
 // Sum returns the sum of states W(E), the number of states with energy below
-// e cm⁻¹ (a state lying exactly at e counts one half), rotors included.
-func (c *Counter) Sum(e float64) float64 {
+// e cm⁻¹ (a state lying exactly at e counts one half), rotors included:
+// +Inf beyond the floating-point range (see ScaledSum).
+func (c *Counter) Sum(e float64) float64 { return math.Ldexp(c.ScaledSum(e), c.scale) }
+
+// ScaledSum returns W(e)·2^−Scale(), finite for every e up to the ceiling.
+func (c *Counter) ScaledSum(e float64) float64 {
 	if e <= 0 {
 		if e == 0 && c.rot == nil {
 			return c.comb[0] / 2
@@ -192,8 +305,25 @@ func (c *Counter) Sum(e float64) float64 {
 	return c.cum0[n+1]
 }
 
-// IntegratedSum returns ∫₀^e W(x) dx in cm⁻¹, used for grain averages of W.
+// LogSum returns ln W(e) (−Inf if W(e) = 0), at any size.
+func (c *Counter) LogSum(e float64) float64 {
+	return math.Log(c.ScaledSum(e)) + float64(c.scale)*math.Ln2
+}
+
+// LogStates returns ln(W(hi) − W(lo)), the natural logarithm of the number
+// of states in [lo, hi) (−Inf if there is none), at any size.
+func (c *Counter) LogStates(lo, hi float64) float64 {
+	return math.Log(c.ScaledSum(hi)-c.ScaledSum(lo)) + float64(c.scale)*math.Ln2
+}
+
+// IntegratedSum returns ∫₀^e W(x) dx in cm⁻¹, used for grain averages of W
+// (+Inf beyond the floating-point range).
 func (c *Counter) IntegratedSum(e float64) float64 {
+	return math.Ldexp(c.integratedSum(e), c.scale)
+}
+
+// integratedSum is IntegratedSum times 2^−scale.
+func (c *Counter) integratedSum(e float64) float64 {
 	if e <= 0 {
 		return 0
 	}
@@ -213,8 +343,8 @@ func (c *Counter) IntegratedSum(e float64) float64 {
 }
 
 // fracSum returns the Riemann–Liouville integral of order q ≥ 0 of the sum
-// of states, I_q(e) = ∫₀^e W(x)·(e − x)^(q−1)/Γ(q) dx, in cm⁻¹^q: I_0 = W
-// (Sum), I_1 = ∫W (IntegratedSum). The comb convolved with the rotors'
+// of states, I_q(e) = ∫₀^e W(x)·(e − x)^(q−1)/Γ(q) dx, in cm⁻¹^q, times
+// 2^−scale: I_0 = W (ScaledSum), I_1 = ∫W (integratedSum). The comb convolved with the rotors'
 // W_rot(x) = B·x^(D/2)/Γ(D/2+1) and then with x^(q−1)/Γ(q) is the comb
 // convolved with B·x^(D/2+q)/Γ(D/2+q+1) (the Beta integral), so
 //
@@ -226,9 +356,9 @@ func (c *Counter) IntegratedSum(e float64) float64 {
 func (c *Counter) fracSum(e, q float64, ps *powerSum) float64 {
 	switch {
 	case q == 0:
-		return c.Sum(e)
+		return c.ScaledSum(e)
 	case q == 1 && c.rot == nil:
-		return c.IntegratedSum(e) // exact from prefix sums
+		return c.integratedSum(e) // exact from prefix sums
 	case e <= 0:
 		return 0
 	}

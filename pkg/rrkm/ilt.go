@@ -80,8 +80,8 @@ func ILTMicro(reactant *Counter, p ILT, g Grains) (*Micro, error) {
 	if err := p.Validate(); err != nil {
 		return nil, err
 	}
-	m := &Micro{Grains: g, E0: p.EInf, L: 1,
-		Counts: reactant.Counts(g, 0),
+	m := &Micro{Grains: g, E0: p.EInf, L: 1, Scale: reactant.scale,
+		Counts: reactant.ScaledCounts(g, 0),
 		SumTS:  reactant.fracCounts(g, p.EInf, p.N),
 		K:      make([]float64, g.N)}
 	// A′/(c·Δ), A′ = A/(kT0)^n, turns the grain integral of ρ ⊗ x^(n−1)/Γ(n)

@@ -12,9 +12,13 @@ type Micro struct {
 	Grains Grains
 	E0     float64   // threshold, cm⁻¹
 	L      float64   // reaction-path degeneracy
-	Counts []float64 // reactant states per grain
-	SumTS  []float64 // grain-averaged W‡(E − E0), or N‡(E) with tunnelling
+	Counts []float64 // reactant states per grain, times 2^−Scale
+	SumTS  []float64 // grain-averaged W‡(E − E0), or N‡(E) with tunnelling, times 2^−Scale
 	K      []float64 // k(E) in s⁻¹; 0 where the grain holds no reactant state
+	// Scale is the binary exponent of Counts and SumTS, the reactant
+	// counter's Counter.Scale: 0 unless the numbers of states outgrow
+	// float64. K and thermal averages do not depend on it.
+	Scale int
 	// Tunnel is the barrier k(E) tunnels through, nil for plain RRKM.
 	Tunnel *Eckart
 }
@@ -25,11 +29,11 @@ type Micro struct {
 // carry no population, and a rate from an empty or sparse bin would be noise.
 func RRKM(reactant, ts *Counter, l float64, g Grains) *Micro {
 	e0 := ts.species.E0
-	m := &Micro{Grains: g, E0: e0, L: l,
-		Counts: reactant.Counts(g, 0),
-		SumTS:  ts.AveragedSums(g, e0),
+	m := &Micro{Grains: g, E0: e0, L: l, Scale: reactant.scale,
+		Counts: reactant.ScaledCounts(g, 0),
+		SumTS:  ts.averagedSums(g, e0),
 		K:      make([]float64, g.N)}
-	m.rates()
+	m.rates(ts.scale)
 	return m
 }
 
@@ -45,12 +49,12 @@ func RRKMTunnel(reactant, ts *Counter, l float64, g Grains, e *Eckart) *Micro {
 		return RRKM(reactant, ts, l, g)
 	}
 	checkTop("RRKMTunnel", ts.species, e)
-	m := &Micro{Grains: g, E0: ts.species.E0, L: l,
-		Counts: reactant.Counts(g, 0),
-		SumTS:  ts.AveragedTunnelSums(g, *e),
+	m := &Micro{Grains: g, E0: ts.species.E0, L: l, Scale: reactant.scale,
+		Counts: reactant.ScaledCounts(g, 0),
+		SumTS:  ts.averagedTunnelSums(g, *e),
 		K:      make([]float64, g.N),
 		Tunnel: e}
-	m.rates()
+	m.rates(ts.scale)
 	return m
 }
 
@@ -62,13 +66,18 @@ func checkTop(where string, ts *Species, e *Eckart) {
 	}
 }
 
-// rates fills K from Counts and SumTS.
-func (m *Micro) rates() {
+// rates fills K from Counts and from SumTS, which on entry is in units of
+// 2^tsScale (the transition state's counter), and then brings SumTS to the
+// reactant's 2^Scale. The ratio is formed before the powers of two, which
+// may be far apart, are applied, so that neither overflows.
+func (m *Micro) rates(tsScale int) {
 	l, g := m.L, m.Grains
+	d := tsScale - m.Scale
 	for i, n := range m.Counts {
 		if n > 0 && m.SumTS[i] > 0 {
-			m.K[i] = l * units.LightCm * m.SumTS[i] * g.Width / n
+			m.K[i] = math.Ldexp(l*units.LightCm*m.SumTS[i]*g.Width/n, d)
 		}
+		m.SumTS[i] = math.Ldexp(m.SumTS[i], d)
 	}
 }
 

@@ -113,3 +113,65 @@ func (s *Species) ThermalCeiling(tK float64) float64 {
 	mean, sd := s.ThermalEnergy(tK)
 	return mean + 12*sd + 10*kT(tK)
 }
+
+// LogSumEstimate returns an estimate, from above, of ln W(e), the natural
+// logarithm of the number of quantized states (those a Counter's comb
+// holds: vibrations, hindered rotors, electronic levels) below e cm⁻¹, for
+// checking a count before it is made. The vibrations enter by the Chernoff
+// bound W(e) ≤ Q(β)·e^(βe), true for every β > 0 because each state below e
+// has e^(β(e−E)) ≥ 1, minimised over β; the other degrees by the number of
+// their levels below e (a convolution multiplies the count by at most that
+// much), with each hindered rotor's levels estimated as those of the free
+// rotor up to e plus its largest potential, 2·sqrt(E/B)/σ + 1.
+func (s *Species) LogSumEstimate(e float64) float64 {
+	if !(e > 0) {
+		return 0
+	}
+	f := func(u float64) float64 { // ln Q_vib + e/kT at T = e^u
+		kt := kT(math.Exp(u))
+		l := e / kt
+		for _, v := range s.Vibrations {
+			l -= math.Log1p(-math.Exp(-v / kt))
+		}
+		return l
+	}
+	// ln Q(β) + βe is convex in β, so unimodal in ln T: golden section
+	// over 1 K to 1e8 K.
+	a, b := 0.0, math.Log(1e8)
+	const r = 0.6180339887498949
+	x1, x2 := b-r*(b-a), a+r*(b-a)
+	f1, f2 := f(x1), f(x2)
+	for range 100 {
+		if f1 <= f2 {
+			b, x2, f2 = x2, x1, f1
+			x1 = b - r*(b-a)
+			f1 = f(x1)
+		} else {
+			a, x1, f1 = x1, x2, f2
+			x2 = a + r*(b-a)
+			f2 = f(x2)
+		}
+	}
+	l := math.Min(f1, f2)
+	if len(s.Vibrations) == 0 {
+		l = 0
+	}
+	for _, h := range s.Hindered {
+		vmax := h.V0
+		for _, c := range h.Cos {
+			vmax += math.Abs(c)
+		}
+		sigma := h.Symmetry
+		if sigma <= 0 {
+			sigma = h.Fold
+		}
+		l += math.Log(2*math.Sqrt((e+vmax)/h.B)/float64(max(sigma, 1)) + 1)
+	}
+	g := 0.0
+	for _, lv := range s.levels() {
+		if lv.Energy < e {
+			g += lv.Degeneracy
+		}
+	}
+	return l + math.Log(math.Max(g, 1))
+}

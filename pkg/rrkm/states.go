@@ -26,26 +26,43 @@ func GrainsTo(w, ceiling float64) Grains {
 
 // Counts returns the number of states in each grain, the exact integral of
 // ρ over [(i−½)Δ, (i+½)Δ), shifted up by offset cm⁻¹ (the threshold of a
-// transition state; 0 for a reactant).
+// transition state; 0 for a reactant); +Inf where that number is beyond
+// the floating-point range (see ScaledCounts).
 func (c *Counter) Counts(g Grains, offset float64) []float64 {
+	return unscale(c.ScaledCounts(g, offset), c.scale)
+}
+
+// ScaledCounts returns Counts times 2^−Scale(), finite at any size.
+func (c *Counter) ScaledCounts(g Grains, offset float64) []float64 {
 	c.need(g, offset)
 	out := make([]float64, g.N)
-	lo := c.Sum(-0.5*g.Width - offset)
+	lo := c.ScaledSum(-0.5*g.Width - offset)
 	for i := range out {
-		hi := c.Sum((float64(i)+0.5)*g.Width - offset)
+		hi := c.ScaledSum((float64(i)+0.5)*g.Width - offset)
 		out[i] = hi - lo
 		lo = hi
 	}
 	return out
 }
 
+// unscale multiplies xs in place by 2^scale and returns it.
+func unscale(xs []float64, scale int) []float64 {
+	if scale != 0 {
+		for i, x := range xs {
+			xs[i] = math.Ldexp(x, scale)
+		}
+	}
+	return xs
+}
+
 // Densities returns the grain-averaged density of states in states per cm⁻¹.
+// It is +Inf where the density is beyond the floating-point range.
 func (c *Counter) Densities(g Grains) []float64 {
-	n := c.Counts(g, 0)
+	n := c.ScaledCounts(g, 0)
 	for i := range n {
 		n[i] /= g.Width
 	}
-	return n
+	return unscale(n, c.scale)
 }
 
 // SumsAt returns W at the grain centres (states below E_i, half of any at E_i).
@@ -61,12 +78,18 @@ func (c *Counter) SumsAt(g Grains) []float64 {
 // AveragedSums returns the grain averages of W(E − offset), the sum of states
 // measured from a threshold at offset cm⁻¹: the quantity k(E) needs, because a
 // grain average keeps the thermal average of k(E) equal to canonical TST.
+// It is +Inf where the average is beyond the floating-point range.
 func (c *Counter) AveragedSums(g Grains, offset float64) []float64 {
+	return unscale(c.averagedSums(g, offset), c.scale)
+}
+
+// averagedSums is AveragedSums times 2^−scale.
+func (c *Counter) averagedSums(g Grains, offset float64) []float64 {
 	c.need(g, offset)
 	out := make([]float64, g.N)
-	lo := c.IntegratedSum(-0.5*g.Width - offset)
+	lo := c.integratedSum(-0.5*g.Width - offset)
 	for i := range out {
-		hi := c.IntegratedSum((float64(i)+0.5)*g.Width - offset)
+		hi := c.integratedSum((float64(i)+0.5)*g.Width - offset)
 		out[i] = (hi - lo) / g.Width
 		lo = hi
 	}
@@ -74,9 +97,9 @@ func (c *Counter) AveragedSums(g Grains, offset float64) []float64 {
 }
 
 // fracCounts returns, per grain, the exact integral over the grain of
-// [ρ ⊗ x^(q−1)/Γ(q)](E − offset), q ≥ 0 (for q = 0 the kernel is δ(x)): the
-// differences of fracSum at the grain edges. q = 0 gives Counts(g, offset),
-// q = 1 gives Δ·AveragedSums(g, offset).
+// [ρ ⊗ x^(q−1)/Γ(q)](E − offset), q ≥ 0 (for q = 0 the kernel is δ(x)), times
+// 2^−scale: the differences of fracSum at the grain edges. q = 0 gives
+// ScaledCounts(g, offset), q = 1 gives Δ·averagedSums(g, offset).
 func (c *Counter) fracCounts(g Grains, offset, q float64) []float64 {
 	c.need(g, offset)
 	ps := c.combPowerSum(q)
@@ -102,10 +125,28 @@ func (c *Counter) need(g Grains, offset float64) {
 // exact from the fine comb, which matters at low temperature where a coarse
 // grain holds a few sparse levels. For a species with classical rotors the
 // density is continuous and the plain count is used (second-order error).
-// Σ_i BoltzmannCounts_i·exp(−E_i/kT) is then the partition function.
+// Σ_i BoltzmannCounts_i·exp(−E_i/kT) is then the partition function. It is
+// +Inf where the number is beyond the floating-point range (see
+// LogBoltzmannCounts).
 func (c *Counter) BoltzmannCounts(g Grains, tK float64) []float64 {
+	return unscale(c.scaledBoltzmannCounts(g, tK), c.scale)
+}
+
+// LogBoltzmannCounts returns the natural logarithms of BoltzmannCounts (−Inf
+// for a grain without states), finite at any size: the Boltzmann weights of
+// the grains are exp(LogBoltzmannCounts_i − E_i/kT)/Q.
+func (c *Counter) LogBoltzmannCounts(g Grains, tK float64) []float64 {
+	out := c.scaledBoltzmannCounts(g, tK)
+	for i, x := range out {
+		out[i] = math.Log(x) + float64(c.scale)*math.Ln2
+	}
+	return out
+}
+
+// scaledBoltzmannCounts is BoltzmannCounts times 2^−scale.
+func (c *Counter) scaledBoltzmannCounts(g Grains, tK float64) []float64 {
 	if c.rot != nil {
-		return c.Counts(g, 0)
+		return c.ScaledCounts(g, 0)
 	}
 	c.need(g, 0)
 	beta := 1 / kT(tK)

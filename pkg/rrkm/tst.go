@@ -47,15 +47,28 @@ func KInfTunnel(reactant, ts *Species, l, tK float64, e *Eckart) float64 {
 }
 
 // thermalAverage returns the Boltzmann average Σ N_i k_i e^(−E_i/kT) / Σ N_i
-// e^(−E_i/kT) of a microcanonical rate k over grains with counts N.
+// e^(−E_i/kT) of a microcanonical rate k over grains with counts N (in any
+// unit, such as Micro.Counts in 2^Scale states). The weights are formed
+// relative to the largest in log space: scaled counts of a large molecule
+// times e^(−E/kT) can fall below the smallest normal float64 where the
+// weight matters.
 func thermalAverage(counts, k []float64, g Grains, tK float64) float64 {
 	if len(counts) != len(k) {
 		panic("rrkm: thermalAverage: counts and k differ in length")
 	}
 	beta := 1 / kT(tK)
-	num, den := 0.0, 0.0
+	lw := make([]float64, len(counts))
+	top := math.Inf(-1)
 	for i, n := range counts {
-		w := n * math.Exp(-beta*g.Energy(i))
+		lw[i] = math.Inf(-1) // an empty grain
+		if n > 0 {
+			lw[i] = math.Log(n) - beta*g.Energy(i)
+		}
+		top = math.Max(top, lw[i])
+	}
+	num, den := 0.0, 0.0
+	for i, l := range lw {
+		w := math.Exp(l - top)
 		num += w * k[i]
 		den += w
 	}

@@ -369,8 +369,14 @@ func (q *scaledGL) adapt(lnf func(float64) float64, a, b, whole, tol float64, de
 //
 // The counter must cover g.Top() − max(0, V1 − V2): deep tunnelling reaches
 // transition-state levels up to that energy. AveragedTunnelSums panics if it
-// does not, or if e is invalid.
+// does not, or if e is invalid. Sums beyond the floating-point range are
+// +Inf.
 func (c *Counter) AveragedTunnelSums(g Grains, e Eckart) []float64 {
+	return unscale(c.averagedTunnelSums(g, e), c.scale)
+}
+
+// averagedTunnelSums is AveragedTunnelSums times 2^−scale.
+func (c *Counter) averagedTunnelSums(g Grains, e Eckart) []float64 {
 	p := e.mustParams("rrkm: AveragedTunnelSums")
 	out := make([]float64, g.N)
 	top := g.Top()
@@ -402,8 +408,8 @@ func (c *Counter) AveragedTunnelSums(g Grains, e Eckart) []float64 {
 }
 
 // fineCounts returns n_j, j = 0..jmax, the states of the counter in
-// [(j−½)δ, (j+½)δ), rotors included; for quantized degrees alone this is the
-// comb itself.
+// [(j−½)δ, (j+½)δ) times 2^−scale, rotors included; for quantized degrees
+// alone this is the comb itself.
 func (c *Counter) fineCounts(jmax int) []float64 {
 	n := make([]float64, jmax+1)
 	if c.rot == nil {
