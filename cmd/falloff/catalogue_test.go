@@ -72,7 +72,6 @@ var catalogue = map[string]struct{ field, value string }{
 	"tab-indent":                               {"", ""},
 	"temperature-duplicate":                    {"grid.temperatures.values[2]", "300"},
 	"temperature-in-pressure-unit":             {"grid.temperatures.from", "300 bar"},
-	"temperature-too-high-memory":              {"grid.temperatures.to", "1e7 K"},
 	"temperature-zero":                         {"grid.temperatures.values[0]", "0"},
 	"temperatures-empty":                       {"grid.temperatures.values", "[]"},
 	"temperatures-missing":                     {"grid.temperatures", ""},
@@ -113,6 +112,67 @@ var catalogue = map[string]struct{ field, value string }{
 	"fit-unit-in-row":           {"column 3 (k/cm3/mol/s)", "2.858e+13 cm3/mol/s"},
 	"fit-unknown-pressure-unit": {"column 2", "P/psi"},
 	"fit-replicates-disagree":   {"", "300,1,1.196e+16"},
+
+	// Hostile input (issue 14): values beyond any physical range, names
+	// that would act on the terminal or break field paths and mechanism
+	// files, YAML aliases that would never end or expand a few lines into
+	// billions of values, text too long to echo whole.
+	"alias-bomb":                        {"", ""},
+	"alias-self":                        {"", ""},
+	"alpha-exponent-huge":               {"energy-transfer.alpha-exponent", "1000"},
+	"alpha-huge":                        {"energy-transfer.alpha-300", "250 kcal/mol"},
+	"barrierless-a-huge":                {"reaction.barrierless.A", "1e30 s-1"},
+	"barrierless-energy-zero":           {"reaction.barrierless.energy", "0 kcal/mol"},
+	"barrierless-n-huge":                {"reaction.barrierless.n", "100"},
+	"bath-gas-name-escape":              {"bath.gas", "Ar\u001b[2J"},
+	"bath-mass-tiny":                    {"bath.mass", "0.04 amu"},
+	"collision-rate-huge":               {"bath.collision-rate", "1e300 cm3/molecule/s"},
+	"collision-rate-tiny":               {"bath.collision-rate", "1e-20 cm3/molecule/s"},
+	"eckart-competing-above-barrier":    {"reaction.competing[0].reaction-energy", "47 kcal/mol"},
+	"eckart-products-above-barrier":     {"reaction.reaction-energy", "50 kcal/mol"},
+	"eckart-products-at-barrier":        {"reaction.reaction-energy", "42.0 kcal/mol"},
+	"electronic-degeneracy-huge":        {"molecules.ring.electronic[0].degeneracy", "100000"},
+	"electronic-level-above-ionization": {"molecules.ring.electronic[1].energy", "30 eV"},
+	"electronic-level-absurd":           {"molecules.ring.electronic[1].energy", "1e19 cm-1"},
+	"fit-escape-cell":                   {"column 3 (k/cm3/mol/s)", "\u001b[2Jfast"},
+	"fit-escape-header":                 {"column 2", "P/\u001b[31matm"},
+	"fit-long-cell":                     {"column 3 (k/cm3/mol/s)", "888888888888888888888888888888888888888888888888888888888888"},
+	"imaginary-frequency-huge":          {"molecules.ring-TS.imaginary-frequency", "1e6 cm-1"},
+	"lennard-jones-epsilon-huge":        {"molecules.ring.lennard-jones.epsilon", "400 kcal/mol"},
+	"lennard-jones-epsilon-tiny":        {"molecules.ring.lennard-jones.epsilon", "1e-300 K"},
+	"lennard-jones-sigma-unit-slip":     {"molecules.ring.lennard-jones.sigma", "500 angstrom"},
+	"linear-symmetry-three":             {"molecules.ring.rotation.symmetry", "3"},
+	"mass-tiny":                         {"molecules.ring.mass", "1e-300 amu"},
+	"name-dot":                          {"molecules.ring.mass", "ring.mass"},
+	"name-escape":                       {"molecules.ring-TS", "ring-TS\u001b[31m"},
+	"name-leading-star":                 {"reaction.products[1]", "*frag-b"},
+	"name-line-separator":               {"reaction.competing[0].name", "open\u2028ring"},
+	"name-next-line":                    {"molecules.ring\\u0085TS", "ring\u0085TS"},
+	"name-space-in-product":             {"reaction.products[1]", "frag b"},
+	"name-trailing-colon":               {"molecules.ring-TS:", "ring-TS:"},
+	"name-vertical-tab":                 {"reaction.products[1]", "frag\u000bb"},
+	"optical-isomers-huge":              {"molecules.ring.optical-isomers", "1000"},
+	"path-degeneracy-huge":              {"reaction.path-degeneracy", "1e308"},
+	"pressure-too-high":                 {"grid.pressures.to", "1e9 bar"},
+	"reaction-energy-absurd":            {"reaction.reaction-energy", "1e6 kcal/mol"},
+	"rotational-constant-in-mhz":        {"molecules.ring.rotation.constants.values[0]", "10493"},
+	"same-ts-twice":                     {"reaction.competing[0].via", "ring-TS"},
+	"symmetry-huge":                     {"molecules.ring.rotation.symmetry", "1000"},
+	"temperature-too-high":              {"grid.temperatures.to", "1e7 K"},
+	"temperature-too-low-for-barrier":   {"grid.temperatures.from", "10 K"},
+	"title-control-character":           {"title", "Ring \u001b[2Jopening of an invented cyclic molecule (demo data, invented)"},
+	"title-line-break":                  {"title", "Ring opening of an invented cyclic molecule\n(demo data, invented)\n"},
+	"torsion-barrier-huge":              {"molecules.ring.torsions[0].barrier-height", "1e10 cm-1"},
+	"torsion-barrier-unit-slip":         {"molecules.ring.torsions[0].barrier-height", "1000 kcal/mol"},
+	"torsion-basis-too-large":           {"molecules.ring.torsions[0]", ""},
+	"torsion-harmonic-huge":             {"molecules.ring.torsions[0].harmonics.values[1]", "1e20"},
+	"torsion-harmonics-too-many":        {"molecules.ring.torsions[0].harmonics.values", ""},
+	"torsion-moment-huge":               {"molecules.ring.torsions[0].reduced-moment", "1e5 amu angstrom2"},
+	"torsion-periodicity-huge":          {"molecules.ring.torsions[0].periodicity", "100000"},
+	"ts-energy-below-grain":             {"molecules.ring-TS.energy", "100 cm-1"},
+	"ts-energy-zero":                    {"molecules.ring-TS.energy", "0 kcal/mol"},
+	"vibration-absurd":                  {"molecules.ring.vibrations.values[17]", "1e19"},
+	"vibration-in-wrong-unit":           {"molecules.ring.vibrations.values[0]", "3010"},
 }
 
 // errorLines returns the lines of stderr that are not warnings.
@@ -244,6 +304,19 @@ func TestDegenerateFrequenciesAccepted(t *testing.T) {
 	for _, f := range []string{degenerate, hcnFile} {
 		if code, _, errs := runCLI(t, "check", f); code != exitOK || errs != "" {
 			t.Errorf("check %s: exit %d, stderr %q", f, code, errs)
+		}
+	}
+}
+
+// fit --forms "" names no form: a usage error in one line that lists the
+// forms, not the "%!w(<nil>)" of a wrapped nil error.
+func TestFitFormsEmpty(t *testing.T) {
+	table := "../../testdata/bad/fit-nan-k.csv"
+	for _, forms := range []string{"", ","} {
+		code, out, errs := runCLI(t, "fit", table, "--forms", forms)
+		lines := errorLines(errs)
+		if code != exitUsage || out != "" || len(lines) != 1 || strings.Contains(errs, "%!") || !strings.Contains(errs, "troe") {
+			t.Errorf("--forms %q: exit %d, stdout %q, stderr %q; want exit %d and one line listing the forms", forms, code, out, errs, exitUsage)
 		}
 	}
 }

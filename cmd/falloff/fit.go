@@ -1,13 +1,11 @@
 package main
 
 import (
-	"bytes"
 	"crypto/sha256"
 	"errors"
 	"fmt"
 	"maps"
 	"math"
-	"os"
 	"path/filepath"
 	"slices"
 	"strconv"
@@ -83,6 +81,9 @@ func (o *fitOptions) validate(args []string) error {
 		}
 		o.forms = append(o.forms, f)
 	}
+	if len(o.forms) == 0 {
+		return usagef("--forms: no form given (hint: name at least one of %s, comma-separated)", strings.Join(fitFormNames(), ", "))
+	}
 	if !(o.tolerancePct > 0) || o.tolerancePct > 100 {
 		return usagef("--tolerance %v: give a percentage between 0 and 100", o.tolerancePct)
 	}
@@ -130,6 +131,15 @@ func (o *fitOptions) validate(args []string) error {
 		}
 	}
 	return nil
+}
+
+// fitFormNames lists the forms fit knows, for messages.
+func fitFormNames() []string {
+	var names []string
+	for _, f := range fit.Forms {
+		names = append(names, string(f))
+	}
+	return names
 }
 
 // optFloat is a float flag that knows whether it was given.
@@ -196,11 +206,8 @@ func runFit(o fitOptions, path string, s streams) error {
 			return err
 		}
 	}
-	src, err := os.ReadFile(path)
-	if err != nil {
-		return err
-	}
-	t, err := fit.ReadCSV(path, bytes.NewReader(src))
+	// At most fit.MaxCSVBytes: /dev/zero or a huge file ends with one line.
+	t, src, err := fit.ReadCSVFile(path)
 	if err != nil {
 		return err
 	}

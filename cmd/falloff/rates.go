@@ -13,6 +13,7 @@ import (
 
 	"github.com/falloff-kinetics/falloff/internal/figures"
 	"github.com/falloff-kinetics/falloff/pkg/export"
+	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
@@ -24,7 +25,7 @@ type ratesOptions struct {
 	jobs                                  int
 	grain, ceiling                        energyFlag
 	out, plots                            string
-	directionText, energyUnit             string
+	directionText, energyUnit, target     string
 	tolerancePct                          float64
 	disp                                  display
 	plotTempTexts                         []string
@@ -51,6 +52,7 @@ func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.energyUnit, "energy-unit", "cal/mol", "activation-energy unit of the mechanism files: cal/mol, kcal/mol, J/mol, kJ/mol or K")
 	o.disp.addFlags(fs)
 	fs.BoolVar(&o.writeFailed, "write-failed", false, "with --out, write failed fits too (marked FAILED), and reactions.yaml with the best form when none meets the tolerance")
+	fs.StringVar(&o.target, "target", "", "warn when a file written cannot be read by this simulator: cantera or openfoam (its chemkinToFoam)")
 	fs.BoolVar(&o.skeleton, "skeleton", false, "with --out, also write phase-example.yaml: how a Cantera phase uses the reactions")
 	fs.StringVar(&o.plots, "plots", "", "write SVG figures (falloff curves, k∞ and k0, k against 1000/T, fit residuals, Fcent, k(E), ρ(E)) to this directory")
 	fs.StringSliceVar(&o.plotTempTexts, "plot-temperatures", nil, `with --plots, the temperatures of the falloff curves, e.g. "300 K,1000 K", each shown at the nearest grid temperature (default: lowest, middle, highest)`)
@@ -66,6 +68,9 @@ func (o *ratesOptions) validate(args []string) error {
 	}
 	if o.jobs < 0 {
 		return usagef("--jobs %d: must be 0 (automatic) or positive", o.jobs)
+	}
+	if o.target != "" && o.target != "cantera" && o.target != "openfoam" {
+		return usagef("--target %q: use cantera or openfoam", o.target)
 	}
 	if o.workLimit <= 0 {
 		return usagef("--work-limit %v: must be positive, e.g. 2h", o.workLimit)
@@ -153,6 +158,9 @@ func runRatesCmd(args []string, s streams) error {
 	files, writeErr := writeRatesFiles(&set, o, n, res, s)
 	if !o.quiet && !o.json && !o.csv {
 		for _, w := range res.NewWarnings() {
+			fmt.Fprintln(s.err, "warning:", w)
+		}
+		for _, w := range targetWarnings(o, res) {
 			fmt.Fprintln(s.err, "warning:", w)
 		}
 	}
@@ -311,4 +319,26 @@ func printRates(s streams, title string, res *job.RatesResult, files []string, d
 	}
 	_, err := fmt.Fprintln(s.out, "\n"+job.Caution)
 	return err
+}
+
+// targetWarnings says which outputs the simulator named by --target cannot
+// read. OpenFOAM's chemkinToFoam (docs/export.md, "Real clients") has no
+// PLOG or Chebyshev entries, refuses KJOULES/MOLE and ignores MOLECULES.
+func targetWarnings(o ratesOptions, res *job.RatesResult) []string {
+	if o.target != "openfoam" || o.out == "" {
+		return nil
+	}
+	var w []string
+	for _, e := range res.Entries {
+		if f := e.Fits.Recommended; f == fit.FormPLOG || f == fit.FormChebyshev {
+			w = append(w, fmt.Sprintf("--target openfoam: %s's recommended form, %s, has no keyword for chemkinToFoam (hint: use reactions-troe.txt, -sri, -lindemann or -arrhenius)", e.Label, f))
+		}
+	}
+	if o.units.Energy == export.KJPerMol {
+		w = append(w, "--target openfoam: chemkinToFoam refuses KJOULES/MOLE (hint: --energy-unit cal/mol, kcal/mol, J/mol or K)")
+	}
+	if o.units.Quantity == export.Molecule {
+		w = append(w, "--target openfoam: chemkinToFoam ignores MOLECULES and reads A per mole (hint: --quantity mol)")
+	}
+	return w
 }

@@ -67,6 +67,7 @@ func verbs() []verb {
 		{"rates", "master-equation k(T,P) on the temperature and pressure grid", runRatesCmd, true},
 		{"compare", "the grid under strong-collider and exponential-down models side by side", runCompareCmd, true},
 		{"fit", "fit Arrhenius, falloff, PLOG and Chebyshev forms to a k(T,P) table (CSV)", runFitCmd, true},
+		{"thermo", "species thermochemistry (Cp, S, H) and NASA polynomials from the partition functions", runThermoCmd, false},
 		{"example", "print the built-in demo input (edit it to make your own)", runExampleCmd, false},
 	}
 }

@@ -133,6 +133,32 @@ func PhaseSkeleton(reactionsFile string, species []string) []byte {
 	return b.Bytes()
 }
 
+// Phase returns a Cantera phase file that loads as a complete mechanism:
+// an ideal gas with the elements, every species of speciesFile (a file
+// with a species list, SpeciesYAML) and the reactions of reactionsFile
+// among them, with the header h as comments.
+func Phase(h Header, reactionsFile, speciesFile string, elements []string) []byte {
+	var b bytes.Buffer
+	for _, l := range h.lines() {
+		for _, w := range wrap(l, 76) {
+			fmt.Fprintf(&b, "# %s\n", w)
+		}
+	}
+	b.WriteString("\nphases:\n- name: gas\n  thermo: ideal-gas\n  elements: [")
+	for i, e := range elements {
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteString(flowString(e))
+	}
+	// Species and reactions come from the other files: a list entry
+	// FILE/SECTION: all (or declared-species), as Cantera's YAML phases
+	// include them.
+	fmt.Fprintf(&b, "]\n  species:\n  - %s: all\n  kinetics: gas\n  reactions:\n  - %s: declared-species\n  state: {T: 300.0, P: 1 atm}\n",
+		yamlString(speciesFile+"/species"), yamlString(reactionsFile+"/reactions"))
+	return b.Bytes()
+}
+
 // flowString writes s as a scalar inside a YAML flow sequence ([a, b]):
 // plain if it is made of letters, digits and "_-()." and YAML reads it back
 // as the same string (not a number or a boolean), else double-quoted: flow

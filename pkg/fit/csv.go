@@ -2,14 +2,19 @@ package fit
 
 import (
 	"bufio"
+	"bytes"
 	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"regexp"
 	"strconv"
 	"strings"
+	"syscall"
+	"unicode"
+	"unicode/utf8"
 
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
@@ -29,22 +34,99 @@ type CSVError struct {
 
 func (e *CSVError) Error() string {
 	var b strings.Builder
-	b.WriteString(e.File)
+	b.WriteString(printable(e.File))
 	if e.Line > 0 {
 		fmt.Fprintf(&b, ":%d", e.Line)
 	}
 	if e.Column > 0 {
 		fmt.Fprintf(&b, ": column %d", e.Column)
 		if e.Header != "" {
-			fmt.Fprintf(&b, " (%s)", oneLine(e.Header))
+			fmt.Fprintf(&b, " (%s)", printable(clip(oneLine(e.Header))))
 		}
 	}
 	if e.Value != "" {
-		fmt.Fprintf(&b, ": %q", e.Value)
+		b.WriteString(": " + quoteClipped(e.Value))
 	}
-	fmt.Fprintf(&b, ": %s", oneLine(fmt.Sprint(e.Err)))
+	fmt.Fprintf(&b, ": %s", printable(oneLine(fmt.Sprint(e.Err))))
 	if e.Hint != "" {
-		b.WriteString(" (hint: " + oneLine(e.Hint) + ")")
+		b.WriteString(" (hint: " + printable(oneLine(e.Hint)) + ")")
+	}
+	return b.String()
+}
+
+// maxQuoted is the longest text, in runes, a message shows whole; a longer
+// one (a 5 MB cell, say) is cut to its first clipRunes runes, with an
+// ellipsis and its length in bytes.
+const (
+	maxQuoted = 80
+	clipRunes = 60
+)
+
+// clip cuts s to clipRunes runes and says how long it was, if it is longer
+// than maxQuoted runes.
+func clip(s string) string {
+	if head, cut := clipHead(s); cut {
+		return fmt.Sprintf("%s… (%d bytes)", head, len(s))
+	}
+	return s
+}
+
+// clipHead returns the first clipRunes runes of s if s is longer than
+// maxQuoted runes, and whether it cut.
+func clipHead(s string) (string, bool) {
+	if utf8.RuneCountInString(s) <= maxQuoted {
+		return s, false
+	}
+	n := 0
+	for i := range s {
+		if n == clipRunes {
+			return s[:i], true
+		}
+		n++
+	}
+	return s, false
+}
+
+// quoteClipped quotes s like %q (control and format characters escaped),
+// cut as clip cuts it.
+func quoteClipped(s string) string {
+	if head, cut := clipHead(s); cut {
+		return fmt.Sprintf("%q… (%d bytes)", head, len(s))
+	}
+	return strconv.Quote(s)
+}
+
+// maxHeaderLen bounds a column header in bytes: "k/cm3/molecule/s" and
+// "uncertainty/%" take 16 and 13.
+const maxHeaderLen = 64
+
+// notPrintable reports a rune a message or a report must not carry raw:
+// control and format characters, line separators, invalid UTF-8.
+func notPrintable(r rune) bool { return r != ' ' && !unicode.IsPrint(r) || r == utf8.RuneError }
+
+// printable escapes, as %q would, every rune of s that is not printable
+// (control and format characters, line separators, invalid UTF-8), so that
+// text from a table cannot act on the terminal that shows the message.
+func printable(s string) string {
+	bad := notPrintable
+	if !strings.ContainsFunc(s, bad) {
+		return s
+	}
+	var b strings.Builder
+	for i, r := range s {
+		switch {
+		case r == utf8.RuneError:
+			if _, size := utf8.DecodeRuneInString(s[i:]); size == 1 {
+				fmt.Fprintf(&b, `\x%02x`, s[i]) // an invalid byte
+			} else {
+				b.WriteString(`\ufffd`)
+			}
+		case bad(r):
+			q := strconv.QuoteRune(r)
+			b.WriteString(q[1 : len(q)-1])
+		default:
+			b.WriteRune(r)
+		}
 	}
 	return b.String()
 }
@@ -65,6 +147,45 @@ func oneLine(s string) string {
 const minCSVRows = 3
 
 const headerExample = "T/K,P/atm,k/s-1"
+
+// MaxCSVBytes is the largest table ReadCSV and ReadCSVFile accept, 32 MiB:
+// about a million rows of T, P and k, hundreds of times any measured or
+// computed k(T,P) table (a 30 × 20 grid takes 20 kB). A larger input is the
+// wrong file (or a device such as /dev/zero), and the cap bounds the memory
+// of reading it.
+const MaxCSVBytes = 32 << 20
+
+// tooLarge is the error for a table beyond MaxCSVBytes.
+func tooLarge(name string) error {
+	return &CSVError{File: name, Err: fmt.Errorf("larger than %d MiB (%d bytes), the limit for a rate table", MaxCSVBytes>>20, MaxCSVBytes),
+		Hint: "a k(T,P) table has a few hundred rows: is this the right file?"}
+}
+
+// ReadCSVFile reads the rate table in the file at path (ReadCSV, with path
+// in messages) and returns it with the file's content, for checksums. An
+// error opening or reading the file is an *fs.PathError. A named pipe is
+// opened without waiting for a writer (one without reads as empty), and at
+// most MaxCSVBytes are read, so that neither a FIFO nor an endless device
+// can make it hang or exhaust memory.
+func ReadCSVFile(path string) (*Table, []byte, error) {
+	f, err := os.OpenFile(path, os.O_RDONLY|syscall.O_NONBLOCK, 0)
+	if err != nil {
+		return nil, nil, err
+	}
+	defer f.Close()
+	src, err := io.ReadAll(io.LimitReader(f, MaxCSVBytes+1))
+	if err != nil {
+		return nil, nil, err
+	}
+	if len(src) > MaxCSVBytes {
+		return nil, nil, tooLarge(path)
+	}
+	t, err := ReadCSV(path, bytes.NewReader(src))
+	if err != nil {
+		return nil, nil, err
+	}
+	return t, src, nil
+}
 
 // replicateMaxRatio is the largest factor by which replicates (rows with
 // the same T and P) may differ in a table without uncertainties: beyond
@@ -97,10 +218,21 @@ const (
 // "name [unit]" and "name (unit)" are accepted too. Rows with the same T
 // and P are replicates, all kept; without an uncertainty column they must
 // agree within a factor of 10 (replicateMaxRatio). A UTF-8 byte-order mark
-// at the start (as spreadsheet programs write) is skipped. name is used in
-// error messages. Every error is a *CSVError naming the line and column.
+// at the start (as spreadsheet programs write) is skipped. Headers are
+// printable text of at most 64 bytes, and at most MaxCSVBytes are read, so
+// that an endless stream ends at once. name is used in error messages.
+// Every error is a *CSVError naming the line and column; its message
+// escapes control characters and cuts a long value.
 func ReadCSV(name string, r io.Reader) (*Table, error) {
-	br := bufio.NewReader(r)
+	// Read at most MaxCSVBytes, so that an endless stream ends at once.
+	data, err := io.ReadAll(io.LimitReader(r, MaxCSVBytes+1))
+	if err != nil {
+		return nil, &CSVError{File: name, Err: err}
+	}
+	if len(data) > MaxCSVBytes {
+		return nil, tooLarge(name)
+	}
+	br := bufio.NewReader(bytes.NewReader(data))
 	if b, err := br.Peek(3); err == nil && string(b) == "\ufeff" {
 		br.Discard(3)
 	}
@@ -136,6 +268,14 @@ func ReadCSV(name string, r io.Reader) (*Table, error) {
 	for i, h := range head {
 		h = strings.TrimSpace(h)
 		head[i] = h
+		// The header's units are printed in reports and written into
+		// mechanism files: no control characters, no essays.
+		if strings.ContainsFunc(h, notPrintable) {
+			return nil, fail(headLine, i+1, "", h, errors.New("a control or formatting character in the header"), "write name/unit in plain text, e.g. "+headerExample)
+		}
+		if len(h) > maxHeaderLen {
+			return nil, fail(headLine, i+1, "", h, fmt.Errorf("a column header of %d bytes, more than %d", len(h), maxHeaderLen), "write name/unit, e.g. "+headerExample)
+		}
 		if _, err := strconv.ParseFloat(h, 64); err == nil {
 			return nil, fail(headLine, i+1, "", h, errors.New("missing header: the first line holds numbers"),
 				"start with a header naming the columns and their units, e.g. "+headerExample)
@@ -149,13 +289,13 @@ func ReadCSV(name string, r io.Reader) (*Table, error) {
 		case "t":
 			kind[i] = colT
 			if strings.TrimSpace(unit) != "K" {
-				return nil, fail(headLine, i+1, "", h, fmt.Errorf("temperature unit %q", unit), "write temperatures in kelvin: T/K")
+				return nil, fail(headLine, i+1, "", h, fmt.Errorf("temperature unit %s", quoteClipped(unit)), "write temperatures in kelvin: T/K")
 			}
 		case "p":
 			kind[i] = colP
 			f, err := units.Factor(unit, units.Pressure)
 			if err != nil {
-				return nil, fail(headLine, i+1, "", h, fmt.Errorf("pressure unit %q unknown", unit),
+				return nil, fail(headLine, i+1, "", h, fmt.Errorf("pressure unit %s unknown", quoteClipped(unit)),
 					"write P/<unit> with one of Pa, kPa, MPa, hPa, bar, mbar, atm, Torr")
 			}
 			pFactor = f
@@ -175,13 +315,13 @@ func ReadCSV(name string, r io.Reader) (*Table, error) {
 					return nil, fail(headLine, i+1, "", h, errors.New("uncertainty without unit"), "write uncertainty/% (per cent) or sigma (a fraction)")
 				}
 			default:
-				return nil, fail(headLine, i+1, "", h, fmt.Errorf("uncertainty unit %q", unit), "write sigma (a fraction) or sigma/% (per cent)")
+				return nil, fail(headLine, i+1, "", h, fmt.Errorf("uncertainty unit %s", quoteClipped(unit)), "write sigma (a fraction) or sigma/% (per cent)")
 			}
 		default:
 			return nil, fail(headLine, i+1, "", h, errors.New("unknown column"), "the columns are T/K, P/<unit>, k/<unit> and optionally sigma or uncertainty/%")
 		}
 		if j, dup := have[kind[i]]; dup {
-			return nil, fail(headLine, i+1, "", h, fmt.Errorf("same quantity as column %d (%s)", j+1, head[j]), "give each of T, P, k once")
+			return nil, fail(headLine, i+1, "", h, fmt.Errorf("same quantity as column %d (%s)", j+1, clip(head[j])), "give each of T, P, k once")
 		}
 		have[kind[i]] = i
 	}

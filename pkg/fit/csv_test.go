@@ -4,11 +4,13 @@ import (
 	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"gonum.org/v1/gonum/floats/scalar"
 
@@ -214,5 +216,75 @@ func TestFitCSVFiles(t *testing.T) {
 			}
 			t.Logf("%s: troe max error %.3g %%, %s", c.file, res.Troe.MaxErrorPct, res.Reason)
 		})
+	}
+}
+
+// limitTime bounds how long refusing an oversize table may take: reading
+// MaxCSVBytes from memory or /dev/zero takes a few hundredths of a second;
+// 10 s leaves room for a loaded CI machine and still catches an endless
+// read.
+const limitTime = 10 * time.Second
+
+// A table beyond MaxCSVBytes, from a stream (ReadCSV), from a file or from
+// /dev/zero (ReadCSVFile), is refused at once with one line naming the
+// limit.
+func TestReadCSVTooLarge(t *testing.T) {
+	check := func(name string, err error, start time.Time) {
+		t.Helper()
+		var ce *CSVError
+		if !errors.As(err, &ce) || ce.File != name || !strings.Contains(err.Error(), "larger than 32 MiB") || strings.Contains(err.Error(), "\n") {
+			t.Errorf("%s: err = %v, want one line saying it is larger than 32 MiB", name, err)
+		}
+		if d := time.Since(start); d > limitTime {
+			t.Errorf("%s: took %v", name, d)
+		}
+	}
+	row := "300,1,1.5e+13\n"
+	endless := io.MultiReader(strings.NewReader("T/K,P/atm,k/s-1\n"), repeatReader(row))
+	start := time.Now()
+	_, err := ReadCSV("stream.csv", endless)
+	check("stream.csv", err, start)
+
+	big := filepath.Join(t.TempDir(), "big.csv")
+	if err := os.WriteFile(big, []byte(strings.Repeat(row, MaxCSVBytes/len(row)+1)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	start = time.Now()
+	_, _, err = ReadCSVFile(big)
+	check(big, err, start)
+
+	if _, err := os.Stat("/dev/zero"); err == nil {
+		start = time.Now()
+		_, _, err = ReadCSVFile("/dev/zero")
+		check("/dev/zero", err, start)
+	}
+}
+
+// repeatReader is an endless stream of s.
+type repeatReader string
+
+func (r repeatReader) Read(p []byte) (int, error) {
+	n := 0
+	for n < len(p) {
+		n += copy(p[n:], r)
+	}
+	return n, nil
+}
+
+// A long cell is quoted cut to 60 characters with its length; control
+// characters in cells and headers are shown escaped, never raw.
+func TestCSVErrorClipsAndEscapes(t *testing.T) {
+	cell := strings.Repeat("8", 5_000_000) + "x"
+	_, err := ReadCSV("long.csv", strings.NewReader("T/K,P/atm,k/s-1\n300,1,"+cell+"\n"))
+	if err == nil || len(err.Error()) > 300 || !strings.Contains(err.Error(), `"`+strings.Repeat("8", 60)+`"… (5000001 bytes)`) {
+		t.Errorf("a 5 MB cell: message of %d bytes: %.300s", len(err.Error()), err)
+	}
+	_, err = ReadCSV("esc\x1b.csv", strings.NewReader("T/K,P/atm,k/s-1\u2028\n300,1,1\n"))
+	if err == nil || strings.ContainsAny(err.Error(), "\x1b\u2028") || !strings.Contains(err.Error(), `esc\x1b.csv`) {
+		t.Errorf("message %q: want the file name and header escaped", err)
+	}
+	_, err = ReadCSV("head.csv", strings.NewReader("T/K,P/atm,k/s-1,"+strings.Repeat("Z", 1000)+"\n300,1,1,1\n"))
+	if err == nil || len(err.Error()) > 400 || !strings.Contains(err.Error(), "(1000 bytes)") {
+		t.Errorf("a 1000-character header: %v", err)
 	}
 }

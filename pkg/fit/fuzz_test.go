@@ -71,7 +71,16 @@ func FuzzReadCSV(f *testing.F) {
 			if msg := err.Error(); !strings.ContainsAny(name, "\r\n") && (msg == "" || strings.ContainsAny(msg, "\r\n")) {
 				t.Errorf("error message is empty or not one line: %q", msg)
 			}
+			// Nothing from the table reaches the terminal raw, and no cell
+			// is echoed whole beyond a few hundred bytes.
+			if msg := err.Error(); strings.ContainsFunc(msg, notPrintable) ||
+				len(msg) > 1000+6*len(name) {
+				t.Errorf("error message holds a raw control character or is %d bytes long: %.300q", len(msg), msg)
+			}
 			return
+		}
+		if strings.ContainsFunc(tab.KUnits, notPrintable) || len(tab.KUnits) > maxHeaderLen {
+			t.Errorf("k units %q accepted: printed in reports and mechanism files", tab.KUnits)
 		}
 		if tab.Name != name || strings.TrimSpace(tab.KUnits) == "" || len(tab.Points) < minCSVRows {
 			t.Errorf("table %q, k units %q, %d points: want the name given, units and at least %d points",

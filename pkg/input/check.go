@@ -3,9 +3,12 @@ package input
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/falloff-kinetics/falloff/pkg/units"
+	"go.yaml.in/yaml/v3"
 )
 
 // Warning thresholds: inputs outside these ranges are accepted but reported.
@@ -30,6 +33,9 @@ func (p *parser) model(raw *rawFile) (*Model, error) {
 	}
 	if m.Title = strings.TrimSpace(raw.Title.Value); m.Title == "" {
 		return nil, p.errAt("title", &raw.Title, problemf("empty title"), "give a one-line description")
+	}
+	if err := p.checkTitle(&raw.Title, m.Title); err != nil {
+		return nil, err
 	}
 
 	if m.Molecules, err = p.molecules(raw.Molecules); err != nil {
@@ -64,6 +70,30 @@ func (p *parser) model(raw *rawFile) (*Model, error) {
 	p.warnRenamed()
 	p.warnOdd(m)
 	return m, nil
+}
+
+// maxTitleLen bounds the title, in characters: it is one line, repeated
+// in reports and in the header comment of every mechanism file.
+const maxTitleLen = 200
+
+// checkTitle refuses a title that is not one line of printable text: a
+// line break would end the comment it becomes in a mechanism file, and a
+// control character (ESC, say) would act on the terminal that shows it.
+func (p *parser) checkTitle(n *yaml.Node, title string) error {
+	const hint = "give one line of text; longer notes go in YAML comments (# ...)"
+	for _, r := range title {
+		if notPrintable(r) {
+			what := "a control or formatting character"
+			if r == '\n' || r == '\r' || r == '\u0085' || r == '\u2028' || r == '\u2029' {
+				what = "a line break"
+			}
+			return p.errAt("title", n, problemf("holds %s, %s", what, strconv.QuoteRune(r)), hint)
+		}
+	}
+	if k := utf8.RuneCountInString(title); k > maxTitleLen {
+		return p.errAt("title", n, problemf("%d characters, more than %d", k, maxTitleLen), hint)
+	}
+	return nil
 }
 
 // crossCheck reports errors that involve more than one section.
@@ -124,6 +154,13 @@ func (p *parser) crossCheck(m *Model, raw *rawFile) error {
 			}
 		}
 	}
+	if err := p.checkThresholds(m); err != nil {
+		return err
+	}
+	if err := p.checkTorsions(m); err != nil {
+		return err
+	}
+	p.warnReducedTemperature(m)
 	// The fine grain must resolve every vibration (rrkm.NewCounter refuses
 	// a frequency below it).
 	for _, mol := range m.Molecules {
@@ -143,6 +180,109 @@ func (p *parser) crossCheck(m *Model, raw *rawFile) error {
 		}
 	}
 	return nil
+}
+
+// checkThresholds checks every channel's threshold against the grid's
+// temperatures: at the lowest, exp(−E0/kT) must stay above e^−maxExponent;
+// with pressures, the threshold must lie at least one master-equation grain
+// above the reactant's ground state at the highest temperature, or the
+// master equation has no grain below it: no bound well to hold a
+// population. The grain is master-equation-grain if given, else at most
+// kT/5 (collision.GrainFor: min(α, kT)/5 for exponential-down, kT/5 for the
+// strong collider; compare runs both).
+func (p *parser) checkThresholds(m *Model) error {
+	ts := m.Temperatures
+	tMin, tMax := ts[0], ts[len(ts)-1]
+	for _, th := range m.thresholds() {
+		n := p.index.byPath[th.path]
+		if x := th.e0 / units.KT(tMin); x > maxExponent {
+			tp := m.TemperaturePath(0)
+			return p.errAt(tp, p.index.byPath[tp],
+				problemf("E0/kT = %.4g for %s (E0 = %s cm-1) at the lowest temperature, %.4g K: exp(−E0/kT) = 1e%.0f, a rate beyond any use and near the end of the floating-point range", x, th.name, fmtCm1(th.e0), tMin, -x/math.Ln10),
+				fmt.Sprintf("raise the lowest temperature to at least %.4g K (E0/kT at most %d)", th.e0/units.KT(1)/maxExponent, maxExponent))
+		}
+		if m.Pressures == nil {
+			continue
+		}
+		grain, what := units.KT(tMax)/5, fmt.Sprintf("kT/5 = %s cm-1 at %.4g K, the highest temperature, the largest automatic master-equation grain", fmtCm1(units.KT(tMax)/5), tMax)
+		hint := grainHint(tMax)
+		if m.EnergyGrid.MEGrain > 0 {
+			grain, what = m.EnergyGrid.MEGrain, fmt.Sprintf("the master-equation grain, %s cm-1 (energy-grid.master-equation-grain)", fmtCm1(m.EnergyGrid.MEGrain))
+			hint = "give a finer master-equation-grain, or check the energy and its unit"
+		}
+		if th.e0 >= grain {
+			continue
+		}
+		if th.e0 == 0 {
+			hint += "; a channel without a barrier is given as barrierless: {A:, T0:, n:, energy:} with its threshold energy (the bond energy)"
+		}
+		return p.errAt(th.path, n, problemf("the threshold of %s, %s cm-1, is below %s: the master equation would have no grain below the threshold, no well for the reactant", th.name, fmtCm1(th.e0), what), hint)
+	}
+	return nil
+}
+
+// countTop estimates the highest energy in cm⁻¹ a calculation on m asks of
+// a state count or a partition function: the ceiling, or the highest
+// threshold plus 60 kT at the highest temperature (the automatic ceiling's
+// bound for a small molecule), plus the 10 kT of the convergence check
+// (docs/input.md, checked before any work); and at least the 50 kT to which
+// a hindered rotor's partition function sums its levels.
+func (m *Model) countTop() float64 {
+	kt := units.KT(m.Temperatures[len(m.Temperatures)-1])
+	top := m.EnergyGrid.Ceiling
+	if top == 0 {
+		for _, th := range m.thresholds() {
+			top = math.Max(top, th.e0)
+		}
+		top += 60 * kt
+	}
+	return math.Max(top+10*kt, 50*kt)
+}
+
+// checkTorsions refuses a torsion whose levels up to the energies the
+// calculation needs (countTop) would take a basis larger than the solver
+// accepts (rrkm.HinderedRotor.BasisSize): a heavy torsion (small B) with
+// a high barrier, or with many harmonics, at a high temperature.
+func (p *parser) checkTorsions(m *Model) error {
+	emax := m.countTop()
+	for _, mol := range m.Molecules {
+		key := "torsions"
+		if _, old := p.index.byPath["molecules."+mol.Name+".hindered-rotors"]; old {
+			key = "hindered-rotors"
+		}
+		for i, h := range mol.Hindered {
+			size, limit := h.BasisSize(emax)
+			if size <= limit {
+				continue
+			}
+			path := fmt.Sprintf("molecules.%s.%s[%d]", mol.Name, key, i)
+			kind := "a single cosine"
+			if len(h.Cos) > 0 {
+				kind = "a potential with harmonics"
+			}
+			return p.errAt(path, nil,
+				problemf("its levels up to %.4g cm-1, which the grid needs, would take a basis block of %d functions, more than the %d the solver takes for %s", emax, size, limit, kind),
+				fmt.Sprintf("a heavy torsion (B = %.3g cm-1) with a high barrier or many harmonics needs a large basis: lower the highest temperature, give fewer harmonics, or count the mode as a vibration", h.B))
+		}
+	}
+	return nil
+}
+
+// warnReducedTemperature warns when the reduced temperature T* = kT/ε of
+// the reactant with a bath gas whose Lennard-Jones parameters the file gives
+// leaves 0.3 to 100 on the grid, the range of the Neufeld–Janzen–Aziz fit
+// of the collision integral Ω(2,2)* (J. Chem. Phys. 57, 1100, 1972). The
+// built-in bath gases' parameters are not known here (pkg/collision).
+func (p *parser) warnReducedTemperature(m *Model) {
+	reactant, _ := m.ReactantAndTS()
+	if m.Pressures == nil || m.Bath.CollisionRate > 0 || m.Bath.LJ == nil || reactant.LJ == nil {
+		return
+	}
+	eps := math.Sqrt(reactant.LJ.Epsilon * m.Bath.LJ.Epsilon) // Hirschfelder, Curtiss & Bird 1954
+	lo, hi := m.Temperatures[0]/eps, m.Temperatures[len(m.Temperatures)-1]/eps
+	if lo < 0.3 || hi > 100 {
+		p.warn("bath.lennard-jones.epsilon", "the reduced temperature kT/ε of %s with the bath gas spans %.3g to %.3g on the grid (ε/k_B = %.4g K), beyond 0.3 to 100, where the collision integral's fit holds: check both epsilons", reactant.Name, lo, hi, eps)
+	}
 }
 
 // warnOdd records physically odd but accepted input.

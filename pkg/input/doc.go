@@ -18,5 +18,19 @@
 // key written under the name it had before a rename (hindered-rotors and its
 // keys, now torsions), which is read for one release more.
 //
-// The keys, their units and defaults are described in docs/input.md.
+// Every value must also lie in its physical range (limits.go: a mass of at
+// least 1 amu, an electronic level below helium's ionization energy, a
+// torsional barrier below every bond energy, ...), and the checks across
+// sections refuse what would fail or mislead later: Eckart tunnelling with
+// the products above the barrier, a threshold below one master-equation
+// grain, exp(−E0/kT) beyond the floating-point range, a transition state
+// counted for two channels, a torsion whose levels exceed the solver.
+// Names keep to a safe set of characters, and messages escape whatever is
+// not printable and cut long values, so that nothing from a file acts on
+// the terminal. A file is at most MaxFileBytes, and YAML aliases may expand
+// it to at most four times its values, so that no input, however made,
+// exhausts memory or time in the reader.
+//
+// The keys, their units, defaults and ranges are described in
+// docs/input.md.
 package input

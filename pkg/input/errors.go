@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 )
 
 // FieldError reports one problem with one field of an input file. Its message
@@ -14,7 +16,10 @@ import (
 // where PATH is the dotted path of the field, such as
 // molecules.ring.vibrations.values[3]. LINE is left out when unknown, PATH
 // for a problem with the whole file, VALUE when the field is missing and the
-// hint when there is none.
+// hint when there is none. Every character that is not printable (ESC, NEL,
+// U+2028, invalid UTF-8) is written escaped, as strconv.Quote writes it, in
+// every part; a VALUE longer than 80 characters is cut to its first 60 with
+// an ellipsis and its length in bytes.
 type FieldError struct {
 	File  string // the file name given to Parse
 	Line  int    // 1-based line in the file, 0 if unknown
@@ -26,24 +31,97 @@ type FieldError struct {
 
 func (e *FieldError) Error() string {
 	var b strings.Builder
-	b.WriteString(e.File)
+	b.WriteString(printable(e.File))
 	if e.Line > 0 {
 		b.WriteString(":" + strconv.Itoa(e.Line))
 	}
 	if e.Path != "" {
-		b.WriteString(": " + e.Path)
+		b.WriteString(": " + printable(clipPath(e.Path)))
 	}
 	if e.Value != "" {
-		b.WriteString(": " + oneLine(strconv.Quote(e.Value)))
+		b.WriteString(": " + quoteClipped(e.Value))
 	}
 	if e.Err != nil {
-		b.WriteString(": " + oneLine(e.Err.Error()))
+		b.WriteString(": " + printable(oneLine(e.Err.Error())))
 	}
 	if e.Hint != "" {
-		b.WriteString(" (hint: " + oneLine(e.Hint) + ")")
+		b.WriteString(" (hint: " + printable(oneLine(e.Hint)) + ")")
 	}
 	return b.String()
 }
+
+// maxQuoted is the longest value, in runes, that a message quotes whole; a
+// longer one (a 5 MB scalar, say) is cut to its first clipRunes runes and
+// an ellipsis, and its length is given.
+const (
+	maxQuoted = 80
+	clipRunes = 60
+)
+
+// quoteClipped quotes s as strconv.Quote does, which escapes every control
+// and format character (ESC, NEL, U+2028, ...), cutting a long s.
+func quoteClipped(s string) string {
+	if utf8.RuneCountInString(s) <= maxQuoted {
+		return strconv.Quote(s)
+	}
+	cut := s
+	for i := range s {
+		if utf8.RuneCountInString(s[:i]) == clipRunes {
+			cut = s[:i]
+			break
+		}
+	}
+	return fmt.Sprintf("%s… (%d bytes)", strconv.Quote(cut), len(s))
+}
+
+// clipPath cuts a path longer than maxPath bytes (one holding a huge key)
+// in the middle, keeping its ends, and says how long it was.
+func clipPath(path string) string {
+	const maxPath, keep = 200, 60
+	if len(path) <= maxPath {
+		return path
+	}
+	head, tail := path[:keep], path[len(path)-keep:]
+	for !utf8.ValidString(head) {
+		head = head[:len(head)-1]
+	}
+	for !utf8.ValidString(tail) {
+		tail = tail[1:]
+	}
+	return fmt.Sprintf("%s…%s (a path of %d bytes)", head, tail, len(path))
+}
+
+// printable escapes, as strconv.Quote would, every rune of s that is not
+// printable (control and format characters, line and paragraph
+// separators), so that text from the file, such as a molecule's name in a
+// path, cannot act on the terminal or break the message's line.
+func printable(s string) string {
+	if !strings.ContainsFunc(s, notPrintable) {
+		return s
+	}
+	var b strings.Builder
+	for i, r := range s {
+		switch {
+		case r == utf8.RuneError:
+			if _, size := utf8.DecodeRuneInString(s[i:]); size == 1 {
+				fmt.Fprintf(&b, `\x%02x`, s[i]) // an invalid byte
+			} else {
+				b.WriteString(`\ufffd`)
+			}
+		case notPrintable(r):
+			q := strconv.QuoteRune(r)
+			b.WriteString(q[1 : len(q)-1])
+		default:
+			b.WriteRune(r)
+		}
+	}
+	return b.String()
+}
+
+// notPrintable reports a rune a message must not carry raw: anything
+// unicode.IsPrint refuses (it accepts the ASCII space only among spaces),
+// and invalid UTF-8.
+func notPrintable(r rune) bool { return r != ' ' && !unicode.IsPrint(r) || r == utf8.RuneError }
 
 // Unwrap returns the underlying problem, so that errors.Is(err,
 // units.ErrNoUnit) and errors.As(err, &unitErr) see through a FieldError.

@@ -50,6 +50,17 @@ var fuzzSeeds = []struct{ old, new string }{
 	{"  path-degeneracy: auto\n", "  path-degeneracy: auto\n  competing:\n    - {via: ts, products: [c]}\n    - {barrierless: {A: 1e308 ms-1}}\n"},
 	{"energy-grid:\n", "energy-grid: &g\n"},
 	{"title: minimal test input", "title: &t [a, *t]"},
+	{"title: minimal test input", "title: &t a\nx: [*t, *t, *t, *t, *t]"},
+	{"title: minimal test input", "title: minimal test input\nb0: &b0 [x, x, x, x, x, x, x, x, x, x]\nb1: &b1 [*b0, *b0, *b0, *b0, *b0, *b0, *b0, *b0, *b0, *b0]\nb2: &b2 [*b1, *b1, *b1, *b1, *b1, *b1, *b1, *b1, *b1, *b1]\nb3: [*b2, *b2, *b2, *b2, *b2, *b2, *b2, *b2, *b2, *b2]"},
+	{"vibrations: {unit: cm-1, values: [3000, 1500, 1000]}", "vibrations: &v {unit: cm-1, values: [3000, 1500, 1000]}"},
+	{"vibrations: {unit: cm-1, values: [2900, 1200]}", "vibrations: {<<: *v}"},
+	{"  gas: Ar\n", "  gas: &gas Ar\n  *gas : 1\n"},
+	{"    optical-isomers: 1\n", "    optical-isomers: &one 1\n    electronic: [{energy: 0 cm-1, degeneracy: *one}, {energy: 24.5 eV, degeneracy: *one}]\n"},
+	{"  products: [a, b]\n", "  products: [a, \"b\\e[31m\", \"c\\Ld\", \"e.f\", \"*g\", \"h:\"]\n"},
+	{"energy: 40 kcal/mol", "energy: 0 kcal/mol"},
+	{"  path-degeneracy: auto\n", "  path-degeneracy: auto\n  reaction-energy: 40 kcal/mol\n  tunnelling: eckart\n"},
+	{"  path-degeneracy: auto\n", "  path-degeneracy: 1e308\n  competing: [{via: ts}]\n"},
+	{"    optical-isomers: 1\n", "    optical-isomers: 1\n    torsions: [{rotational-constant: 0.01 cm-1, barrier-height: 1e10 cm-1, periodicity: 100000, harmonics: {unit: cm-1, values: [1e20, 1, 1, 1]}}]\n"},
 	{"  grain: 10 cm-1\n", ""},
 }
 
@@ -124,6 +135,10 @@ func checkParseError(t *testing.T, name string, err error) {
 	if !strings.ContainsAny(name, "\r\n") && strings.ContainsAny(msg, "\r\n") {
 		t.Errorf("error message is not one line: %q", msg)
 	}
+	// Whatever the file holds, nothing reaches the terminal raw.
+	if strings.ContainsFunc(msg, notPrintable) {
+		t.Errorf("error message holds a raw control or format character: %q", msg)
+	}
 }
 
 // checkModel checks what the Model's documentation promises of a Model
@@ -134,8 +149,36 @@ func checkModel(t *testing.T, name string, data []byte, m *Model) {
 	if m.File != name || !bytes.Equal(m.Source, data) {
 		t.Errorf("File = %q, Source %d bytes; want %q and the %d bytes given", m.File, len(m.Source), name, len(data))
 	}
-	if strings.TrimSpace(m.Title) == "" {
-		t.Error("empty title accepted")
+	if strings.TrimSpace(m.Title) == "" || strings.ContainsFunc(m.Title, notPrintable) {
+		t.Errorf("title %q accepted", m.Title)
+	}
+	// Every name keeps to the safe set (field paths, mechanism files,
+	// terminals).
+	names := []string{m.Bath.Gas}
+	names = append(names, m.Reaction.Products...)
+	for _, mol := range m.Molecules {
+		names = append(names, mol.Name)
+	}
+	for _, c := range m.Reaction.Competing {
+		names = append(names, c.Products...)
+		if c.Name != "barrierless" {
+			names = append(names, c.Name)
+		}
+	}
+	for _, n := range names {
+		if _, why, bad := badNameRune(n); n != "" && bad || len(n) > maxNameLen {
+			t.Errorf("name %q accepted: %s", n, why)
+		}
+	}
+	// Every threshold keeps exp(−E0/kT) representable and, with pressures,
+	// a grain below it.
+	for _, th := range m.thresholds() {
+		if x := th.e0 / (0.6950348 * m.Temperatures[0]); x > maxExponent {
+			t.Errorf("%s: E0/kT = %g at the lowest temperature accepted", th.name, x)
+		}
+		if m.Pressures != nil && m.EnergyGrid.MEGrain == 0 && th.e0 < 0.6950348*m.Temperatures[len(m.Temperatures)-1]/5*(1-1e-9) {
+			t.Errorf("%s: threshold %g cm-1 below kT/5 at the highest temperature accepted", th.name, th.e0)
+		}
 	}
 	if len(m.Temperatures) == 0 {
 		t.Error("no temperatures")
@@ -179,6 +222,14 @@ func checkModel(t *testing.T, name string, data []byte, m *Model) {
 		for i, h := range mol.Hindered {
 			if err := h.Validate(); err != nil {
 				t.Errorf("%s: torsions[%d] accepted but invalid: %v", mol.Name, i, err)
+			}
+			if size, limit := h.BasisSize(m.countTop()); size > limit {
+				t.Errorf("%s: torsions[%d] accepted but its levels need a basis of %d (at most %d)", mol.Name, i, size, limit)
+			}
+		}
+		for i, l := range mol.Electronic {
+			if l.Energy > heliumIonizationCm1 {
+				t.Errorf("%s: electronic[%d] at %g cm-1 accepted", mol.Name, i, l.Energy)
 			}
 		}
 	}

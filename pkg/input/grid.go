@@ -69,6 +69,9 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) (vals []float
 		if !(x > 0) {
 			return 0, p.errAt(kp, n, problemf("a %s must be positive", d), positiveHint(d))
 		}
+		if err := axisLimit(d).check(p, kp, n, x); err != nil {
+			return 0, err
+		}
 		return x, nil
 	}
 	from, err := positive("from", &r.From)
@@ -154,6 +157,14 @@ func (p *parser) axis(path string, r *rawRange, d units.Dimension) (vals []float
 	return out, paths, nil
 }
 
+// axisLimit is the physical range of a grid value of dimension d.
+func axisLimit(d units.Dimension) limit {
+	if d == units.Temperature {
+		return temperatureLimit
+	}
+	return pressureLimit
+}
+
 func positiveHint(d units.Dimension) string {
 	if d == units.Temperature {
 		return "temperatures are absolute, in K"
@@ -173,6 +184,9 @@ func (p *parser) axisList(path string, r *rawRange, d units.Dimension) ([]float6
 		order[i] = i
 		if !(xs[i] > 0) {
 			return nil, nil, p.errAt(fmt.Sprintf("%s.values[%d]", path, i), nodes[i], problemf("a %s must be positive", d), positiveHint(d))
+		}
+		if err := axisLimit(d).check(p, fmt.Sprintf("%s.values[%d]", path, i), nodes[i], xs[i]); err != nil {
+			return nil, nil, err
 		}
 	}
 	sort.SliceStable(order, func(a, b int) bool { return xs[order[a]] < xs[order[b]] })

@@ -429,13 +429,20 @@ func TestModelFieldError(t *testing.T) {
 // Competing channels, barrierless channels and tunnelling are read with
 // their units converted.
 func TestChannelsAndTunnelling(t *testing.T) {
-	m, err := Parse(testFile, edit(t, "  path-degeneracy: auto\n", `  path-degeneracy: auto
+	// A second transition state, ts2, for the first competing channel.
+	withTS2 := strings.Replace(minimal, "reaction:\n", `  ts2:
+    energy: 45 kcal/mol
+    imaginary-frequency: 900 cm-1
+    vibrations: {unit: cm-1, values: [2950, 1300]}
+reaction:
+`, 1)
+	m, err := Parse(testFile, []byte(strings.Replace(withTS2, "  path-degeneracy: auto\n", `  path-degeneracy: auto
   reaction-energy: 20 kcal/mol
   tunnelling: eckart
   competing:
-    - {via: ts, products: [c], path-degeneracy: 2, tunnelling: wigner}
+    - {via: ts2, products: [c], path-degeneracy: 2, tunnelling: wigner}
     - {name: loose, barrierless: {A: 2e15 s-1, T0: 298 K, n: 0.5, energy: 80 kcal/mol}, products: [d, e]}
-`))
+`, 1)))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -444,7 +451,7 @@ func TestChannelsAndTunnelling(t *testing.T) {
 		t.Fatalf("tunnelling %q, %d competing", rx.Tunnelling, len(rx.Competing))
 	}
 	c0, c1 := rx.Competing[0], rx.Competing[1]
-	if c0.Via != "ts" || c0.PathDegeneracy != 2 || c0.Tunnelling != Wigner || c0.Name != "ts" {
+	if c0.Via != "ts2" || c0.PathDegeneracy != 2 || c0.Tunnelling != Wigner || c0.Name != "ts2" {
 		t.Errorf("first competing channel %+v", c0)
 	}
 	b := c1.Barrierless
@@ -482,8 +489,8 @@ func TestTorsions(t *testing.T) {
 	}
 	_, err = Parse(testFile, edit(t, ljLine, ljLine+"    torsions:\n      - {rotational-constant: 5.3 cm-1, barrier-height: -10 cm-1, periodicity: 3}\n"))
 	var fe *FieldError
-	if !errors.As(err, &fe) || fe.Path != "molecules.r.torsions[0]" || fe.Line != 10 {
-		t.Errorf("negative barrier: %v, want an error at molecules.r.torsions[0], line 10", err)
+	if !errors.As(err, &fe) || fe.Path != "molecules.r.torsions[0].barrier-height" || fe.Line != 10 {
+		t.Errorf("negative barrier: %v, want an error at molecules.r.torsions[0].barrier-height, line 10", err)
 	}
 }
 
@@ -742,7 +749,7 @@ func TestWarnings(t *testing.T) {
 		{"same mode count", "values: [2900, 1200]", "values: [2900, 1200, 900]", "molecules.ts.vibrations", "same number"},
 		{"two modes fewer", "values: [2900, 1200]", "values: [2900]", "molecules.ts.vibrations", "imply 2"},
 		{"large barrier", "energy: 40 kcal/mol", "energy: 200 kcal/mol", "molecules.ts.energy", "unusually large"},
-		{"small barrier", "energy: 40 kcal/mol", "energy: 100 cm-1", "molecules.ts.energy", "unusually small"},
+		{"small barrier", "energy: 40 kcal/mol", "energy: 300 cm-1", "molecules.ts.energy", "unusually small"},
 		{"low temperature", "from: 300 K", "from: 50 K", "grid.temperatures", "below 100 K"},
 		{"high temperature", "to: 1500 K", "to: 6000 K", "grid.temperatures", "above 5000 K"},
 		{"TS mass differs", "    energy: 40 kcal/mol\n", "    energy: 40 kcal/mol\n    mass: 30 amu\n", "molecules.ts.mass", "differs"},

@@ -1,8 +1,11 @@
 package input
 
 import (
+	"errors"
 	"fmt"
+	"io"
 	"os"
+	"syscall"
 
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"go.yaml.in/yaml/v3"
@@ -156,9 +159,13 @@ const (
 )
 
 // Parse reads an input file's content; name is used in messages. A problem
-// with a field is returned as a *FieldError.
+// with a field is returned as a *FieldError; so is content longer than
+// MaxFileBytes.
 func Parse(name string, data []byte) (*Model, error) {
 	p := &parser{file: name}
+	if len(data) > MaxFileBytes {
+		return nil, p.fileError(0, tooLarge(), hintTooLarge)
+	}
 	raw, err := p.decode(data)
 	if err != nil {
 		return nil, err
@@ -205,16 +212,60 @@ func (m *Model) TemperaturePath(i int) string {
 	return m.tempPaths[i]
 }
 
+// MaxFileBytes is the largest input file Parse and ReadFile accept, 4 MiB.
+// An input describes one reaction network: the demo takes 1.3 kB, and a
+// molecule of 150 atoms with its transition state about 10 kB, so a
+// larger file is the wrong file (a table, a log, a device). The bound also
+// caps the memory of parsing, which takes several hundred bytes per
+// value.
+const MaxFileBytes = 1 << 20
+
 // ReadFile reads and parses the input file at path; path is used in
-// messages. An error reading the file is returned as it is (an
-// *fs.PathError).
+// messages. An error opening or reading the file is returned as it is (an
+// *fs.PathError). It reads at most MaxFileBytes, so an endless stream
+// (/dev/zero) or a huge file ends with a *FieldError at once; a named pipe
+// is opened without waiting for a writer, so one that has none reads as
+// empty instead of hanging.
 func ReadFile(path string) (*Model, error) {
-	data, err := os.ReadFile(path)
+	data, err := readLimited(path, MaxFileBytes)
+	if errors.Is(err, errTooLarge) {
+		p := &parser{file: path}
+		return nil, p.fileError(0, tooLarge(), hintTooLarge)
+	}
 	if err != nil {
 		return nil, err
 	}
 	return Parse(path, data)
 }
+
+// errTooLarge marks a file longer than the limit readLimited was given.
+var errTooLarge = errors.New("file too large")
+
+// readLimited reads the file at path, up to limit bytes; a longer file is
+// errTooLarge. O_NONBLOCK lets open return for a FIFO without a writer
+// (reads then see end of file); it does not affect a regular file.
+func readLimited(path string, limit int64) ([]byte, error) {
+	f, err := os.OpenFile(path, os.O_RDONLY|syscall.O_NONBLOCK, 0)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	data, err := io.ReadAll(io.LimitReader(f, limit+1))
+	if err != nil {
+		return nil, err
+	}
+	if int64(len(data)) > limit {
+		return nil, errTooLarge
+	}
+	return data, nil
+}
+
+// tooLarge is the problem of a file beyond MaxFileBytes.
+func tooLarge() error {
+	return problemf("larger than %d MiB (%d bytes), the limit for an input file", MaxFileBytes>>20, MaxFileBytes)
+}
+
+const hintTooLarge = "an input file describes one reaction in a few kilobytes: is this the right file? (a table for fit is a .csv file)"
 
 // Molecule returns the molecule called name, or nil if there is none.
 func (m *Model) Molecule(name string) *Molecule {
@@ -247,27 +298,28 @@ type parser struct {
 type threshold struct {
 	name string  // the transition state, or "the barrierless channel NAME"
 	e0   float64 // cm⁻¹
+	path string  // the field that gives it
 }
 
 // thresholds lists the threshold of every channel out of the reactant: the
 // main channel first, then the competing ones.
 func (m *Model) thresholds() []threshold {
 	var out []threshold
-	add := func(via string, b *Barrierless, label string) {
+	add := func(via string, b *Barrierless, label, section string) {
 		switch {
 		case b != nil:
-			out = append(out, threshold{label, b.Energy})
+			out = append(out, threshold{label, b.Energy, section + ".barrierless.energy"})
 		case m.Molecule(via) != nil:
-			out = append(out, threshold{via, m.Molecule(via).E0})
+			out = append(out, threshold{via, m.Molecule(via).E0, "molecules." + via + ".energy"})
 		}
 	}
-	add(m.Reaction.Via, m.Reaction.Barrierless, "the barrierless main channel")
+	add(m.Reaction.Via, m.Reaction.Barrierless, "the barrierless main channel", "reaction")
 	for i, c := range m.Reaction.Competing {
 		label := fmt.Sprintf("the barrierless channel reaction.competing[%d]", i)
 		if c.Name != "" {
 			label = "the barrierless channel " + c.Name
 		}
-		add(c.Via, c.Barrierless, label)
+		add(c.Via, c.Barrierless, label, fmt.Sprintf("reaction.competing[%d]", i))
 	}
 	return out
 }

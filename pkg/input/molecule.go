@@ -24,13 +24,8 @@ func (p *parser) molecules(raw map[string]*rawMolecule) ([]*Molecule, error) {
 	var mols []*Molecule
 	for _, name := range names {
 		path := "molecules." + name
-		switch {
-		case strings.TrimSpace(name) == "":
-			return nil, p.errAt(path, nil, problemf("empty molecule name"), "")
-		case strings.IndexFunc(name, isSpace) >= 0:
-			fe := p.errAt(path, nil, problemf("a molecule name may not contain white space"), "join the words with '-' or '_'")
-			fe.Value = name
-			return nil, fe
+		if err := p.checkName(path, nil, name, "molecule name"); err != nil {
+			return nil, err
 		}
 		r := raw[name]
 		if r == nil {
@@ -62,6 +57,9 @@ func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) 
 		}
 		if !(v > 0) {
 			return nil, p.errAt(path+".mass", &r.Mass, problemf("a mass must be positive"), "give the molar mass, e.g. mass: 70.09 amu")
+		}
+		if err := massLimit.check(p, path+".mass", &r.Mass, v); err != nil {
+			return nil, err
 		}
 		m.Mass = v
 	}
@@ -114,6 +112,9 @@ func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) 
 				return nil, p.errAt(ip, nodes[i], problemf("a zero frequency"),
 					"a vibration needs a positive frequency; delete a mode that is not a vibration (a translation or rotation)")
 			}
+			if err := vibrationLimit.check(p, ip, nodes[i], x); err != nil {
+				return nil, err
+			}
 		}
 		m.Vibrations = xs
 	}
@@ -136,6 +137,9 @@ func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) 
 		if k < 1 {
 			return nil, p.errAt(op, &r.OpticalIsomers, problemf("must be at least 1"),
 				"1 for an achiral species, 2 for a chiral one")
+		}
+		if err := opticalLimit.check(p, op, &r.OpticalIsomers, float64(k)); err != nil {
+			return nil, err
 		}
 		m.OpticalIsomers = float64(k)
 	}
@@ -196,7 +200,7 @@ func (p *parser) threshold(path string, n *yaml.Node, name string, e float64) er
 	num, unit := units.SplitNumber(strings.TrimSpace(n.Value))
 	if x, err := strconv.ParseFloat(num, 64); err == nil && !strings.EqualFold(unit, "cm-1") {
 		if alt := x / units.Cm1PerKcalPerMol; alt >= lowBarrierKcal && alt <= maxThresholdKcal {
-			hint += fmt.Sprintf("; if the number is in cm-1, write %q (%.3g kcal/mol)", num+" cm-1", alt)
+			hint += fmt.Sprintf("; if the number is in cm-1, write %s (%.3g kcal/mol)", quoteClipped(num+" cm-1"), alt)
 		}
 	}
 	return p.errAt(path, n, problemf("%s = %.6g kcal/mol is above %g kcal/mol, more than any chemical bond energy", name, kcal, maxThresholdKcal), hint)
@@ -210,8 +214,11 @@ func (p *parser) threshold(path string, n *yaml.Node, name string, e float64) er
 func (p *parser) torsion(path string, r *rawTorsion) (rrkm.HinderedRotor, error) {
 	// maxTorsionB bounds a torsion's rotational constant: the lightest
 	// possible internal rotor, H2's relative motion, has B ≈ 61 cm⁻¹ (from
-	// memory); an OH torsion about 20.
-	const maxTorsionB = 100.0
+	// memory); an OH torsion about 20. minTorsionB, a reduced moment of
+	// 1690 amu Å², is beyond the torsion of any two groups of a molecule
+	// a state count describes (a phenyl group has about 80 amu Å², from
+	// memory), and keeps the basis of the levels within the solver's size.
+	const maxTorsionB, minTorsionB = 100.0, 0.01
 	var h rrkm.HinderedRotor
 
 	// Each field is read under the name the file uses.
@@ -254,6 +261,10 @@ func (p *parser) torsion(path string, r *rawTorsion) (rrkm.HinderedRotor, error)
 			return h, p.errAt(constant.path, constant.n, problemf("%.4g cm-1 is above any torsion's rotational constant (at most about %g cm-1)", h.B, maxTorsionB),
 				"check the unit; a methyl torsion has about 5.3 cm-1")
 		}
+		if h.B < minTorsionB {
+			return h, p.errAt(constant.path, constant.n, problemf("%.4g cm-1 is below any torsion's rotational constant (at least about %g cm-1)", h.B, minTorsionB),
+				"check the unit; a methyl torsion has about 5.3 cm-1, a phenyl group about 0.2 cm-1")
+		}
 	case given(moment.n):
 		i, err := p.quantity(moment.path, moment.n, units.Inertia)
 		if err != nil {
@@ -267,6 +278,10 @@ func (p *parser) torsion(path string, r *rawTorsion) (rrkm.HinderedRotor, error)
 			return h, p.errAt(moment.path, moment.n, problemf("gives a rotational constant of %.4g cm-1, above any torsion's (at most about %g cm-1)", h.B, maxTorsionB),
 				"check the unit; a methyl torsion has about 3.2 amu angstrom2 (5.3 cm-1)")
 		}
+		if h.B < minTorsionB {
+			return h, p.errAt(moment.path, moment.n, problemf("gives a rotational constant of %.4g cm-1, below any torsion's (at least about %g cm-1)", h.B, minTorsionB),
+				"check the unit; a methyl torsion has about 3.2 amu angstrom2, a phenyl group about 80")
+		}
 	default:
 		return h, p.missing(path+".rotational-constant", "give the torsion's rotational constant (e.g. rotational-constant: 5.3 cm-1) or its reduced moment of inertia (reduced-moment: 3.2 amu angstrom2)")
 	}
@@ -276,9 +291,15 @@ func (p *parser) torsion(path string, r *rawTorsion) (rrkm.HinderedRotor, error)
 	if h.V0, err = p.quantity(barrier.path, barrier.n, units.Energy); err != nil {
 		return h, err
 	}
+	if err := torsionBarrierLimit.check(p, barrier.path, barrier.n, h.V0); err != nil {
+		return h, err
+	}
 	h.Fold = 1
 	if given(fold.n) {
 		if h.Fold, err = p.integer(fold.path, fold.n); err != nil {
+			return h, err
+		}
+		if err := periodicityLimit.check(p, fold.path, fold.n, float64(h.Fold)); err != nil {
 			return h, err
 		}
 	}
@@ -292,8 +313,22 @@ func (p *parser) torsion(path string, r *rawTorsion) (rrkm.HinderedRotor, error)
 		harmonics = r.OldFourier
 	}
 	if harmonics != nil {
-		if h.Cos, _, err = p.list(path+"."+harmonicsKey, harmonics, units.Energy); err != nil {
+		hp := path + "." + harmonicsKey
+		var nodes []*yaml.Node
+		if h.Cos, nodes, err = p.list(hp, harmonics, units.Energy); err != nil {
 			return h, err
+		}
+		// A few dozen terms fit any measured or computed torsional
+		// potential; more would only make the basis of the levels, and the
+		// time to solve it, grow (rrkm.MaxHarmonics).
+		if len(h.Cos) > rrkm.MaxHarmonics {
+			return h, p.errAt(hp+".values", &harmonics.Values, problemf("%d terms, more than %d", len(h.Cos), rrkm.MaxHarmonics),
+				"a few terms fit any torsional potential: refit the scan with fewer")
+		}
+		for i, c := range h.Cos {
+			if err := harmonicLimit.check(p, fmt.Sprintf("%s.values[%d]", hp, i), nodes[i], c); err != nil {
+				return h, err
+			}
 		}
 	}
 	if err := h.Validate(); err != nil {
@@ -321,6 +356,9 @@ func (p *parser) imaginary(path string, n *yaml.Node) (float64, error) {
 	if v == 0 {
 		return 0, p.errAt(path, n, problemf("a zero imaginary frequency"),
 			"give the magnitude of the imaginary mode, e.g. \"650 cm-1\", or delete the key")
+	}
+	if err := imaginaryLimit.check(p, path, n, math.Abs(v)); err != nil {
+		return 0, err
 	}
 	return math.Abs(v), nil
 }
@@ -380,6 +418,13 @@ func (p *parser) rotation(path string, r *rawRotation) (rrkm.Rotor, int, error) 
 					problemf("too small: the rotational constant h/(8π²cI) is beyond the float64 range"), "check the number and the list's unit")
 			}
 		}
+		l := rotConstLimit
+		if list == r.Inertia {
+			l.unit = "cm-1 (as a rotational constant)"
+		}
+		if err := l.check(p, fmt.Sprintf("%s.values[%d]", lp, i), nodes[i], xs[i]); err != nil {
+			return rot, 0, err
+		}
 	}
 	rot = rrkm.Rotor{Dim: 3, Consts: xs, Symmetry: 1}
 	if linear {
@@ -394,6 +439,13 @@ func (p *parser) rotation(path string, r *rawRotation) (rrkm.Rotor, int, error) 
 		if sigma < 1 {
 			return rot, 0, p.errAt(sp, &r.Symmetry, problemf("a symmetry number must be at least 1"),
 				"the external rotational symmetry number: 1 for no symmetry, 2 for H2O, 3 for NH3, 12 for CH4")
+		}
+		if err := symmetryLimit.check(p, sp, &r.Symmetry, float64(sigma)); err != nil {
+			return rot, 0, err
+		}
+		if linear && sigma > 2 {
+			return rot, 0, p.errAt(sp, &r.Symmetry, problemf("a linear molecule has symmetry number 1 or 2"),
+				"2 if the molecule has a centre of symmetry (CO2, C2H2), else 1 (HCN, N2O)")
 		}
 	}
 	return rot, sigma, nil
@@ -423,6 +475,9 @@ func (p *parser) electronic(path string, raw []*rawLevel) ([]rrkm.Level, error) 
 			return nil, p.errAt(lp+".energy", &r.Energy, problemf("negative level energy"),
 				"energies are measured from the ground level, which is at 0")
 		}
+		if err := electronicLimit.check(p, lp+".energy", &r.Energy, e); err != nil {
+			return nil, err
+		}
 		g := 1
 		if given(&r.Degeneracy) {
 			if g, err = p.integer(lp+".degeneracy", &r.Degeneracy); err != nil {
@@ -430,6 +485,9 @@ func (p *parser) electronic(path string, raw []*rawLevel) ([]rrkm.Level, error) 
 			}
 			if g < 1 {
 				return nil, p.errAt(lp+".degeneracy", &r.Degeneracy, problemf("a degeneracy must be at least 1"), "")
+			}
+			if err := degeneracyLimit.check(p, lp+".degeneracy", &r.Degeneracy, float64(g)); err != nil {
+				return nil, err
 			}
 		}
 		ground = ground || e == 0
@@ -467,6 +525,12 @@ func (p *parser) lennardJones(path string, r *rawLJ) (*LennardJones, error) {
 	}
 	if math.IsInf(eps/units.KelvinToCm1, 0) {
 		return nil, p.errAt(path+".epsilon", &r.Epsilon, problemf("too large: ε/k_B is beyond the float64 range in K"), "check the number and its unit")
+	}
+	if err := sigmaLimit.check(p, path+".sigma", &r.Sigma, sigma); err != nil {
+		return nil, err
+	}
+	if err := epsilonLimit.check(p, path+".epsilon", &r.Epsilon, eps/units.KelvinToCm1); err != nil {
+		return nil, err
 	}
 	return &LennardJones{Sigma: sigma, Epsilon: eps / units.KelvinToCm1}, nil
 }

@@ -2,6 +2,7 @@ package input
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -82,7 +83,7 @@ func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
 				"write products: [A, B]")
 		}
 		for i, n := range r.Products.Content {
-			name, err := p.name(fmt.Sprintf("%s[%d]", pp, i), n)
+			name, err := p.speciesName(fmt.Sprintf("%s[%d]", pp, i), n, "product name")
 			if err != nil {
 				return rx, err
 			}
@@ -95,6 +96,9 @@ func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
 		if err != nil {
 			return rx, err
 		}
+		if err := reactionEnergyLimit.check(p, "reaction.reaction-energy", &r.ReactionEnergy, e); err != nil {
+			return rx, err
+		}
 		rx.ReactionEnergy, rx.HasReactionEnergy = e, true
 	}
 
@@ -105,14 +109,43 @@ func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
 	if rx.Tunnelling, err2 = p.tunnelling("reaction.tunnelling", &r.Tunnelling, rx.HasReactionEnergy, ts); err2 != nil {
 		return rx, err2
 	}
+	if err := p.eckartSides("reaction", &r.ReactionEnergy, rx.Tunnelling, rx.ReactionEnergy, ts); err != nil {
+		return rx, err
+	}
+	// via names the transition state of each channel; a transition state
+	// counted twice would double its channel's k silently.
+	usedBy := map[string]string{}
+	if rx.Via != "" {
+		usedBy[rx.Via] = "reaction.via"
+	}
 	for i := range r.Competing {
-		c, err := p.competing(fmt.Sprintf("reaction.competing[%d]", i), &r.Competing[i], lookup)
+		path := fmt.Sprintf("reaction.competing[%d]", i)
+		c, err := p.competing(path, &r.Competing[i], lookup)
 		if err != nil {
 			return rx, err
 		}
+		if first, dup := usedBy[c.Via]; dup && c.Via != "" {
+			return rx, p.errAt(path+".via", &r.Competing[i].Via, problemf("the transition state of %s too: it would be counted twice, doubling that channel's k", first),
+				"each channel passes its own transition state; delete the repeated channel, or give the second one its own molecule (and path-degeneracy for equivalent paths)")
+		}
+		usedBy[c.Via] = path + ".via"
 		rx.Competing = append(rx.Competing, c)
 	}
 	return rx, nil
+}
+
+// eckartSides refuses a channel with Eckart tunnelling whose products lie at
+// or above its barrier: the Eckart potential then has no reverse barrier
+// (E0 − ΔE ≤ 0) and no transmission is defined. path is the channel's
+// section (reaction, or reaction.competing[i]), n the node of its
+// reaction-energy.
+func (p *parser) eckartSides(path string, n *yaml.Node, t Tunnelling, dE float64, ts *Molecule) error {
+	if t != Eckart || ts == nil || dE < ts.E0 {
+		return nil
+	}
+	return p.errAt(path+".reaction-energy", n,
+		problemf("ΔE0 = %s cm-1 is at or above the barrier E0 = %s cm-1 of %s: the products would lie above the transition state, and an Eckart barrier needs a reverse barrier E0 − ΔE0 > 0", fmtCm1(dE), fmtCm1(ts.E0), ts.Name),
+		fmt.Sprintf("check %s.reaction-energy and molecules.%s.energy (both zero-point corrected, from the reactant's zero-point level), or use %s.tunnelling: wigner", path, ts.Name, path))
 }
 
 // pathDegeneracy reads "auto" (0) or a positive number.
@@ -130,6 +163,9 @@ func (p *parser) pathDegeneracy(dp string, n *yaml.Node) (float64, error) {
 	if !(l > 0) {
 		return 0, p.errAt(dp, n, problemf("must be positive"),
 			"write auto to compute L = σ_R·m‡/(σ‡·m_R), or a positive number")
+	}
+	if err := pathDegeneracyLimit.check(p, dp, n, l); err != nil {
+		return 0, err
 	}
 	return l, nil
 }
@@ -165,7 +201,7 @@ func (p *parser) tunnelling(path string, n *yaml.Node, hasEnergy bool, ts *Molec
 func (p *parser) competing(path string, r *rawChannel, lookup func(string, *yaml.Node) (*Molecule, error)) (Channel, error) {
 	var c Channel
 	if given(&r.Name) {
-		name, err := p.name(path+".name", &r.Name)
+		name, err := p.speciesName(path+".name", &r.Name, "channel name")
 		if err != nil {
 			return c, err
 		}
@@ -198,7 +234,7 @@ func (p *parser) competing(path string, r *rawChannel, lookup func(string, *yaml
 			return c, p.errAt(path+".products", &r.Products, problemf("expected a list of names"), "write products: [A, B]")
 		}
 		for i, n := range r.Products.Content {
-			name, err := p.name(fmt.Sprintf("%s.products[%d]", path, i), n)
+			name, err := p.speciesName(fmt.Sprintf("%s.products[%d]", path, i), n, "product name")
 			if err != nil {
 				return c, err
 			}
@@ -219,9 +255,15 @@ func (p *parser) competing(path string, r *rawChannel, lookup func(string, *yaml
 		if c.ReactionEnergy, err = p.quantity(path+".reaction-energy", &r.ReactionEnergy, units.Energy); err != nil {
 			return c, err
 		}
+		if err := reactionEnergyLimit.check(p, path+".reaction-energy", &r.ReactionEnergy, c.ReactionEnergy); err != nil {
+			return c, err
+		}
 		c.HasReactionEnergy = true
 	}
 	if c.Tunnelling, err = p.tunnelling(path+".tunnelling", &r.Tunnelling, c.HasReactionEnergy, ts); err != nil {
+		return c, err
+	}
+	if err := p.eckartSides(path, &r.ReactionEnergy, c.Tunnelling, c.ReactionEnergy, ts); err != nil {
 		return c, err
 	}
 	return c, nil
@@ -240,12 +282,18 @@ func (p *parser) barrierless(path string, r *rawBarrierless) (*Barrierless, erro
 	if !(b.A > 0) {
 		return nil, p.errAt(path+".A", &r.A, problemf("must be positive"), "")
 	}
+	if err := barrierlessALimit.check(p, path+".A", &r.A, b.A); err != nil {
+		return nil, err
+	}
 	if given(&r.T0) {
 		if b.T0, err = p.quantity(path+".T0", &r.T0, units.Temperature); err != nil {
 			return nil, err
 		}
 		if !(b.T0 > 0) {
 			return nil, p.errAt(path+".T0", &r.T0, problemf("must be positive"), "")
+		}
+		if err := barrierlessT0Limit.check(p, path+".T0", &r.T0, b.T0); err != nil {
+			return nil, err
 		}
 	}
 	if given(&r.N) {
@@ -254,6 +302,9 @@ func (p *parser) barrierless(path string, r *rawBarrierless) (*Barrierless, erro
 		}
 		if !(b.N >= 0) {
 			return nil, p.errAt(path+".n", &r.N, problemf("the temperature exponent must be ≥ 0 for the inverse Laplace transform"), "")
+		}
+		if err := barrierlessNLimit.check(p, path+".n", &r.N, b.N); err != nil {
+			return nil, err
 		}
 	}
 	if given(&r.Energy) {
@@ -276,7 +327,7 @@ func (p *parser) bath(r *rawBath) (Bath, error) {
 	if !given(&r.Gas) {
 		return b, p.missing("bath.gas", "name the bath gas, e.g. gas: Ar")
 	}
-	gas, err := p.name("bath.gas", &r.Gas)
+	gas, err := p.speciesName("bath.gas", &r.Gas, "bath-gas name")
 	if err != nil {
 		return b, err
 	}
@@ -287,6 +338,9 @@ func (p *parser) bath(r *rawBath) (Bath, error) {
 		}
 		if !(b.Mass > 0) {
 			return b, p.errAt("bath.mass", &r.Mass, problemf("a mass must be positive"), "give the molar mass, e.g. mass: 39.95 amu")
+		}
+		if err := massLimit.check(p, "bath.mass", &r.Mass, b.Mass); err != nil {
+			return b, err
 		}
 	}
 	if r.LennardJones != nil {
@@ -320,9 +374,12 @@ func (p *parser) collisionRate(path string, n *yaml.Node) (float64, error) {
 	case unit == "":
 		return 0, p.errAt(path, n, problemf("no unit"), hint)
 	case !slices.Contains(collisionRateUnits, unit):
-		return 0, p.errAt(path, n, problemf("unknown unit %q", unit), hint)
-	case !(x > 0) || x > 1e300:
+		return 0, p.errAt(path, n, problemf("unknown unit %s", quoteClipped(unit)), hint)
+	case !(x > 0) || math.IsInf(x, 0):
 		return 0, p.errAt(path, n, problemf("must be positive and finite"), hint)
+	}
+	if err := collisionRateLimit.check(p, path, n, x); err != nil {
+		return 0, err
 	}
 	return x, nil
 }
@@ -363,8 +420,14 @@ func (p *parser) transfer(r *rawTransfer) (EnergyTransfer, error) {
 		if !(et.Alpha300 > 0) {
 			return et, p.errAt(ap, &r.Alpha300, problemf("must be positive"), "α300 is ⟨ΔE⟩down at 300 K, typically 100 to 1000 cm-1")
 		}
+		if err := alphaLimit.check(p, ap, &r.Alpha300, et.Alpha300); err != nil {
+			return et, err
+		}
 		if given(&r.AlphaExponent) {
 			if et.AlphaExponent, err = p.number("energy-transfer.alpha-exponent", &r.AlphaExponent); err != nil {
+				return et, err
+			}
+			if err := alphaExponentLimit.check(p, "energy-transfer.alpha-exponent", &r.AlphaExponent, et.AlphaExponent); err != nil {
 				return et, err
 			}
 		}

@@ -6,6 +6,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"github.com/falloff-kinetics/falloff/pkg/units"
 	"go.yaml.in/yaml/v3"
@@ -61,16 +63,16 @@ func (p *parser) fileError(line int, err error, hint string) *FieldError {
 
 // warn records a warning about the field at path.
 func (p *parser) warn(path, format string, args ...any) {
-	w := p.file
+	w := printable(p.file)
 	if p.index != nil {
 		if line := p.index.line(path); line > 0 {
 			w += ":" + strconv.Itoa(line)
 		}
 	}
 	if path != "" {
-		w += ": " + path
+		w += ": " + printable(path)
 	}
-	p.warnings = append(p.warnings, w+": "+oneLine(fmt.Sprintf(format, args...)))
+	p.warnings = append(p.warnings, w+": "+printable(oneLine(fmt.Sprintf(format, args...))))
 }
 
 // scalar checks that n is a single value, not a list or a mapping.
@@ -138,7 +140,7 @@ func (p *parser) unitError(path string, n *yaml.Node, text string, d units.Dimen
 		return p.errAt(path, n, &problem{"no unit", err}, list)
 	case errors.Is(err, units.ErrNoUnit):
 		return p.errAt(path, n, &problem{"no unit", err},
-			fmt.Sprintf("write it with its unit, e.g. %q; %s", num+" "+d.Internal(), list))
+			fmt.Sprintf("write it with its unit, e.g. %s; %s", quoteClipped(num+" "+d.Internal()), list))
 	case errors.Is(nerr, strconv.ErrRange) && math.IsInf(x, 0):
 		return p.errAt(path, n, &problem{"not a finite number (beyond the range of floating point, about 1.8e308)", err},
 			"check the exponent")
@@ -156,10 +158,10 @@ func (p *parser) unitError(path string, n *yaml.Node, text string, d units.Dimen
 			continue
 		}
 		if _, err2 := units.Factor(unit, other); err2 == nil {
-			return p.errAt(path, n, &problem{fmt.Sprintf("%q is a unit of %s, not of %s", unit, other, d), err}, list)
+			return p.errAt(path, n, &problem{fmt.Sprintf("%s is a unit of %s, not of %s", quoteClipped(unit), other, d), err}, list)
 		}
 	}
-	return p.errAt(path, n, &problem{fmt.Sprintf("unknown unit %q", unit), err}, list)
+	return p.errAt(path, n, &problem{fmt.Sprintf("unknown unit %s", quoteClipped(unit)), err}, list)
 }
 
 // errHasUnit marks a plain number written with a unit after it.
@@ -181,7 +183,7 @@ func (p *parser) number(path string, n *yaml.Node) (float64, error) {
 	}
 	if num, unit := units.SplitNumber(text); num != "" && unit != "" && looksLikeUnit(text[len(num):], unit) {
 		if _, err := strconv.ParseFloat(num, 64); err == nil {
-			return 0, p.errAt(path, n, &problem{fmt.Sprintf("expected a plain number, found one with %q after it", unit), errHasUnit},
+			return 0, p.errAt(path, n, &problem{fmt.Sprintf("expected a plain number, found one with %s after it", quoteClipped(unit)), errHasUnit},
 				"this value takes no unit")
 		}
 	}
@@ -256,6 +258,103 @@ func (p *parser) name(path string, n *yaml.Node) (string, error) {
 }
 
 func isSpace(r rune) bool { return r == ' ' || r == '\t' || r == '\n' || r == '\r' }
+
+// maxNameLen bounds a species or channel name, in bytes (all ASCII).
+const maxNameLen = 64
+
+// nameChars are the characters a species or channel name may hold beside
+// ASCII letters and digits. The names go into field paths
+// (molecules.NAME.mass, where '.' and '[' have a meaning, so neither is
+// allowed), into the equations of Cantera YAML and keyword-text mechanism
+// files (where space, + = < > ! / and # have one) and onto the terminal:
+// these are the punctuation marks species names use, as in CH2(S), n-C3H7,
+// C3H6O(1,2), OH*, C3H5'.
+const nameChars = "-_(),'*"
+
+// nameHint describes a valid name.
+const nameHint = "a name holds ASCII letters, digits and " + nameChars + " only, starts with a letter, a digit or '(', and has at most 64 characters, e.g. n-C3H7, CH2(S), OH*"
+
+// badNameRune returns the first character of name that a species or channel
+// name may not hold (or a first character that may not start one), with
+// why; ok is false if there is none.
+func badNameRune(name string) (r rune, why string, ok bool) {
+	for i, c := range name {
+		switch {
+		case c == '.':
+			return c, "a dot, which would make field paths such as molecules.NAME.mass ambiguous", true
+		case c == '[' || c == ']':
+			return c, "a bracket, which field paths use for list positions", true
+		case c >= 'a' && c <= 'z', c >= 'A' && c <= 'Z', c >= '0' && c <= '9':
+		case i == 0 && c != '(':
+			return c, "not a letter, a digit or '(' at the start", true
+		case strings.ContainsRune(nameChars, c):
+		case isSpace(c):
+			return c, "white space (join the words with '-' or '_')", true
+		case c > unicode.MaxASCII:
+			return c, "not ASCII (mechanism files take ASCII names)", true
+		case !unicode.IsPrint(c):
+			return c, "a control character", true
+		default:
+			return c, "a character with a meaning in field paths, YAML or mechanism files", true
+		}
+	}
+	return 0, "", false
+}
+
+// checkName reports a species, product, channel or bath-gas name that is
+// empty, too long or holds a character outside the safe set; what names
+// the kind of name for the message. n is the node written, nil for a
+// mapping key (a molecule's name), whose FieldError gets the name as its
+// value.
+func (p *parser) checkName(path string, n *yaml.Node, name, what string) error {
+	fail := func(msg string) error {
+		fe := p.errAt(path, n, problemf("%s", msg), nameHint)
+		fe.Value = name
+		if n == nil && p.index != nil {
+			for _, k := range p.index.keys { // the key's line, not its value's
+				if k.path == path {
+					fe.Line = k.node.Line
+					break
+				}
+			}
+		}
+		return fe
+	}
+	if name == "" {
+		return fail("empty " + what)
+	}
+	if r, why, ok := badNameRune(name); ok {
+		q := strconv.QuoteRune(r)
+		if r == utf8.RuneError {
+			q = "an invalid byte"
+		}
+		return fail(fmt.Sprintf("%s holding %s: %s", article(what), q, why))
+	}
+	if len(name) > maxNameLen {
+		return fail(fmt.Sprintf("%s of %d characters, more than %d", article(what), len(name), maxNameLen))
+	}
+	return nil
+}
+
+// article puts "a" or "an" before a noun phrase.
+func article(s string) string {
+	if s != "" && strings.ContainsRune("aeiou", rune(s[0])) {
+		return "an " + s
+	}
+	return "a " + s
+}
+
+// speciesName reads a name (p.name) and checks it with checkName.
+func (p *parser) speciesName(path string, n *yaml.Node, what string) (string, error) {
+	name, err := p.name(path, n)
+	if err != nil {
+		return "", err
+	}
+	if err := p.checkName(path, n, name, what); err != nil {
+		return "", err
+	}
+	return name, nil
+}
 
 // list reads a list of numbers with one unit, {unit: U, values: [...]}, into
 // the internal unit of d. It returns the value nodes for later messages.

@@ -27,6 +27,7 @@ type rawFile struct {
 	Grid           *rawGrid                `yaml:"grid"`
 	Fits           yaml.Node               `yaml:"fits"`
 	EnergyGrid     *rawEnergyGrid          `yaml:"energy-grid"`
+	Thermo         *rawThermo              `yaml:"thermo"` // read by Model.Thermo (thermo.go)
 }
 
 type rawMolecule struct {
@@ -251,8 +252,11 @@ func (p *parser) decode(data []byte) (*rawFile, error) {
 		return nil, p.fileError(root.Line,
 			problemf("not a falloff input: the top level is %s, not a mapping of keys", kindName(root)), hintStart)
 	}
-	// Decode before indexing: the decoder refuses excessive aliasing, which
-	// the index, following aliases, would otherwise expand.
+	// Size and aliases are measured before anything follows an alias: the
+	// decoder and the index expand each into a copy of its anchored value.
+	if err := p.checkSize(root); err != nil {
+		return nil, err
+	}
 	var raw rawFile
 	dec = yaml.NewDecoder(bytes.NewReader(data))
 	dec.KnownFields(true)
@@ -273,6 +277,132 @@ func (p *parser) decode(data []byte) (*rawFile, error) {
 		}
 	}
 	return &raw, nil
+}
+
+// aliasFactor bounds the expansion of YAML aliases: the values of a file,
+// with every *alias replaced by a copy of its &anchor, may number at most
+// aliasFactor times the values written. Sharing a list or a mapping among a
+// few molecules stays well inside it; an alias bomb, each anchor a list of
+// aliases to the one before (a: &a [*a, *a] in 25 bytes, or 2 kB that
+// expand to 1e20 values), is refused before any of it is expanded.
+const aliasFactor = 4
+
+// maxValues bounds the number of values in a file (keys, scalars, lists
+// and mappings as written), and maxKeys the keys of one mapping: the demo
+// has about 200 values, a molecule of 150 atoms about 500; a file beyond
+// either is not an input, and both keep parsing cheap (the YAML decoder
+// checks each mapping for duplicate keys in time quadratic in its size).
+const (
+	maxValues = 100_000
+	maxKeys   = 1000
+)
+
+// pathTo returns the dotted path from root to the node n, not reached
+// through an alias, for messages about n; "" if n is root or not found.
+func pathTo(root, n *yaml.Node) string {
+	var find func(at *yaml.Node, path string) (string, bool)
+	find = func(at *yaml.Node, path string) (string, bool) {
+		if at == n {
+			return path, true
+		}
+		for i, c := range at.Content {
+			var cp string
+			switch {
+			case at.Kind == yaml.MappingNode && i%2 == 0:
+				continue // a key
+			case at.Kind == yaml.MappingNode:
+				cp = join(path, at.Content[i-1].Value)
+			default:
+				cp = fmt.Sprintf("%s[%d]", path, i)
+			}
+			if found, ok := find(c, cp); ok {
+				return found, true
+			}
+		}
+		return "", false
+	}
+	path, _ := find(root, "")
+	return path
+}
+
+// checkSize refuses a file of more than maxValues values or with a mapping
+// of more than maxKeys keys, and aliases that refer to a value containing themselves
+// (which would never end) or that expand the file beyond aliasFactor times
+// its written values. It counts each anchored value's expanded size once,
+// stopping at the limit, so that a bomb costs no more than a file of
+// aliasFactor times its size.
+func (p *parser) checkSize(root *yaml.Node) error {
+	var count func(n *yaml.Node) int
+	var wide *yaml.Node              // the first mapping with too many keys
+	count = func(n *yaml.Node) int { // values as written, aliases as one
+		if n.Kind == yaml.MappingNode && len(n.Content) > 2*maxKeys && wide == nil {
+			wide = n
+		}
+		total := 1
+		for _, c := range n.Content {
+			total += count(c)
+		}
+		return total
+	}
+	written := count(root)
+	switch {
+	case written > maxValues:
+		return p.fileError(0, problemf("%d values (keys, numbers, names, lists), more than the %d an input file may hold", written, maxValues),
+			"an input file describes one reaction in a few hundred values: is this the right file?")
+	case wide != nil:
+		fe := p.fileError(wide.Line, problemf("%d keys in one mapping, more than %d", len(wide.Content)/2, maxKeys),
+			"a reaction needs a few molecules, not thousands: is this the right file?")
+		fe.Path = pathTo(root, wide)
+		return fe
+	}
+	limit := aliasFactor * written
+
+	const inProgress = -1
+	memo := map[*yaml.Node]int{} // expanded size of each alias target
+	var loop, worst *yaml.Node
+	var expand func(n *yaml.Node) int // saturates at limit+1
+	expand = func(n *yaml.Node) int {
+		if n.Kind == yaml.AliasNode && n.Alias != nil {
+			t := n.Alias
+			s, seen := memo[t]
+			switch {
+			case seen && s == inProgress:
+				if loop == nil {
+					loop = n
+				}
+				return 1
+			case !seen:
+				memo[t] = inProgress
+				s = expand(t)
+				memo[t] = s
+			}
+			return s
+		}
+		total := 1
+		for _, c := range n.Content {
+			if total += expand(c); total > limit || loop != nil {
+				if worst == nil && c.Kind == yaml.AliasNode {
+					worst = c // the alias that passed the limit
+				}
+				return limit + 1
+			}
+		}
+		return total
+	}
+	expanded := expand(root)
+	switch {
+	case loop != nil:
+		return p.fileError(loop.Line, problemf("the alias %s lies inside the value it refers to, so it would never end", quoteClipped("*"+loop.Value)),
+			"write the value out instead of the alias")
+	case expanded > limit:
+		line := 0
+		if worst != nil {
+			line = worst.Line
+		}
+		return p.fileError(line, problemf("its aliases (*name) would expand the file from %d values to more than %d, %d times the values written", written, limit, aliasFactor),
+			"write the repeated values out instead of using &anchors and *aliases")
+	}
+	return nil
 }
 
 var (
@@ -439,7 +569,7 @@ func kindName(n *yaml.Node) string {
 		if isNull(n) {
 			return "nothing"
 		}
-		return strconv.Quote(n.Value)
+		return quoteClipped(n.Value)
 	}
 	return "nothing"
 }

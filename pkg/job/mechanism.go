@@ -10,6 +10,7 @@ import (
 
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
+	"github.com/falloff-kinetics/falloff/pkg/thermo"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
@@ -250,6 +251,15 @@ func (r *RatesResult) MechanismFiles(opt FileOptions) ([]File, error) {
 		}
 	}
 	files = append(files, File{"grid.csv", []byte(csv.String())})
+	species, err := r.speciesFiles(h)
+	if err != nil {
+		return nil, err
+	}
+	if len(species) > 0 {
+		// The species, their thermo and a phase that loads them with the
+		// reactions: a complete mechanism.
+		return append(files, species...), nil
+	}
 	if opt.Skeleton {
 		var species []string
 		seen := map[string]bool{}
@@ -264,4 +274,32 @@ func (r *RatesResult) MechanismFiles(opt FileOptions) ([]File, error) {
 		files = append(files, File{"phase-example.yaml", export.PhaseSkeleton("reactions.yaml", species)})
 	}
 	return files, nil
+}
+
+// speciesFiles renders, when the input has a thermo section (the species'
+// compositions), the species of the reaction and the bath gas with NASA-7
+// thermochemistry from the same partition functions (pkg/thermo):
+// species.yaml (Cantera), thermo.txt (the classic fixed-column block, at
+// the 1 atm reference of Chemkin-style readers) and phase.yaml, a phase
+// that loads species.yaml and reactions.yaml. Without a thermo section it
+// returns nothing (the phase skeleton is written instead, with --skeleton).
+func (r *RatesResult) speciesFiles(h export.Header) ([]File, error) {
+	if !r.model.Has("thermo") {
+		return nil, nil
+	}
+	set, err := thermo.FromModel(r.model, thermo.Options{})
+	if err != nil {
+		return nil, err
+	}
+	sp := export.SpeciesFromSet(set)
+	y, err := export.SpeciesYAML(sp)
+	if err != nil {
+		return nil, fmt.Errorf("%s: thermo: %w", r.File, err)
+	}
+	t, err := export.ThermoText(sp, export.TextReferencePressure)
+	if err != nil {
+		return nil, fmt.Errorf("%s: thermo: %w", r.File, err)
+	}
+	return []File{{"species.yaml", y}, {"thermo.txt", t},
+		{"phase.yaml", export.Phase(h, "reactions.yaml", "species.yaml", export.Elements(sp))}}, nil
 }

@@ -60,6 +60,9 @@ func (h HinderedRotor) Validate() error {
 	case h.Fold%h.sigma() != 0:
 		return fmt.Errorf("hindered rotor: symmetry number %d does not divide the fold %d", h.Symmetry, h.Fold)
 	}
+	if len(h.Cos) > MaxHarmonics {
+		return fmt.Errorf("hindered rotor: %d Fourier terms (at most %d)", len(h.Cos), MaxHarmonics)
+	}
 	for j, c := range h.Cos {
 		if math.IsNaN(c) || math.IsInf(c, 0) {
 			return fmt.Errorf("hindered rotor: cos[%d] = %v cm-1 is not a number", j, c)
@@ -151,6 +154,70 @@ const (
 	maxDenseBlock       = 1500
 )
 
+// MaxHarmonics bounds the number of higher cosine terms (len(Cos)) Validate
+// accepts. A few dozen terms describe any torsional potential; each term
+// widens the band of the Hamiltonian and the sampling of the potential
+// (Validate checks V ≥ 0 on 512 points per term, so its cost grows as the
+// square of the number of terms).
+const MaxHarmonics = 32
+
+// BasisSize returns the largest block of the Hamiltonian that Levels(emax)
+// diagonalises first, and the most the solver takes for this rotor's
+// potential (20000 functions for a single cosine, 1500 for a series): a
+// block above the limit makes Levels fail with ErrTooLarge. It solves
+// nothing, so that a caller can check a rotor against the energies a
+// calculation will need before any work. Levels may enlarge the basis
+// further if the first one does not converge; it rarely does.
+func (h HinderedRotor) BasisSize(emax float64) (size, limit int) {
+	limit = maxTridiagonalBlock
+	if len(h.Cos) > 0 {
+		limit = maxDenseBlock
+	}
+	if h.Validate() != nil || !(emax >= 0) || math.IsInf(emax, 0) {
+		return math.MaxInt, limit
+	}
+	m := h.basisFor(emax)
+	m += max(2*h.Fold*(len(h.Cos)+1), m/4)
+	return h.maxBlock(m), limit
+}
+
+// checkBasis returns an ErrTooLarge error if a block of the basis |m| ≤ M
+// is beyond what the solver takes.
+func (h HinderedRotor) checkBasis(mMax int) error {
+	limit := maxTridiagonalBlock
+	if len(h.Cos) > 0 {
+		limit = maxDenseBlock
+	}
+	if size := h.maxBlock(mMax); size > limit {
+		return fmt.Errorf("%w: hindered rotor: basis block of %d functions with %d Fourier terms (at most %d); lower the ceiling", ErrTooLarge, size, len(h.Cos), limit)
+	}
+	return nil
+}
+
+// maxBlock returns the largest matrix the eigensolver gets in the basis
+// |m| ≤ M: a block, or half of one for the blocks that split into mirror
+// sectors.
+func (h HinderedRotor) maxBlock(mMax int) int {
+	size := 0
+	n := h.Fold
+	for r := 0; 2*r <= n; r++ {
+		s := h.blockSize(r, mMax)
+		if r == 0 || 2*r == n {
+			s = (s + 1) / 2 // the mirror sectors
+		}
+		size = max(size, s)
+	}
+	return size
+}
+
+// blockSize is the number of functions e^(imφ) with m ≡ r (mod n), |m| ≤ M.
+func (h HinderedRotor) blockSize(r, mMax int) int {
+	n := h.Fold
+	kmin := -((mMax + r) / n)
+	kmax := (mMax - r) / n
+	return kmax - kmin + 1
+}
+
 // Levels returns the energy levels of the rotor from 0 (its lowest level)
 // to emax cm⁻¹ in increasing order, each with its degeneracy divided by the
 // symmetry number σ. Levels that coincide to 1e-9 cm⁻¹ + 1e-13·E (degenerate
@@ -180,11 +247,14 @@ func (h HinderedRotor) levels(emax float64) ([]Level, int, error) {
 	}
 	m := h.basisFor(emax)
 	for range 8 {
+		m1 := m + max(2*h.Fold*(len(h.Cos)+1), m/4)
+		if err := h.checkBasis(m1); err != nil {
+			return nil, 0, err // fail before solving the smaller basis
+		}
 		lo, err := h.spectrum(m)
 		if err != nil {
 			return nil, 0, err
 		}
-		m1 := m + max(2*h.Fold*(len(h.Cos)+1), m/4)
 		hi, err := h.spectrum(m1)
 		if err != nil {
 			return nil, 0, err
@@ -229,6 +299,13 @@ func (h HinderedRotor) basisFor(emax float64) int {
 	es := vbar + emax
 	vs := h.vsum()
 	m := math.Sqrt((es + vs) / h.B)
+	// Past this the blocks are beyond any solver limit: stop here, before
+	// the tail's walk (a step per hop) and the int conversion run away
+	// with a barrier of 1e20 cm⁻¹; checkBasis then refuses the basis before
+	// anything is allocated.
+	if tooLarge := float64(4 * (maxTridiagonalBlock + 1) * h.Fold); !(m < tooLarge) {
+		return int(tooLarge)
+	}
 	hop := float64(h.Fold * (len(h.Cos) + 1))
 	for prod := 1.0; prod > 1e-12 && vs > 0; {
 		m += hop
@@ -247,6 +324,9 @@ type spectrum struct {
 
 // spectrum diagonalises the blocks in the basis |m| ≤ M.
 func (h HinderedRotor) spectrum(m int) (*spectrum, error) {
+	if err := h.checkBasis(m); err != nil {
+		return nil, err // before solving any block
+	}
 	n := h.Fold
 	s := &spectrum{ground: math.Inf(1)}
 	for r := 0; 2*r <= n; r++ {
