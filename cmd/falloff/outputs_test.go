@@ -122,3 +122,37 @@ func TestInternalErrorExitCode(t *testing.T) {
 		t.Errorf("worker panic: exit %d, stderr %q", code, errb.String())
 	}
 }
+
+// A symbolic link planted at an output name is never written through (the
+// set is not published, the link's target stays as it was, the report is
+// still printed), and a device given as --plot is refused and left a
+// device (as root, /dev/null was once replaced by an SVG file).
+func TestOutputSymlinkAndDevice(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "out")
+	if err := os.Mkdir(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	victim := filepath.Join(t.TempDir(), "victim.txt")
+	if err := os.WriteFile(victim, []byte("keep"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Symlink(victim, filepath.Join(dir, "grid.csv")); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCLI(t, "rates", "-q", "--skip-check", "--skip-held-out", "--out", dir, ch3ncFile)
+	if code != exitInput || !strings.Contains(errs, "symbolic link") || !strings.Contains(out, "k(T,P)") {
+		t.Errorf("symlink at grid.csv: exit %d, stderr %q", code, errs)
+	}
+	if b, _ := os.ReadFile(victim); string(b) != "keep" {
+		t.Error("written through the symlink")
+	}
+	if fi, err := os.Stat("/dev/null"); err == nil && fi.Mode()&os.ModeDevice != 0 {
+		code, _, errs := runCLI(t, "compare", "-q", "--plot", "/dev/null", ch3ncFile)
+		if code != exitInput || !strings.Contains(errs, "is a device") {
+			t.Errorf("compare --plot /dev/null: exit %d, stderr %q", code, errs)
+		}
+		if fi, err := os.Stat("/dev/null"); err != nil || fi.Mode()&os.ModeDevice == 0 {
+			t.Fatal("/dev/null is no longer a device")
+		}
+	}
+}
