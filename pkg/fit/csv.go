@@ -6,6 +6,7 @@ import (
 	"encoding/csv"
 	"errors"
 	"fmt"
+	"github.com/falloff-kinetics/falloff/internal/escape"
 	"io"
 	"math"
 	"os"
@@ -13,7 +14,6 @@ import (
 	"strconv"
 	"strings"
 	"syscall"
-	"unicode"
 	"unicode/utf8"
 
 	"github.com/falloff-kinetics/falloff/pkg/units"
@@ -34,22 +34,22 @@ type CSVError struct {
 
 func (e *CSVError) Error() string {
 	var b strings.Builder
-	b.WriteString(printable(e.File))
+	b.WriteString(escape.Printable(e.File))
 	if e.Line > 0 {
 		fmt.Fprintf(&b, ":%d", e.Line)
 	}
 	if e.Column > 0 {
 		fmt.Fprintf(&b, ": column %d", e.Column)
 		if e.Header != "" {
-			fmt.Fprintf(&b, " (%s)", printable(clip(oneLine(e.Header))))
+			fmt.Fprintf(&b, " (%s)", escape.Printable(clip(oneLine(e.Header))))
 		}
 	}
 	if e.Value != "" {
 		b.WriteString(": " + quoteClipped(e.Value))
 	}
-	fmt.Fprintf(&b, ": %s", printable(oneLine(fmt.Sprint(e.Err))))
+	fmt.Fprintf(&b, ": %s", escape.Printable(oneLine(fmt.Sprint(e.Err))))
 	if e.Hint != "" {
-		b.WriteString(" (hint: " + printable(oneLine(e.Hint)) + ")")
+		b.WriteString(" (hint: " + escape.Printable(oneLine(e.Hint)) + ")")
 	}
 	return b.String()
 }
@@ -99,37 +99,6 @@ func quoteClipped(s string) string {
 // maxHeaderLen bounds a column header in bytes: "k/cm3/molecule/s" and
 // "uncertainty/%" take 16 and 13.
 const maxHeaderLen = 64
-
-// notPrintable reports a rune a message or a report must not carry raw:
-// control and format characters, line separators, invalid UTF-8.
-func notPrintable(r rune) bool { return r != ' ' && !unicode.IsPrint(r) || r == utf8.RuneError }
-
-// printable escapes, as %q would, every rune of s that is not printable
-// (control and format characters, line separators, invalid UTF-8), so that
-// text from a table cannot act on the terminal that shows the message.
-func printable(s string) string {
-	bad := notPrintable
-	if !strings.ContainsFunc(s, bad) {
-		return s
-	}
-	var b strings.Builder
-	for i, r := range s {
-		switch {
-		case r == utf8.RuneError:
-			if _, size := utf8.DecodeRuneInString(s[i:]); size == 1 {
-				fmt.Fprintf(&b, `\x%02x`, s[i]) // an invalid byte
-			} else {
-				b.WriteString(`\ufffd`)
-			}
-		case bad(r):
-			q := strconv.QuoteRune(r)
-			b.WriteString(q[1 : len(q)-1])
-		default:
-			b.WriteRune(r)
-		}
-	}
-	return b.String()
-}
 
 func (e *CSVError) Unwrap() error { return e.Err }
 
@@ -270,7 +239,7 @@ func ReadCSV(name string, r io.Reader) (*Table, error) {
 		head[i] = h
 		// The header's units are printed in reports and written into
 		// mechanism files: no control characters, no essays.
-		if strings.ContainsFunc(h, notPrintable) {
+		if strings.ContainsFunc(h, escape.NotPrintable) {
 			return nil, fail(headLine, i+1, "", h, errors.New("a control or formatting character in the header"), "write name/unit in plain text, e.g. "+headerExample)
 		}
 		if len(h) > maxHeaderLen {

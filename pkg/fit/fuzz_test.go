@@ -3,6 +3,7 @@ package fit
 import (
 	"bytes"
 	"errors"
+	"github.com/falloff-kinetics/falloff/internal/escape"
 	"math"
 	"os"
 	"path/filepath"
@@ -73,13 +74,13 @@ func FuzzReadCSV(f *testing.F) {
 			}
 			// Nothing from the table reaches the terminal raw, and no cell
 			// is echoed whole beyond a few hundred bytes.
-			if msg := err.Error(); strings.ContainsFunc(msg, notPrintable) ||
+			if msg := err.Error(); strings.ContainsFunc(msg, escape.NotPrintable) ||
 				len(msg) > 1000+6*len(name) {
 				t.Errorf("error message holds a raw control character or is %d bytes long: %.300q", len(msg), msg)
 			}
 			return
 		}
-		if strings.ContainsFunc(tab.KUnits, notPrintable) || len(tab.KUnits) > maxHeaderLen {
+		if strings.ContainsFunc(tab.KUnits, escape.NotPrintable) || len(tab.KUnits) > maxHeaderLen {
 			t.Errorf("k units %q accepted: printed in reports and mechanism files", tab.KUnits)
 		}
 		if tab.Name != name || strings.TrimSpace(tab.KUnits) == "" || len(tab.Points) < minCSVRows {

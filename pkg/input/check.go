@@ -2,6 +2,7 @@ package input
 
 import (
 	"fmt"
+	"github.com/falloff-kinetics/falloff/internal/escape"
 	"math"
 	"strconv"
 	"strings"
@@ -82,7 +83,7 @@ const maxTitleLen = 200
 func (p *parser) checkTitle(n *yaml.Node, title string) error {
 	const hint = "give one line of text; longer notes go in YAML comments (# ...)"
 	for _, r := range title {
-		if notPrintable(r) {
+		if escape.NotPrintable(r) {
 			what := "a control or formatting character"
 			if r == '\n' || r == '\r' || r == '\u0085' || r == '\u2028' || r == '\u2029' {
 				what = "a line break"

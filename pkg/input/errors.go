@@ -2,9 +2,9 @@ package input
 
 import (
 	"fmt"
+	"github.com/falloff-kinetics/falloff/internal/escape"
 	"strconv"
 	"strings"
-	"unicode"
 	"unicode/utf8"
 )
 
@@ -31,21 +31,21 @@ type FieldError struct {
 
 func (e *FieldError) Error() string {
 	var b strings.Builder
-	b.WriteString(printable(e.File))
+	b.WriteString(escape.Printable(e.File))
 	if e.Line > 0 {
 		b.WriteString(":" + strconv.Itoa(e.Line))
 	}
 	if e.Path != "" {
-		b.WriteString(": " + printable(clipPath(e.Path)))
+		b.WriteString(": " + escape.Printable(clipPath(e.Path)))
 	}
 	if e.Value != "" {
 		b.WriteString(": " + quoteClipped(e.Value))
 	}
 	if e.Err != nil {
-		b.WriteString(": " + printable(oneLine(e.Err.Error())))
+		b.WriteString(": " + escape.Printable(oneLine(e.Err.Error())))
 	}
 	if e.Hint != "" {
-		b.WriteString(" (hint: " + printable(oneLine(e.Hint)) + ")")
+		b.WriteString(" (hint: " + escape.Printable(oneLine(e.Hint)) + ")")
 	}
 	return b.String()
 }
@@ -90,38 +90,6 @@ func clipPath(path string) string {
 	}
 	return fmt.Sprintf("%s…%s (a path of %d bytes)", head, tail, len(path))
 }
-
-// printable escapes, as strconv.Quote would, every rune of s that is not
-// printable (control and format characters, line and paragraph
-// separators), so that text from the file, such as a molecule's name in a
-// path, cannot act on the terminal or break the message's line.
-func printable(s string) string {
-	if !strings.ContainsFunc(s, notPrintable) {
-		return s
-	}
-	var b strings.Builder
-	for i, r := range s {
-		switch {
-		case r == utf8.RuneError:
-			if _, size := utf8.DecodeRuneInString(s[i:]); size == 1 {
-				fmt.Fprintf(&b, `\x%02x`, s[i]) // an invalid byte
-			} else {
-				b.WriteString(`\ufffd`)
-			}
-		case notPrintable(r):
-			q := strconv.QuoteRune(r)
-			b.WriteString(q[1 : len(q)-1])
-		default:
-			b.WriteRune(r)
-		}
-	}
-	return b.String()
-}
-
-// notPrintable reports a rune a message must not carry raw: anything
-// unicode.IsPrint refuses (it accepts the ASCII space only among spaces),
-// and invalid UTF-8.
-func notPrintable(r rune) bool { return r != ' ' && !unicode.IsPrint(r) || r == utf8.RuneError }
 
 // Unwrap returns the underlying problem, so that errors.Is(err,
 // units.ErrNoUnit) and errors.As(err, &unitErr) see through a FieldError.

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"github.com/falloff-kinetics/falloff/internal/escape"
 	"math"
 	"os"
 	"path/filepath"
@@ -136,7 +137,7 @@ func checkParseError(t *testing.T, name string, err error) {
 		t.Errorf("error message is not one line: %q", msg)
 	}
 	// Whatever the file holds, nothing reaches the terminal raw.
-	if strings.ContainsFunc(msg, notPrintable) {
+	if strings.ContainsFunc(msg, escape.NotPrintable) {
 		t.Errorf("error message holds a raw control or format character: %q", msg)
 	}
 }
@@ -149,7 +150,7 @@ func checkModel(t *testing.T, name string, data []byte, m *Model) {
 	if m.File != name || !bytes.Equal(m.Source, data) {
 		t.Errorf("File = %q, Source %d bytes; want %q and the %d bytes given", m.File, len(m.Source), name, len(data))
 	}
-	if strings.TrimSpace(m.Title) == "" || strings.ContainsFunc(m.Title, notPrintable) {
+	if strings.TrimSpace(m.Title) == "" || strings.ContainsFunc(m.Title, escape.NotPrintable) {
 		t.Errorf("title %q accepted", m.Title)
 	}
 	// Every name keeps to the safe set (field paths, mechanism files,

@@ -3,6 +3,7 @@ package input
 import (
 	"errors"
 	"fmt"
+	"github.com/falloff-kinetics/falloff/internal/escape"
 	"strings"
 	"testing"
 )
@@ -225,7 +226,7 @@ func TestNames(t *testing.T) {
 					continue
 				}
 				msg := err.Error()
-				if !strings.Contains(msg, tc.shown) || strings.ContainsFunc(msg, notPrintable) {
+				if !strings.Contains(msg, tc.shown) || strings.ContainsFunc(msg, escape.NotPrintable) {
 					t.Errorf("%s: message %q does not show %s escaped", doc.path, msg, tc.shown)
 				}
 			}
@@ -249,7 +250,7 @@ func TestTitle(t *testing.T) {
 		if (err == nil) != tc.ok {
 			t.Errorf("title %s: err = %v, want ok = %v", tc.title, err, tc.ok)
 		}
-		if err != nil && strings.ContainsFunc(err.Error(), notPrintable) {
+		if err != nil && strings.ContainsFunc(err.Error(), escape.NotPrintable) {
 			t.Errorf("title %s: message %q holds a raw control character", tc.title, err)
 		}
 	}

@@ -3,6 +3,7 @@ package input
 import (
 	"bytes"
 	"errors"
+	"github.com/falloff-kinetics/falloff/internal/escape"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -160,7 +161,7 @@ func TestFieldErrorClipsAndEscapes(t *testing.T) {
 	}
 	fe := &FieldError{File: "in\x1b.yaml", Line: 3, Path: "molecules.a\u2028b", Value: "x\u009by", Err: errors.New("bad\x07"), Hint: "h\u202e"}
 	msg := fe.Error()
-	if strings.ContainsFunc(msg, notPrintable) {
+	if strings.ContainsFunc(msg, escape.NotPrintable) {
 		t.Errorf("message %q holds a raw control character", msg)
 	}
 	for _, want := range []string{`in\x1b.yaml`, `molecules.a\u2028b`, `"x\u009by"`, `bad\a`, `h\u202e`} {

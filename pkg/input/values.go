@@ -3,6 +3,7 @@ package input
 import (
 	"errors"
 	"fmt"
+	"github.com/falloff-kinetics/falloff/internal/escape"
 	"math"
 	"strconv"
 	"strings"
@@ -63,16 +64,16 @@ func (p *parser) fileError(line int, err error, hint string) *FieldError {
 
 // warn records a warning about the field at path.
 func (p *parser) warn(path, format string, args ...any) {
-	w := printable(p.file)
+	w := escape.Printable(p.file)
 	if p.index != nil {
 		if line := p.index.line(path); line > 0 {
 			w += ":" + strconv.Itoa(line)
 		}
 	}
 	if path != "" {
-		w += ": " + printable(path)
+		w += ": " + escape.Printable(path)
 	}
-	p.warnings = append(p.warnings, w+": "+printable(oneLine(fmt.Sprintf(format, args...))))
+	p.warnings = append(p.warnings, w+": "+escape.Printable(oneLine(fmt.Sprintf(format, args...))))
 }
 
 // scalar checks that n is a single value, not a list or a mapping.
