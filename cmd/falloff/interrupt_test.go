@@ -105,13 +105,13 @@ func bigMolecule(t *testing.T) string {
 	text := `title: A very large invented molecule (test input, invented)
 molecules:
   big:
-    mass: 400000 amu
-    vibrations: {unit: cm-1, values: [` + modes(60000) + `]}
+    mass: 90000 amu
+    vibrations: {unit: cm-1, values: [` + modes(45000) + `]}
     lennard-jones: {sigma: 20 angstrom, epsilon: 2000 K}
   big-TS:
     energy: 42 kcal/mol
     imaginary-frequency: 600 cm-1
-    vibrations: {unit: cm-1, values: [` + modes(59999) + `]}
+    vibrations: {unit: cm-1, values: [` + modes(44999) + `]}
 reaction: {reactant: big, via: big-TS, products: [a, b]}
 bath: {gas: Ar}
 energy-transfer: {model: strong-collider}
