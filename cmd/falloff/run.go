@@ -171,7 +171,7 @@ Commands:
 		fmt.Fprintf(w, "  %-9s %s\n", v.name, v.summary)
 	}
 	fmt.Fprint(w, `
-With no FILE, states, micro, rates and compare run the built-in demo (an invented molecule).
+With no FILE, states, micro, thermo, rates and compare run the built-in demo (an invented molecule).
 Run 'falloff <command> --help' for its flags and a worked example.
 
 Exit codes: 0 ok, 1 bad input, 2 usage, 3 numerical failure, 4 internal error
