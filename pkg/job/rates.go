@@ -412,13 +412,18 @@ func (n *Network) tunnellingNote() string {
 // Rates warns that the grid does not reach the low-pressure limit.
 const lowPressureLimit = 0.5
 
-// lowPressureWarning warns where the lowest pressure of the grid is far
-// from the low-pressure limit, so that k0 is an extrapolation beyond the
-// grid: k/(k0[M]) < lowPressureLimit there. With tunnelling this is the
-// rule rather than the exception: k0 counts as reactive the grains far
+// lowPressureWarning warns, for a network with tunnelling, where the lowest
+// pressure of the grid is far from the low-pressure limit, so that k0 is
+// an extrapolation beyond the grid: k/(k0[M]) < lowPressureLimit there.
+// With tunnelling this is the rule rather than the exception: k0 counts as reactive the grains far
 // below the barrier whose k(E) is tiny, and only pressures where the
 // collision frequency falls below that k(E) approach it.
 func (n *Network) lowPressureWarning(out *RatesResult) string {
+	if n.tunnellingNote() == string(input.NoTunnelling) {
+		// Without tunnelling k0 is the master equation's own limit, reached
+		// at pressures the grid may simply not include: nothing to warn.
+		return ""
+	}
 	var worst, worstT float64 = 1, 0
 	var at []string
 	for i, tK := range out.Temperatures {
@@ -433,10 +438,7 @@ func (n *Network) lowPressureWarning(out *RatesResult) string {
 	if len(at) == 0 {
 		return ""
 	}
-	why := "lower the lowest pressure if the low-pressure limit matters"
-	if n.tunnellingNote() != string(input.NoTunnelling) {
-		why = "with tunnelling k0 counts grains far below the barrier as reactive, and only pressures where collisions are rarer than their tiny k(E) approach it; treat k0 as that formal limit"
-	}
+	why := "with tunnelling k0 counts grains far below the barrier as reactive, and only pressures where collisions are rarer than their tiny k(E) approach it; treat k0 as that formal limit"
 	return fmt.Sprintf("%s: at %s K the lowest pressure, %s Pa, is far from the low-pressure limit: k/(k0[M]) = %.2g at %s K, so k0 is an extrapolation beyond the grid (hint: %s)",
 		n.Model.File, strings.Join(at, ", "), num(out.Pressures[0]), worst, num(worstT), why)
 }
