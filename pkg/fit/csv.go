@@ -6,7 +6,7 @@ import (
 	"encoding/csv"
 	"errors"
 	"fmt"
-	"github.com/falloff-kinetics/falloff/internal/escape"
+	"github.com/falloff-kinetics/falloff/pkg/escape"
 	"io"
 	"math"
 	"os"

@@ -3,7 +3,7 @@ package fit
 import (
 	"bytes"
 	"errors"
-	"github.com/falloff-kinetics/falloff/internal/escape"
+	"github.com/falloff-kinetics/falloff/pkg/escape"
 	"math"
 	"os"
 	"path/filepath"

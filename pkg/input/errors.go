@@ -2,7 +2,7 @@ package input
 
 import (
 	"fmt"
-	"github.com/falloff-kinetics/falloff/internal/escape"
+	"github.com/falloff-kinetics/falloff/pkg/escape"
 	"strconv"
 	"strings"
 	"unicode/utf8"

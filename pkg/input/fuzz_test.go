@@ -4,7 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"github.com/falloff-kinetics/falloff/internal/escape"
+	"github.com/falloff-kinetics/falloff/pkg/escape"
 	"math"
 	"os"
 	"path/filepath"

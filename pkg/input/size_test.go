@@ -3,7 +3,7 @@ package input
 import (
 	"bytes"
 	"errors"
-	"github.com/falloff-kinetics/falloff/internal/escape"
+	"github.com/falloff-kinetics/falloff/pkg/escape"
 	"os"
 	"path/filepath"
 	"strconv"

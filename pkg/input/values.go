@@ -3,7 +3,7 @@ package input
 import (
 	"errors"
 	"fmt"
-	"github.com/falloff-kinetics/falloff/internal/escape"
+	"github.com/falloff-kinetics/falloff/pkg/escape"
 	"math"
 	"strconv"
 	"strings"
