@@ -90,10 +90,12 @@ func clipHead(s string) (string, bool) {
 // quoteClipped quotes s like %q (control and format characters escaped),
 // cut as clip cuts it.
 func quoteClipped(s string) string {
+	// strconv.Quote leaves U+FFFD as it is (it is printable); Printable
+	// then writes it \ufffd, as every other rune a message must not carry.
 	if head, cut := clipHead(s); cut {
-		return fmt.Sprintf("%q… (%d bytes)", head, len(s))
+		return escape.Printable(fmt.Sprintf("%q… (%d bytes)", head, len(s)))
 	}
-	return strconv.Quote(s)
+	return escape.Printable(strconv.Quote(s))
 }
 
 // maxHeaderLen bounds a column header in bytes: "k/cm3/molecule/s" and

@@ -61,8 +61,10 @@ const (
 // quoteClipped quotes s as strconv.Quote does, which escapes every control
 // and format character (ESC, NEL, U+2028, ...), cutting a long s.
 func quoteClipped(s string) string {
+	// strconv.Quote leaves U+FFFD as it is (it is printable); Printable
+	// then writes it \ufffd, as every other rune a message must not carry.
 	if utf8.RuneCountInString(s) <= maxQuoted {
-		return strconv.Quote(s)
+		return escape.Printable(strconv.Quote(s))
 	}
 	cut := s
 	for i := range s {
@@ -71,7 +73,7 @@ func quoteClipped(s string) string {
 			break
 		}
 	}
-	return fmt.Sprintf("%s… (%d bytes)", strconv.Quote(cut), len(s))
+	return fmt.Sprintf("%s… (%d bytes)", escape.Printable(strconv.Quote(cut)), len(s))
 }
 
 // clipPath cuts a path longer than maxPath bytes (one holding a huge key)

@@ -846,3 +846,16 @@ func demoText(t *testing.T) []byte {
 	}
 	return b
 }
+
+// A value holding U+FFFD (the replacement character, printable to
+// strconv.Quote) is escaped in messages like every other rune a message
+// must not carry raw (found by FuzzReadCSV in the table reader).
+func TestReplacementCharacterEscaped(t *testing.T) {
+	_, err := Parse("x.yaml", []byte("title: \"\ufffd\"\nmolecules: {r: {mass: \"\ufffd amu\"}}\n"))
+	if err == nil {
+		t.Fatal("accepted")
+	}
+	if strings.ContainsRune(err.Error(), '\ufffd') {
+		t.Errorf("raw U+FFFD in %q", err.Error())
+	}
+}
