@@ -1,7 +1,6 @@
 package main
 
 import (
-	"crypto/sha256"
 	"errors"
 	"fmt"
 	"maps"
@@ -22,6 +21,7 @@ import (
 
 type fitOptions struct {
 	json, quiet  bool
+	writeFailed  bool           // --write-failed
 	formNames    []string       // --forms as given
 	forms        []fit.FormName // formNames, checked by validate
 	tolerancePct float64
@@ -61,6 +61,7 @@ func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.plogMaxN, "plog-max-n", 0, "bound |n| of every PLOG term (0: no bound)")
 	fs.BoolVar(&o.plogOneTerm, "plog-one-term", false, "one Arrhenius term at every PLOG pressure, never two")
 	fs.Float64Var(&o.groupTolPct, "group-tolerance", 100*fit.DefaultGroupTol, "pressures within this many per cent are one PLOG entry (measured data); also groups rows and columns for the held-out error")
+	fs.BoolVar(&o.writeFailed, "write-failed", false, "with --out, write failed fits too (marked FAILED), and reactions.yaml with the best form when none meets the tolerance")
 	fs.StringVarP(&o.out, "out", "o", "", "write reactions.yaml and .txt (recommended form) and reactions-FORM.yaml and .txt (each fitted form) to this directory")
 	fs.StringSliceVar(&o.reactants, "reactants", nil, "species names for the equation of the files, comma-separated (default R, or R1,R2 for a second-order k)")
 	fs.StringSliceVar(&o.products, "products", nil, "product names for the equation of the files (default P)")
@@ -439,68 +440,20 @@ func finiteF(v ...float64) bool {
 	return true
 }
 
-// writeFitFiles renders, as `rates --out` does, reactions.yaml and
-// reactions.txt with the recommended form and reactions-FORM.yaml and
-// .txt with every fitted form, converted to per-molecule units (export's
-// input) and written in o.units, into the reserved set; it commits the set
-// and returns the paths written.
+// writeFitFiles renders the mechanism files of the fits (job.TableFiles)
+// into the reserved set, commits it and returns the paths written.
 func writeFitFiles(set *export.FileSet, o fitOptions, path string, src []byte, t *fit.Table, res *fit.Results, rx fitReaction, s streams) ([]string, error) {
-	tr, pr := [2]float64{math.Inf(1), math.Inf(-1)}, [2]float64{math.Inf(1), math.Inf(-1)}
-	for _, p := range t.Points {
-		tr = [2]float64{math.Min(tr[0], p.T), math.Max(tr[1], p.T)}
-		pr = [2]float64{math.Min(pr[0], p.P), math.Max(pr[1], p.P)}
+	files, err := job.TableFiles(path, src, t, res,
+		job.TableReaction{Order: rx.order, ToMolecule: rx.toMolecule, Reactants: rx.reactants, Products: rx.products},
+		job.FileOptions{Units: o.units, WriteFailed: o.writeFailed})
+	if err != nil {
+		return nil, err
 	}
-	h := export.Header{Title: "fit of the table " + filepath.Base(path), Input: path,
-		Checksum: fmt.Sprintf("sha256:%x", sha256.Sum256(src)), Program: "falloff " + job.Version,
-		TMin: tr[0], TMax: tr[1], PMin: pr[0], PMax: pr[1],
-		Lines: []string{fmt.Sprintf("Fitted to %d points, k in %s (molecularity %d)", len(t.Points), t.KUnits, rx.order)}}
-	reps := res.Reports()
-	names := slices.Sorted(maps.Keys(reps))
-	for _, n := range names {
-		r := reps[n]
-		line := fmt.Sprintf("Fit %s: max error %.3g %%, rms %.3g %% over the table", n, r.MaxErrorPct, r.RMSErrorPct)
-		if r.HeldOut != nil {
-			line += fmt.Sprintf("; held-out max %.3g %% (%s)", r.HeldOut.MaxErrorPct, r.HeldOut.Method)
-		}
-		h.Lines = append(h.Lines, line)
+	for _, f := range files {
+		set.Add(filepath.Join(o.out, f.Name), f.Data)
 	}
-	if res.Recommended != "" {
-		h.Lines = append(h.Lines, "Recommended form: "+string(res.Recommended)+" ("+res.Reason+")")
-	}
-	reaction := func(n fit.FormName) []export.Reaction {
-		r := reps[n]
-		note := fmt.Sprintf("%s fit, max error %.3g %% (worst at %s K, %s bar)", n, r.MaxErrorPct, num(r.WorstT), num(r.WorstP/units.BarPa))
-		if r.HeldOut != nil {
-			note += fmt.Sprintf(", held-out max %.3g %%", r.HeldOut.MaxErrorPct)
-		}
-		return []export.Reaction{{Reactants: rx.reactants, Products: rx.products, Order: rx.order,
-			Form: fit.Scaled(res.Form(n), rx.toMolecule), Note: note}}
-	}
-	emit := func(base string, rs []export.Reaction) error {
-		y, err := export.YAML(h, o.units, rs)
-		if err != nil {
-			return err
-		}
-		txt, err := export.Text(h, o.units, rs)
-		if err != nil {
-			return err
-		}
-		set.Add(filepath.Join(o.out, base+".yaml"), y)
-		set.Add(filepath.Join(o.out, base+".txt"), txt)
-		return nil
-	}
-	if res.Recommended != "" {
-		if err := emit("reactions", reaction(res.Recommended)); err != nil {
-			return nil, &job.NumericalError{Err: err}
-		}
-	}
-	for _, n := range names {
-		if n == fit.FormPLOG && len(res.PLOG.Entries) < 2 {
-			continue
-		}
-		if err := emit("reactions-"+string(n), reaction(n)); err != nil {
-			return nil, &job.NumericalError{Err: err}
-		}
+	if !o.quiet && !slices.ContainsFunc(files, func(f job.File) bool { return f.Name == "reactions.yaml" }) {
+		fmt.Fprintln(s.err, "warning: no reactions.yaml written: no fitted form meets the tolerance (hint: see the fit table; --write-failed writes the best form marked FAILED, or raise --tolerance)")
 	}
 	return set.Commit(s.ctx)
 }

@@ -239,7 +239,7 @@ func evalCantera(t *testing.T, c cantera, T, pAtm float64) float64 {
 func TestFitOutFiles(t *testing.T) {
 	const rounding = 1e-7
 	dir := t.TempDir()
-	code, out, errs := runCLI(t, "fit", "--json", "--out", dir, "--reactants", "H,CH3", "--products", "CH4", griTable)
+	code, out, errs := runCLI(t, "fit", "--json", "--write-failed", "--out", dir, "--reactants", "H,CH3", "--products", "CH4", griTable)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -419,6 +419,21 @@ func TestFitEnergyUnit(t *testing.T) {
 			if !strings.Contains(out, w) {
 				t.Errorf("--energy-unit %s: output lacks %q", c.unit, w)
 			}
+		}
+	}
+}
+
+// As with rates, a failed fit is not written as a mechanism file unless
+// asked for: on the GRI-Mech table PLOG and Chebyshev fail their held-out
+// error, Troe (recommended) is written.
+func TestFitOutSkipsFailed(t *testing.T) {
+	dir := t.TempDir()
+	if code, _, errs := runCLI(t, "fit", "-q", "--forms", "troe,plog,chebyshev", "--out", dir, griTable); code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for name, want := range map[string]bool{"reactions.yaml": true, "reactions-troe.yaml": true, "reactions-plog.yaml": false, "reactions-chebyshev.yaml": false} {
+		if _, err := os.Stat(filepath.Join(dir, name)); (err == nil) != want {
+			t.Errorf("%s written: %v, want %v", name, err == nil, want)
 		}
 	}
 }
