@@ -36,5 +36,5 @@ H -1.4304 0 1.1072
 `), "water.molden")
 	fmt.Println(f, err)
 	// Output:
-	// <nil> water.molden:1: [FREQ] has 2 frequencies, but 3 atoms need 3N−6 = 3 (or all 3N = 9) (the file is truncated or [FREQ] and [FR-COORD] come from different calculations)
+	// <nil> water.molden:1: [FREQ]: 2 frequencies, but 3 atoms need 3N−6 = 3 (or all 3N = 9) (the file is truncated, or the frequencies and the geometry come from different calculations)
 }

@@ -49,6 +49,28 @@ type Frequencies struct {
 	Vibrations []float64 // real harmonic frequencies, cm⁻¹, in file order
 	Imaginary  []float64 // magnitudes of the imaginary frequencies, cm⁻¹
 	Dropped    []float64 // translations and rotations removed, cm⁻¹ (signed)
+
+	// Energy is the electronic energy at the geometry, in hartree (E_h),
+	// without zero-point energy; HasEnergy says whether the file gave one
+	// (the Molden frequency sections carry none).
+	Energy    float64
+	HasEnergy bool
+	// Program names what wrote the file, with its version where printed
+	// ("xtb 6.5.1", "Psi4 1.3.2", "Molden file"); Method is the level of
+	// theory as printed ("B3LYP/6-31G*", "GFN2-xTB"), "" when not stated.
+	Program string
+	Method  string
+	// Printed holds what the program itself printed from the same
+	// calculation, for cross-checks; zero values mean not printed.
+	Printed Printed
+}
+
+// Printed are values a quantum-chemistry program prints beside its
+// frequencies. The import does not use them: it recomputes each from the
+// geometry and the frequencies, and the tests compare the two.
+type Printed struct {
+	ZeroPoint float64   // harmonic zero-point energy, E_h; 0 when not printed
+	Constants []float64 // rotational constants, cm⁻¹, A ≥ B ≥ C; nil when not printed
 }
 
 // ReadMoldenFile reads the frequency sections of the Molden file at path;
@@ -167,51 +189,14 @@ func ReadMolden(r io.Reader, name string) (*Frequencies, error) {
 		return nil, fail(coordSec.line, fmt.Sprintf("[FR-COORD]: %v", err), "")
 	}
 	out.Linear = g.Linear
-	want, kind := 3*nAtoms-6, "3N−6"
-	switch {
-	case nAtoms == 1:
-		want, kind = 0, "0 for an atom"
-	case g.Linear:
-		want, kind = 3*nAtoms-5, "3N−5 (linear)"
+	if err := out.SetModes(freqs); err != nil {
+		if me, ok := err.(*ModeError); ok && me.Index >= 0 {
+			return nil, fail(freqLines[me.Index], "[FREQ]: "+me.What, me.Hint)
+		}
+		me := err.(*ModeError)
+		return nil, fail(freqSec.line, "[FREQ]: "+me.What, me.Hint)
 	}
-	keep := make([]bool, len(freqs))
-	for i := range keep {
-		keep[i] = true
-	}
-	switch extra := 3*nAtoms - want; {
-	case len(freqs) == want:
-	case len(freqs) == 3*nAtoms && extra > 0:
-		var small []int
-		for i, v := range freqs {
-			if math.Abs(v) < ZeroModeCm1 {
-				small = append(small, i)
-			}
-		}
-		if len(small) != extra {
-			return nil, fail(freqSec.line, fmt.Sprintf("[FREQ] lists all 3N = %d modes but %d lie below %g cm⁻¹ in magnitude, not the %d translations and rotations",
-				3*nAtoms, len(small), ZeroModeCm1, extra), "project out translations and rotations in the frequency calculation")
-		}
-		for _, i := range small {
-			keep[i] = false
-			out.Dropped = append(out.Dropped, freqs[i])
-		}
-	default:
-		return nil, fail(freqSec.line, fmt.Sprintf("[FREQ] has %d frequencies, but %d atoms need %s = %d (or all 3N = %d)",
-			len(freqs), nAtoms, kind, want, 3*nAtoms), "the file is truncated or [FREQ] and [FR-COORD] come from different calculations")
-	}
-	for i, v := range freqs {
-		if !keep[i] {
-			continue
-		}
-		if v < 0 {
-			out.Imaginary = append(out.Imaginary, -v)
-		} else if v == 0 {
-			return nil, fail(freqLines[i], "[FREQ]: a vibration of 0 cm⁻¹", "a zero frequency is not a vibration; check the calculation")
-		} else {
-			out.Vibrations = append(out.Vibrations, v)
-		}
-	}
-
+	out.Program = "Molden file"
 	if normSec, ok := sections["FR-NORM-COORD"]; ok {
 		if err := checkNormalModes(normSec, nAtoms, len(freqs), fail); err != nil {
 			return nil, err

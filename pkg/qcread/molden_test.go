@@ -70,11 +70,11 @@ H -1.43042881 0 1.10715704
 	cases := []struct {
 		name, text, want string
 	}{
-		{"water_wrong_count.molden", "", "has 4 frequencies, but 3 atoms need 3N−6 = 3"},
+		{"water_wrong_count.molden", "", "4 frequencies, but 3 atoms need 3N−6 = 3"},
 		{"water_truncated.molden", "", "no [FR-COORD]"},
 		{"water_truncated_modes.molden", "", "vibration 3 has 1 displacement lines, want 3"},
 		{"no-freq", "[FR-COORD]\nH 0 0 0\nH 0 0 1.4\n", "no [FREQ]"},
-		{"seven-small", "[FREQ]\n-12\n-3\n0\n2\n8\n20\n30\n3657.1\n3755.9\n" + water[strings.Index(water, "[FR-COORD]"):], "9 modes but 7 lie below 50"},
+		{"seven-small", "[FREQ]\n-12\n-3\n0\n2\n8\n20\n30\n3657.1\n3755.9\n" + water[strings.Index(water, "[FR-COORD]"):], "9 modes are listed but 7 lie below 50"},
 		{"atoms-order", "[Atoms] Angs\nH 1 1 0 0 0\nO 2 8 0 0 0\nH 3 1 0 0 0\n" + water, "[Atoms] atom 1 is \"H\", [FR-COORD] has \"O\""},
 		{"atoms-unit", "[Atoms] nm\nO 1 8 0 0 0\nH 2 1 0 0 0\nH 3 1 0 0 0\n" + water, "[Atoms] unit \"nm\""},
 		{"nan", strings.Replace(water, "1594.7", "NaN", 1), "\"NaN\" is not a finite number"},
