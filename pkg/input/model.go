@@ -212,7 +212,7 @@ func (m *Model) TemperaturePath(i int) string {
 	return m.tempPaths[i]
 }
 
-// MaxFileBytes is the largest input file Parse and ReadFile accept, 4 MiB.
+// MaxFileBytes is the largest input file Parse and ReadFile accept, 1 MiB.
 // An input describes one reaction network: the demo takes 1.3 kB, and a
 // molecule of 150 atoms with its transition state about 10 kB, so a
 // larger file is the wrong file (a table, a log, a device). The bound also

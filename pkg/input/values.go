@@ -413,3 +413,23 @@ func unitNames(d units.Dimension) []string {
 	}
 	return []string{d.Internal()}
 }
+
+// CheckName reports whether name can name a molecule in an input file
+// (letters, digits and -_(),'* only, at most maxNameLen bytes); the error
+// says what is wrong, for tools that make names, such as the import.
+func CheckName(name string) error {
+	if name == "" {
+		return errors.New("empty name")
+	}
+	if r, why, ok := badNameRune(name); ok {
+		q := strconv.QuoteRune(r)
+		if r == utf8.RuneError {
+			q = "an invalid byte"
+		}
+		return fmt.Errorf("a name holding %s: %s", q, why)
+	}
+	if len(name) > maxNameLen {
+		return fmt.Errorf("a name of %d characters, more than %d", len(name), maxNameLen)
+	}
+	return nil
+}

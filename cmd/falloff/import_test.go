@@ -1,0 +1,78 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/falloff-kinetics/falloff/pkg/input"
+)
+
+const (
+	moldenWater = "../../pkg/qcread/testdata/water.molden"       // measured fundamentals, hand-written file
+	moldenTS    = "../../pkg/qcread/testdata/ts_invented.molden" // invented
+)
+
+// import prints a block that the input parser reads, and merges into a
+// valid input file so that it stays valid, replacing the molecule named.
+func TestImportPrintsAndMerges(t *testing.T) {
+	code, out, errs := runCLI(t, "import", "--energy", "R=-76.4", "--energy", "TS=-76.35", "R="+moldenWater, "TS="+moldenTS)
+	if code != exitOK || !strings.Contains(out, "molecules:") || !strings.Contains(out, "energy: 25.70") {
+		t.Fatalf("exit %d\n%s\n%s", code, out, errs)
+	}
+	if !strings.Contains(errs, "imported TS from") || !strings.Contains(errs, "not yet a complete input") {
+		t.Errorf("stderr %q: want the summary and the note on what is missing", errs)
+	}
+
+	dir := t.TempDir()
+	target := filepath.Join(dir, "r.yaml")
+	src, err := os.ReadFile(ch3ncFile)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(target, src, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	// A stable species named like the reactant replaces it: still valid.
+	code, _, errs = runCLI(t, "import", "--into", target, "CH3NC="+moldenWater)
+	if code != exitOK || !strings.Contains(errs, "CH3NC replaced") {
+		t.Fatalf("merge: exit %d, stderr %q", code, errs)
+	}
+	m, err := input.ReadFile(target)
+	if err != nil {
+		t.Fatalf("merged file: %v", err)
+	}
+	if got := m.Molecules[0]; got.Name != "CH3NC" || len(got.Vibrations) != 3 {
+		t.Errorf("merged CH3NC has %d vibrations, want water's 3", len(got.Vibrations))
+	}
+	// A merge that would break the file (the reactant becomes a transition
+	// state) is refused and leaves the file as it was.
+	before, _ := os.ReadFile(target)
+	code, _, errs = runCLI(t, "import", "--into", target, "--reactant", "W", "--energy", "W=-76.4", "--energy", "CH3NC=-76.3", "W="+moldenWater, "CH3NC="+moldenTS)
+	after, _ := os.ReadFile(target)
+	if code != exitInput || !strings.Contains(errs, "would not be a valid input") || string(before) != string(after) {
+		t.Errorf("breaking merge: exit %d, stderr %q, file changed %v", code, errs, string(before) != string(after))
+	}
+}
+
+func TestImportFailures(t *testing.T) {
+	dir := t.TempDir()
+	junk := filepath.Join(dir, "junk.out")
+	if err := os.WriteFile(junk, []byte("hello\nworld\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	checkFailures(t, []failCase{
+		{"no files", []string{"import"}, exitUsage, "at least one"},
+		{"scale", []string{"import", "--scale", "9.6", moldenWater}, exitUsage, "--scale 9.6"},
+		{"energy", []string{"import", "--energy", "R=abc", moldenWater}, exitUsage, `--energy "R=abc"`},
+		{"symmetry", []string{"import", "--symmetry", "R=0", moldenWater}, exitUsage, `--symmetry "R=0"`},
+		{"format", []string{"import", "--format", "gjf", moldenWater}, exitUsage, `--format "gjf"`},
+		{"bad name", []string{"import", "a b=" + moldenWater}, exitUsage, "species name"},
+		{"same name", []string{"import", moldenWater, moldenWater}, exitUsage, `"water"`},
+		{"missing", []string{"import", filepath.Join(dir, "none.molden")}, exitInput, "none.molden: no such file"},
+		{"unrecognised", []string{"import", junk}, exitInput, "junk.out: not recognised"},
+		{"folder", []string{"import", dir}, exitInput, "not a regular file"},
+		{"TS alone", []string{"import", moldenTS}, exitInput, "transition state alone"},
+	})
+}
