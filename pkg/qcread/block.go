@@ -376,4 +376,3 @@ func firstLine(s string) string {
 	}
 	return s
 }
-
