@@ -46,7 +46,10 @@ type Species struct {
 	Overridden bool // Symmetry was given by the user
 	Vibrations []float64
 	Imaginary  float64 // cm⁻¹, unscaled; 0 for a stable species
-	IsTS       bool
+	// Multiplicity is the spin multiplicity 2S+1 from the file, 0 if unknown;
+	// it is written as the degeneracy of the ground electronic level.
+	Multiplicity int
+	IsTS         bool
 
 	// ZeroPoint is ½Σν over the scaled real vibrations, cm⁻¹ (harmonic).
 	ZeroPoint float64
@@ -109,6 +112,7 @@ func Assemble(srcs []Source, opt Options) (*Import, error) {
 			Name: src.Name, File: src.File, Program: d.Program, Method: d.Method,
 			Geometry: g, Symmetry: g.Symmetry,
 			Electronic: d.Energy, HasEnergy: d.HasEnergy,
+			Multiplicity: d.Multiplicity,
 		}
 		switch len(d.Imaginary) {
 		case 0:

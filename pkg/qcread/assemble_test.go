@@ -118,7 +118,9 @@ func TestAssembleRefuses(t *testing.T) {
 // isotopes' masses (H 1.00782503223, O 15.99491461957 u; Wang et al., Chin.
 // Phys. C 45, 030003, 2021, AME2020).
 func TestBlockReadsBack(t *testing.T) {
-	im, err := Assemble(readTwo(t, -76.40, -76.35), Options{Scale: 0.97, Symmetry: map[string]int{"TS": 1}})
+	srcs := readTwo(t, -76.40, -76.35)
+	srcs[1].Data.Multiplicity = 2 // a doublet: ground level degeneracy 2S+1 = 2
+	im, err := Assemble(srcs, Options{Scale: 0.97, Symmetry: map[string]int{"TS": 1}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -155,6 +157,12 @@ func TestBlockReadsBack(t *testing.T) {
 			if sp.IsTS && (math.Abs(got.E0/sp.Relative-1) > 5e-7 || got.Imaginary != sp.Imaginary) {
 				t.Errorf("%s E0 = %g cm⁻¹ ν‡ = %g, want %g, %g", sp.Name, got.E0, got.Imaginary, sp.Relative, sp.Imaginary)
 			}
+		}
+		if e := m.Molecules[1].Electronic; len(e) != 1 || e[0].Degeneracy != 2 || e[0].Energy != 0 {
+			t.Errorf("doublet TS electronic levels %+v, want one level of degeneracy 2", e)
+		}
+		if e := m.Molecules[0].Electronic; len(e) != 1 || e[0].Degeneracy != 1 {
+			t.Errorf("R electronic levels %+v, want the default singlet", e)
 		}
 		if m.Reaction.Reactant != "R" || m.Reaction.Via != "TS" {
 			t.Errorf("reaction %+v", m.Reaction)

@@ -224,6 +224,9 @@ func (im *Import) nodes(opt BlockOptions) (keys, vals []*yaml.Node, err error) {
 			}
 			add("rotation", rot)
 		}
+		if sp.Multiplicity > 1 {
+			add("electronic", flowSeqNodes(flowMap("energy", scalar("0 cm-1"), "degeneracy", scalar(strconv.Itoa(sp.Multiplicity)))))
+		}
 		if g.OpticalIsomers > 1 {
 			add("optical-isomers", scalar(strconv.Itoa(g.OpticalIsomers)))
 		}
@@ -268,6 +271,12 @@ func (im *Import) speciesComment(sp Species, unit string, factor float64) string
 	}
 	e = append(e, fmt.Sprintf("harmonic zero-point energy %.1f cm-1", sp.ZeroPoint))
 	c = append(c, "# "+strings.Join(e, "; "))
+	switch {
+	case sp.Multiplicity == 0:
+		c = append(c, "# spin multiplicity not stated in the file: an open-shell species needs electronic: with its degeneracy 2S+1")
+	case sp.Multiplicity > 1:
+		c = append(c, fmt.Sprintf("# spin multiplicity %d: ground level degeneracy %d; excited electronic levels are not in a frequency output", sp.Multiplicity, sp.Multiplicity))
+	}
 	if !sp.IsTS && sp.HasRelative && sp.Name != im.Reactant {
 		c = append(c, fmt.Sprintf("# zero-point-corrected energy relative to %s: %s %s", im.Reactant, fmtG(sp.Relative/factor, 7), unit))
 	}
@@ -327,6 +336,10 @@ func flowSeq(vals []string) *yaml.Node {
 		n.Content = append(n.Content, scalar(s))
 	}
 	return n
+}
+
+func flowSeqNodes(ns ...*yaml.Node) *yaml.Node {
+	return &yaml.Node{Kind: yaml.SequenceNode, Style: yaml.FlowStyle, Content: ns}
 }
 
 // flowMap builds a flow-style mapping from alternating keys and values.

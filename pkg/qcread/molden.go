@@ -60,6 +60,9 @@ type Frequencies struct {
 	// theory as printed ("B3LYP/6-31G*", "GFN2-xTB"), "" when not stated.
 	Program string
 	Method  string
+	// Multiplicity is the spin multiplicity 2S+1 of the electronic state
+	// (1 singlet, 2 doublet, ...); 0 when the file does not say.
+	Multiplicity int
 	// Printed holds what the program itself printed from the same
 	// calculation, for cross-checks; zero values mean not printed.
 	Printed Printed
