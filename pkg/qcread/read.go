@@ -28,6 +28,7 @@ type format struct {
 }
 
 var formats = []format{
+	{"qcschema", isQCSchema, ReadQCSchema, "QCSchema AtomicResult JSON of a Hessian calculation"},
 	{"molden", isMolden, ReadMolden, "Molden file with [FREQ] and [FR-COORD] sections"},
 }
 
