@@ -29,6 +29,7 @@ type format struct {
 
 var formats = []format{
 	{"qcschema", isQCSchema, ReadQCSchema, "QCSchema AtomicResult JSON of a Hessian calculation"},
+	{"xtb", isXtb, ReadXtb, "xtb standard output of an --ohess run (optimisation and Hessian)"},
 	{"molden", isMolden, ReadMolden, "Molden file with [FREQ] and [FR-COORD] sections"},
 }
 
