@@ -24,13 +24,14 @@ import (
 type importOptions struct {
 	format, reactant, energyUnit, into string
 	scale                              float64
-	symmetry, energy                   []string
+	symmetry, energy, xyz              []string
 	quiet                              bool
 
 	// Parsed by validate.
 	sources  []importSource
 	symByKey map[string]int
 	eByKey   map[string]float64
+	xyzByKey map[string]string
 }
 
 type importSource struct{ name, path string }
@@ -46,6 +47,7 @@ func (o *importOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.scale, "scale", 0, "frequency scale factor for the level of theory, applied to real vibrations and zero-point energies (default: none)")
 	fs.StringArrayVar(&o.symmetry, "symmetry", nil, "NAME=N: external symmetry number of NAME, replacing the one found from the geometry (repeatable)")
 	fs.StringArrayVar(&o.energy, "energy", nil, "NAME=E: electronic energy of NAME in hartree, e.g. a higher-level single point (repeatable)")
+	fs.StringArrayVar(&o.xyz, "xyz", nil, "NAME=FILE.xyz: the coordinate file of NAME's xtb --hess run, whose output holds no geometry (repeatable)")
 	fs.StringVar(&o.energyUnit, "energy-unit", "", `unit of the written energies (default: the one the --into file's transition states use, else "kcal/mol")`)
 	fs.StringVar(&o.into, "into", "", "merge the species into this input file (created if absent; same-named molecules are replaced); default: print the block")
 	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no summary or notes on stderr")
@@ -95,6 +97,20 @@ func (o *importOptions) validate(args []string) error {
 			return usagef("--symmetry %q: give NAME=N with N a whole number 1–60", s)
 		}
 		o.symByKey[strings.TrimSpace(k)] = n
+	}
+	o.xyzByKey = map[string]string{}
+	for _, s := range o.xyz {
+		k, v, ok := strings.Cut(s, "=")
+		if !ok || strings.TrimSpace(k) == "" || v == "" {
+			return usagef("--xyz %q: give NAME=FILE.xyz", s)
+		}
+		if _, known := seen[strings.TrimSpace(k)]; !known {
+			return usagef("--xyz %q: %s is not among the species imported", s, k)
+		}
+		if o.format != "auto" && o.format != "xtb" {
+			return usagef("--xyz goes with xtb outputs, not --format %s", o.format)
+		}
+		o.xyzByKey[strings.TrimSpace(k)] = v
 	}
 	o.eByKey = map[string]float64{}
 	for _, s := range o.energy {
@@ -159,7 +175,13 @@ func runImport(o importOptions, s streams) error {
 		if err := s.ctx.Err(); err != nil {
 			return err
 		}
-		d, _, err := qcread.ReadFile(src.path, o.format)
+		var d *qcread.Frequencies
+		var err error
+		if xyz, ok := o.xyzByKey[src.name]; ok {
+			d, err = qcread.ReadXtbWithXYZFile(src.path, xyz)
+		} else {
+			d, _, err = qcread.ReadFile(src.path, o.format)
+		}
 		if err != nil {
 			return err
 		}

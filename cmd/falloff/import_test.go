@@ -76,3 +76,19 @@ func TestImportFailures(t *testing.T) {
 		{"TS alone", []string{"import", moldenTS}, exitInput, "transition state alone"},
 	})
 }
+
+// An xtb --hess output holds no geometry: refused alone, read with --xyz
+// (the recorded run of xtb 6.5.1 on testdata/xtb/h2o_opt.xyz).
+func TestImportXtbHessWithXYZ(t *testing.T) {
+	const dir = "../../pkg/qcread/testdata/xtb/"
+	if code, _, errs := runCLI(t, "import", "W="+dir+"h2o_hess.out"); code != exitInput || !strings.Contains(errs, "no geometry") {
+		t.Errorf("--hess output alone: exit %d, stderr %q", code, errs)
+	}
+	code, out, errs := runCLI(t, "import", "W="+dir+"h2o_hess.out", "--xyz", "W="+dir+"h2o_opt.xyz")
+	if code != exitOK || !strings.Contains(out, "GFN2-xTB") || !strings.Contains(out, "symmetry: 2") {
+		t.Errorf("with --xyz: exit %d, stderr %q\n%s", code, errs, out)
+	}
+	if code, _, errs := runCLI(t, "import", "W="+dir+"h2o_hess.out", "--xyz", "Q="+dir+"h2o_opt.xyz"); code != exitUsage || !strings.Contains(errs, "not among") {
+		t.Errorf("--xyz for an unknown species: exit %d, stderr %q", code, errs)
+	}
+}
