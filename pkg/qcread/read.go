@@ -30,6 +30,8 @@ type format struct {
 var formats = []format{
 	{"qcschema", isQCSchema, ReadQCSchema, "QCSchema AtomicResult JSON of a Hessian calculation"},
 	{"xtb", isXtb, ReadXtb, "xtb standard output of an --ohess run (optimisation and Hessian)"},
+	{"psi4", isPsi4, ReadPsi4, "Psi4 output of a frequency() run (after optimize() or alone)"},
+	{"nwchem", isNWChem, ReadNWChem, "NWChem output of a freq task (after optimize or alone)"},
 	{"molden", isMolden, ReadMolden, "Molden file with [FREQ] and [FR-COORD] sections"},
 }
 
