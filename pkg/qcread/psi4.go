@@ -89,7 +89,7 @@ func ReadPsi4(r io.Reader, name string) (*Frequencies, error) {
 
 	version, banner := "", -1
 	var analyses, steps []int
-	exitOK, errorAt, partial := -1, -1, -1
+	exitOK, errorAt, partial, optDone := -1, -1, -1, -1
 	for i, l := range lines {
 		t := strings.TrimSpace(l)
 		switch {
@@ -104,6 +104,8 @@ func ReadPsi4(r io.Reader, name string) (*Frequencies, error) {
 			analyses = append(analyses, i)
 		case strings.HasPrefix(t, "hessian() will perform"):
 			steps = append(steps, i)
+		case strings.HasPrefix(t, "**** Optimization is complete!"):
+			optDone = i
 		case strings.HasPrefix(t, "*** Psi4 exiting successfully"):
 			exitOK = i
 		case strings.HasPrefix(t, "*** Psi4 encountered an error") && errorAt < 0:
@@ -126,6 +128,22 @@ func ReadPsi4(r io.Reader, name string) (*Frequencies, error) {
 	// Each frequency() call prints one analysis, but two calls in one
 	// output may be different molecules or levels of theory and nothing
 	// says which is wanted: several analyses are refused, not the last taken.
+	// One case is unambiguous: a transition-state search computes a Hessian
+	// at its starting geometry to guide the optimiser, then frequencies at
+	// the converged geometry. When exactly one analysis follows the last
+	// "Optimization is complete!", it is the one at the stationary point and
+	// the earlier ones, at unconverged geometries, are set aside.
+	if len(analyses) > 1 && optDone >= 0 {
+		var after []int
+		for _, a := range analyses {
+			if a > optDone {
+				after = append(after, a)
+			}
+		}
+		if len(after) == 1 {
+			analyses = after
+		}
+	}
 	switch len(analyses) {
 	case 0:
 		if exitOK < 0 {

@@ -466,3 +466,22 @@ func TestReadPsi4Multiplicity(t *testing.T) {
 		}
 	}
 }
+
+// A transition-state search (testdata/ch3nc-qc: Psi4 1.3.2, B3LYP/6-31G(d),
+// opt_type ts from a Hessian at the start) prints two analyses: the first
+// at the starting geometry (491.1573i cm⁻¹), the second after "Optimization
+// is complete!" (440.4127i, 208.5522, 621.9186 cm⁻¹ ...). The reader takes
+// the second, exactly as printed; two analyses without an optimisation
+// between them stay refused (TestReadPsi4Refuses, water_two_freqs.out).
+func TestReadPsi4TransitionStateSearch(t *testing.T) {
+	d, err := ReadPsi4File("../../testdata/ch3nc-qc/ts_opt_freq.out")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(d.Imaginary) != 1 || d.Imaginary[0] != 440.4127 || d.Vibrations[0] != 208.5522 || d.Vibrations[1] != 621.9186 {
+		t.Errorf("imaginary %v, vibrations %v: want the analysis after the optimisation (440.4127i; 208.5522, 621.9186, ...)", d.Imaginary, d.Vibrations[:2])
+	}
+	if _, err := ReadPsi4File("testdata/psi4/water_two_freqs.out"); err == nil {
+		t.Error("two analyses without an optimisation between them: accepted")
+	}
+}
