@@ -16,16 +16,19 @@ type compareOptions struct {
 	json, quiet bool
 	alphaTexts  []string
 	plot        string
+	plotTexts   []string
 	jobs        int
 	disp        display
 
-	alphas []float64 // cm⁻¹, parsed by validate
+	alphas    []float64 // cm⁻¹, parsed by validate
+	plotTemps []float64 // K, --plot-temperatures
 }
 
 func (o *compareOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.json, "json", false, "print one JSON object instead of tables")
 	fs.StringSliceVar(&o.alphaTexts, "alpha", nil, `⟨ΔE⟩down at 300 K with its unit, repeatable, e.g. --alpha "150 cm-1" --alpha "400 cm-1" (default: the file's value × 0.5, 1, 1.5)`)
 	fs.StringVar(&o.plot, "plot", "", "also write the falloff curves of every model to this SVG file")
+	fs.StringSliceVar(&o.plotTexts, "plot-temperatures", nil, `with --plot, the temperatures of the curves, e.g. "500 K", each shown at the nearest grid temperature (default: lowest, middle, highest)`)
 	fs.IntVarP(&o.jobs, "jobs", "j", 0, "worker goroutines over temperatures (default: GOMAXPROCS)")
 	o.disp.addFlags(fs)
 	fs.BoolVarP(&o.quiet, "quiet", "q", false, "no chatter or warnings on stderr")
@@ -44,6 +47,17 @@ func (o *compareOptions) validate(args []string) error {
 			return usagef("--alpha %q: must be positive", a)
 		}
 		o.alphas = append(o.alphas, x)
+	}
+	o.plotTemps = nil
+	for _, text := range o.plotTexts {
+		t, err := units.Parse(text, units.Temperature)
+		if err != nil || !(t > 0) {
+			return usagef("--plot-temperatures %q: give positive temperatures with their unit, e.g. \"300 K,1000 K\"", text)
+		}
+		o.plotTemps = append(o.plotTemps, t)
+	}
+	if len(o.plotTemps) > 0 && o.plot == "" {
+		return usagef("--plot-temperatures goes with --plot FILE.svg")
 	}
 	if o.jobs < 0 {
 		return usagef("--jobs %d: must be 0 (automatic) or positive", o.jobs)
@@ -67,6 +81,9 @@ func runCompareCmd(args []string, s streams) error {
 		if err := check.ReserveFile(o.plot); err != nil {
 			return err
 		}
+		if _, err := figures.TemperatureIndices(n.Model.Temperatures, o.plotTemps); err != nil {
+			return err
+		}
 	}
 	opt := job.CompareOptions{Alpha300: o.alphas, Jobs: o.jobs}
 	bar := newProgress(s, "master equation", job.CompareModelCount(opt)*len(n.Model.Temperatures), o.quiet)
@@ -77,7 +94,7 @@ func runCompareCmd(args []string, s streams) error {
 		return err
 	}
 	if o.plot != "" {
-		if err := writeComparePlot(o.plot, res, o.disp, s); err != nil {
+		if err := writeComparePlot(o.plot, res, o.plotTemps, o.disp, s); err != nil {
 			return err
 		}
 	}
@@ -122,13 +139,17 @@ func runCompareCmd(args []string, s streams) error {
 	return err
 }
 
-func writeComparePlot(path string, res *job.CompareResult, d display, s streams) error {
+func writeComparePlot(path string, res *job.CompareResult, temps []float64, d display, s streams) error {
+	idx, err := figures.TemperatureIndices(res.Temperatures, temps)
+	if err != nil {
+		return err
+	}
 	f := plots.Figure{Title: "Energy-transfer models", XLabel: "P / " + d.Pressure, YLabel: "k / k∞", LogX: true, LogY: true}
 	var ps []float64
 	for _, p := range res.Pressures {
 		ps = append(ps, d.P(p))
 	}
-	for g, it := range figures.DefaultTemperatures(len(res.Temperatures)) {
+	for g, it := range idx {
 		for d, md := range res.Models {
 			y := make([]float64, len(ps))
 			for j := range ps {

@@ -85,3 +85,26 @@ func svgCurves(t *testing.T, path string) int {
 	}
 	return legend
 }
+
+// compare --plot-temperatures draws the curves at the grid temperature
+// nearest each one asked (here one of the file's three), and refuses one
+// outside the grid or without --plot.
+func TestComparePlotTemperatures(t *testing.T) {
+	dir := t.TempDir()
+	plot := filepath.Join(dir, "c.svg")
+	code, _, errs := runCLI(t, "compare", "-q", "--alpha", "300 cm-1", "--plot", plot, "--plot-temperatures", "800 K", ch3ncFile)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	svg, err := os.ReadFile(plot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(svg), "800 K, strong collider") || strings.Contains(string(svg), "500 K") || strings.Contains(string(svg), "1200 K") {
+		t.Errorf("the figure should hold the 800 K curves only")
+	}
+	checkFailures(t, []failCase{
+		{"outside", []string{"compare", "-q", "--plot", plot, "--plot-temperatures", "300 K", ch3ncFile}, exitUsage, "outside the grid"},
+		{"without plot", []string{"compare", "--plot-temperatures", "800 K", ch3ncFile}, exitUsage, "goes with --plot"},
+	})
+}

@@ -3,6 +3,7 @@ package main
 import (
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -90,5 +91,42 @@ func TestImportXtbHessWithXYZ(t *testing.T) {
 	}
 	if code, _, errs := runCLI(t, "import", "W="+dir+"h2o_hess.out", "--xyz", "Q="+dir+"h2o_opt.xyz"); code != exitUsage || !strings.Contains(errs, "not among") {
 		t.Errorf("--xyz for an unknown species: exit %d, stderr %q", code, errs)
+	}
+}
+
+// The validation input's molecules are what the import makes of the
+// recorded Psi4 runs (testdata/ch3nc-qc) with the CCSD(T) energies its
+// header names: the file is traceable to the program outputs. And the
+// rejected first transition-state search of those runs, a real second-
+// order saddle point (573i and 211i cm⁻¹), is refused.
+func TestImportCH3NCValidation(t *testing.T) {
+	const qc = "../../testdata/ch3nc-qc/"
+	code, out, errs := runCLI(t, "import", "-q", "CH3NC="+qc+"ch3nc_opt_freq.out", "TS="+qc+"ts_opt_freq.out", "CH3CN="+qc+"ch3cn_opt_freq.out",
+		"--energy", "CH3NC=-132.489070549470455", "--energy", "TS=-132.425641680896490", "--energy", "CH3CN=-132.527786170215222")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	text := "title: t\nbath: {gas: Ar}\nenergy-transfer: {model: strong-collider}\ngrid: {temperatures: {unit: K, values: [500]}}\n" + out
+	got, err := input.Parse("imported", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := input.ReadFile("../../testdata/ch3nc-validation.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{"CH3NC", "TS", "CH3CN"} {
+		g, w := got.Molecule(name), want.Molecule(name)
+		if g == nil || w == nil || g.E0 != w.E0 || g.Imaginary != w.Imaginary || g.Mass != w.Mass || g.Symmetry != w.Symmetry ||
+			!slices.Equal(g.Vibrations, w.Vibrations) || !slices.Equal(g.Rotors[0].Consts, w.Rotors[0].Consts) {
+			t.Errorf("%s: imported %+v, the validation file has %+v", name, g, w)
+		}
+	}
+	if got.Reaction.ReactionEnergy != want.Reaction.ReactionEnergy {
+		t.Errorf("reaction energy %g, file %g", got.Reaction.ReactionEnergy, want.Reaction.ReactionEnergy)
+	}
+	code, _, errs = runCLI(t, "import", "R="+qc+"ch3nc_opt_freq.out", "TS="+qc+"rejected-second-order-saddle/ts_opt_freq.out")
+	if code != exitInput || !strings.Contains(errs, "2 imaginary frequencies") {
+		t.Errorf("second-order saddle: exit %d, stderr %q", code, errs)
 	}
 }
