@@ -12,8 +12,19 @@
 // over candidate axes; a molecule with no improper operation (mirror,
 // inversion, S_n) is chiral and has two optical isomers.
 //
-// Readers: the Molden format's frequency sections ([FREQ], [FR-COORD],
-// [FR-NORM-COORD], [Atoms]) as documented with the Molden program
-// (Schaftenaar & Noordik, J. Comput.-Aided Mol. Des. 14, 123, 2000). Readers
-// refuse truncated or inconsistent files with a *ReadError; they never guess.
+// Readers (ReadFile picks one by name or recognises the file): the Molden
+// format's frequency sections ([FREQ], [FR-COORD], [FR-NORM-COORD], [Atoms])
+// as documented with the Molden program (Schaftenaar & Noordik, J.
+// Comput.-Aided Mol. Des. 14, 123, 2000); the MolSSI QCSchema AtomicResult
+// of a Hessian calculation, whose Cartesian Hessian HarmonicFrequencies turns
+// into frequencies (mass weighting, projection of translations and rotations,
+// Miller, Handy & Adams, J. Chem. Phys. 72, 99, 1980); and the text outputs
+// of xtb, Psi4 and NWChem. Readers refuse truncated, failed, non-converged
+// or inconsistent files with a *ReadError; they never guess.
+//
+// Import: Assemble checks several species against each other (a transition
+// state has exactly one imaginary frequency), applies a frequency scale
+// factor and measures zero-point-corrected energies from the reactant;
+// Import.WriteBlock writes the molecules: block of a falloff input file and
+// Import.Merge merges it into an existing one.
 package qcread
