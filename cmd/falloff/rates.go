@@ -240,8 +240,8 @@ func writeGridCSV(s streams, res *job.RatesResult, d display) error {
 func printRates(s streams, title string, res *job.RatesResult, files []string, d display) error {
 	kp, k0p := res.KPowers(), res.K0Powers()
 	ku, pu := d.RateUnit(kp), d.Pressure
-	fmt.Fprintf(s.out, "%s: %s\nreaction %s (%s), L = %g\nbath %s (%s); %s\ntunnelling: %s\n\n",
-		res.File, title, res.Reaction, res.Direction, res.PathDegeneracy, res.Bath.Gas, res.Bath.Source, res.Transfer, res.Tunnelling)
+	fmt.Fprintf(s.out, "%s: %s\nreaction %s (%s), L = %g\nbath %s (%s); %s\nexternal rotation: %s\ntunnelling: %s\n\n",
+		res.File, title, res.Reaction, res.Direction, res.PathDegeneracy, res.Bath.Gas, res.Bath.Source, res.Transfer, res.Rotation, res.Tunnelling)
 	var rows [][]string
 	for i, t := range res.Temperatures {
 		rows = append(rows, []string{num(t), num(d.Rate(res.KInf[i], kp)), num6(res.KInfIntegrated[i] / res.KInf[i]),

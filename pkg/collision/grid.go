@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"runtime"
 	"sync"
 
@@ -27,6 +28,18 @@ type Channel struct {
 	// channel); TS may then be nil.
 	Micro     func(g rrkm.Grains, tK float64) (*rrkm.Micro, error)
 	Competing []Channel
+	// JWeights, if set on the well's (first) channel, resolves the well in
+	// angular momentum: at tK it returns the weights of the well's J
+	// components (summing to 1). The master equation is then solved once
+	// per component, J conserved, with each channel's k(E) from
+	// MicroJ(g, tK, q) (Micro for a channel without MicroJ), and every rate
+	// is the weighted sum over the components.
+	JWeights func(tK float64) []float64
+	MicroJ   func(g rrkm.Grains, tK float64, q int) (*rrkm.Micro, error)
+	// JThreshold, if set with JWeights, gives the lowest threshold of J
+	// component q at tK (cm⁻¹), on which that component's grid puts a
+	// grain edge.
+	JThreshold func(tK float64, q int) float64
 }
 
 // channels returns the channel and its competitors.
@@ -348,10 +361,36 @@ func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res
 }
 
 // prepared is one temperature's well with its energy-transfer operator.
+// A well resolved in J (Channel.JWeights) has further components in more,
+// each a well on the same grains with its own k(E); w and kernel are the
+// first component, of weight weight.
 type prepared struct {
 	w      *Well
 	kernel *Kernel // nil for the strong collider
 	eff    float64
+	weight float64
+	more   []component
+}
+
+// component is one J component of a well.
+type component struct {
+	w      *Well
+	kernel *Kernel
+	weight float64
+}
+
+// components returns every component of p, the first included.
+func (p *prepared) components() []component {
+	return append([]component{{p.w, p.kernel, p.weight}}, p.more...)
+}
+
+// kInf is the high-pressure limit on the grid, Σ weight·Σ F·k.
+func (p *prepared) kInf() float64 {
+	s := 0.0
+	for _, c := range p.components() {
+		s += c.weight * c.w.KInf()
+	}
+	return s
 }
 
 // edgeGrain returns grain moved so that a grain edge falls on the (lowest)
@@ -400,61 +439,101 @@ func prepare(ch Channel, tr Transfer, tK, grain, ceiling float64) (*prepared, er
 			return nil, err
 		}
 	}
-	grain = edgeGrain(grain, ch.lowestE0())
+	weights := []float64{1}
+	if ch.JWeights != nil {
+		weights = ch.JWeights(tK)
+	}
+	var parts []component
+	base := grain
+	for q, wq := range weights {
+		// Each J component's grid puts a grain edge on its own lowest
+		// threshold, so that no grain straddles it (edgeGrain).
+		e0 := ch.lowestE0()
+		if ch.JWeights != nil && ch.JThreshold != nil {
+			e0 = ch.JThreshold(tK, q)
+		}
+		g, err := grid(ch, tr, tK, base, ceiling, e0)
+		if err != nil {
+			return nil, err
+		}
+		var kc [][]float64 // k(E) per channel on the grains g
+		var total *rrkm.Micro
+		for _, c := range ch.channels() {
+			var m *rrkm.Micro
+			var err error
+			if ch.JWeights != nil && c.MicroJ != nil {
+				m, err = c.MicroJ(g, tK, q)
+			} else {
+				m, err = c.micro(ch.Reactant, g, tK)
+			}
+			if err != nil {
+				return nil, err
+			}
+			if len(m.K) != g.N {
+				return nil, fmt.Errorf("collision: channel %q gives k(E) on %d grains, want %d", c.Name, len(m.K), g.N)
+			}
+			kc = append(kc, m.K)
+			if total == nil {
+				cp := *m
+				cp.K = append([]float64(nil), m.K...)
+				total = &cp
+			} else {
+				for i, k := range m.K {
+					total.K[i] += k
+				}
+			}
+		}
+		w := NewWell(total, ch.Reactant, tK)
+		w.E0 = e0
+		w.KC = make([][]float64, len(kc))
+		for c, ks := range kc {
+			w.KC[c] = make([]float64, w.N())
+			for i, gi := range w.Index {
+				w.KC[c][i] = ks[gi]
+			}
+		}
+		if w.N() < 2 || w.belowFloor() == 0 {
+			return nil, fmt.Errorf("collision: the grid (%d grains of %.3g cm-1) has no grain below the threshold", w.N(), g.Width)
+		}
+		part := component{w: w, weight: wq}
+		if !tr.Strong {
+			// The kernel depends on the grains and their Boltzmann weights
+			// only, the same in every J component.
+			if len(parts) > 0 && parts[0].w.Grain == w.Grain && slices.Equal(parts[0].w.Index, w.Index) {
+				part.kernel = parts[0].kernel
+			} else {
+				k, err := ExponentialDown(w, tr.Alpha(tK))
+				if err != nil {
+					return nil, err
+				}
+				part.kernel = k
+			}
+		}
+		parts = append(parts, part)
+	}
+	p := &prepared{w: parts[0].w, kernel: parts[0].kernel, weight: parts[0].weight, more: parts[1:], eff: tr.efficiency()}
+	return p, nil
+}
+
+// grid returns the grains of width near grain, up to ceiling, with an edge
+// on the threshold e0, after checking them against the counted states and
+// the matrix limit.
+func grid(ch Channel, tr Transfer, tK, grain, ceiling, e0 float64) (rrkm.Grains, error) {
+	grain = edgeGrain(grain, e0)
 	if grain < ch.Reactant.Fine() {
-		return nil, fmt.Errorf("collision: grain %.3g cm-1 is below the fine counting grain %g cm-1 (hint: a smaller fine-grain, or a larger grain)", grain, ch.Reactant.Fine())
+		return rrkm.Grains{}, fmt.Errorf("collision: grain %.3g cm-1 is below the fine counting grain %g cm-1 (hint: a smaller fine-grain, or a larger grain)", grain, ch.Reactant.Fine())
 	}
 	g := rrkm.GrainsTo(grain, ceiling)
 	if top := g.Top(); top > ch.Reactant.Ceiling()+ch.Reactant.Fine() {
-		return nil, fmt.Errorf("collision: ceiling %.0f cm-1 above the counted states (%.0f cm-1)", top, ch.Reactant.Ceiling())
+		return rrkm.Grains{}, fmt.Errorf("collision: ceiling %.0f cm-1 above the counted states (%.0f cm-1)", top, ch.Reactant.Ceiling())
 	}
 	if matrixEntries(tr, tK, g) > MaxMatrixEntries {
 		if tr.Strong {
-			return nil, fmt.Errorf("%w: %d grains", ErrTooLarge, g.N)
+			return rrkm.Grains{}, fmt.Errorf("%w: %d grains", ErrTooLarge, g.N)
 		}
-		return nil, fmt.Errorf("%w: %d grains of %.3g cm-1 with α = %.3g cm-1 (hint: a larger grain or a lower ceiling)", ErrTooLarge, g.N, grain, tr.Alpha(tK))
+		return rrkm.Grains{}, fmt.Errorf("%w: %d grains of %.3g cm-1 with α = %.3g cm-1 (hint: a larger grain or a lower ceiling)", ErrTooLarge, g.N, grain, tr.Alpha(tK))
 	}
-	var kc [][]float64 // k(E) per channel on the grains g
-	var total *rrkm.Micro
-	for _, c := range ch.channels() {
-		m, err := c.micro(ch.Reactant, g, tK)
-		if err != nil {
-			return nil, err
-		}
-		if len(m.K) != g.N {
-			return nil, fmt.Errorf("collision: channel %q gives k(E) on %d grains, want %d", c.Name, len(m.K), g.N)
-		}
-		kc = append(kc, m.K)
-		if total == nil {
-			cp := *m
-			cp.K = append([]float64(nil), m.K...)
-			total = &cp
-		} else {
-			for i, k := range m.K {
-				total.K[i] += k
-			}
-		}
-	}
-	p := &prepared{w: NewWell(total, ch.Reactant, tK), eff: tr.efficiency()}
-	p.w.E0 = ch.lowestE0()
-	p.w.KC = make([][]float64, len(kc))
-	for c, ks := range kc {
-		p.w.KC[c] = make([]float64, p.w.N())
-		for i, gi := range p.w.Index {
-			p.w.KC[c][i] = ks[gi]
-		}
-	}
-	if p.w.N() < 2 || p.w.belowFloor() == 0 {
-		return nil, fmt.Errorf("collision: the grid (%d grains of %.3g cm-1) has no grain below the threshold", p.w.N(), grain)
-	}
-	if !tr.Strong {
-		k, err := ExponentialDown(p.w, tr.Alpha(tK))
-		if err != nil {
-			return nil, err
-		}
-		p.kernel = k
-	}
-	return p, nil
+	return g, nil
 }
 
 // rate returns k_uni at collision frequency omega (s⁻¹, before efficiency).
@@ -465,11 +544,33 @@ func (p *prepared) rate(omega float64) (float64, error) {
 
 // rates returns k_uni and its share per channel: the flux identity applied
 // to each channel's k(E) with the same slowest mode, so the shares sum to the
-// total.
+// total; for a well resolved in J, the weighted sums over its components.
 func (p *prepared) rates(omega float64) (float64, []float64, error) {
-	w := p.w
+	if len(p.more) == 0 {
+		return p.rates1(p.w, p.kernel, omega)
+	}
+	k := 0.0
+	var kc []float64
+	for _, c := range p.components() {
+		kq, kcq, err := p.rates1(c.w, c.kernel, omega)
+		if err != nil {
+			return 0, nil, err
+		}
+		k += c.weight * kq
+		if kc == nil {
+			kc = make([]float64, len(kcq))
+		}
+		for i := range kcq {
+			kc[i] += c.weight * kcq[i]
+		}
+	}
+	return k, kc, nil
+}
+
+// rates1 is rates for one component.
+func (p *prepared) rates1(w *Well, kernel *Kernel, omega float64) (float64, []float64, error) {
 	kc := make([]float64, len(w.KC))
-	if p.kernel == nil {
+	if kernel == nil {
 		om := p.eff * omega
 		lambda := w.StrongCollider(om)
 		for i, n := range w.StrongColliderPopulation(om, lambda) {
@@ -479,7 +580,7 @@ func (p *prepared) rates(omega float64) (float64, []float64, error) {
 		}
 		return lambda, kc, nil
 	}
-	s, err := w.Solve(p.kernel, omega)
+	s, err := w.Solve(kernel, omega)
 	if err != nil {
 		return 0, nil, err
 	}
@@ -495,9 +596,31 @@ func (p *prepared) rates(omega float64) (float64, []float64, error) {
 // channel: in that limit a molecule that reaches a reactive grain reacts
 // there, by channel c with probability k_c(E)/k(E).
 func (p *prepared) k0PerOmega() (float64, []float64, error) {
-	w := p.w
+	if len(p.more) == 0 {
+		return p.k0PerOmega1(p.w, p.kernel)
+	}
+	k := 0.0
+	var kc []float64
+	for _, c := range p.components() {
+		kq, kcq, err := p.k0PerOmega1(c.w, c.kernel)
+		if err != nil {
+			return 0, nil, err
+		}
+		k += c.weight * kq
+		if kc == nil {
+			kc = make([]float64, len(kcq))
+		}
+		for i := range kcq {
+			kc[i] += c.weight * kcq[i]
+		}
+	}
+	return k, kc, nil
+}
+
+// k0PerOmega1 is k0PerOmega for one component.
+func (p *prepared) k0PerOmega1(w *Well, kernel *Kernel) (float64, []float64, error) {
 	kc := make([]float64, len(w.KC))
-	if p.kernel == nil {
+	if kernel == nil {
 		for i := w.belowFloor(); i < w.N(); i++ {
 			if k := w.K[i]; k > 0 {
 				for c := range kc {
@@ -507,17 +630,17 @@ func (p *prepared) k0PerOmega() (float64, []float64, error) {
 		}
 		return p.eff * w.StrongColliderK0(), kc, nil
 	}
-	s, err := w.LowPressure(p.kernel)
+	s, err := w.LowPressure(kernel)
 	if err != nil {
 		return 0, nil, err
 	}
 	nk := len(s.Population)
 	for i, n := range s.Population {
-		for m := nk; m < min(w.N(), i+p.kernel.Band+1); m++ {
+		for m := nk; m < min(w.N(), i+kernel.Band+1); m++ {
 			if w.K[m] == 0 {
 				continue
 			}
-			pm := p.kernel.At(m, i) * n
+			pm := kernel.At(m, i) * n
 			for c := range kc {
 				kc[c] += pm * w.KC[c][m] / w.K[m]
 			}
@@ -542,19 +665,23 @@ func solveTemperature(ctx context.Context, ch Channel, col Collider, tr Transfer
 		return fail(0, "energy grid", err)
 	}
 	w := p.w
-	for i, k := range w.K {
-		if !(k >= 0) || math.IsInf(k, 0) {
-			return fail(0, "k(E)", fmt.Errorf("k(E) = %v s-1 at E = %.6g cm-1: %w", k, w.E[i], errNotFinite))
+	for _, cp := range p.components() {
+		for i, k := range cp.w.K {
+			if !(k >= 0) || math.IsInf(k, 0) {
+				return fail(0, "k(E)", fmt.Errorf("k(E) = %v s-1 at E = %.6g cm-1: %w", k, cp.w.E[i], errNotFinite))
+			}
 		}
 	}
 	z := col.Z(tK)
 	r := TemperatureResult{T: tK, K: make([]float64, len(pressures)), Z: z,
-		KInfME: w.KInf(), Grain: w.Grain, Ceiling: w.E[w.N()-1] + w.Grain/2, Grains: w.N(),
+		KInfME: p.kInf(), Grain: w.Grain, Ceiling: w.E[w.N()-1] + w.Grain/2, Grains: w.N(),
 		KC: make([][]float64, len(w.KC)), KInfC: make([]float64, len(w.KC))}
 	for c := range w.KC {
 		r.KC[c] = make([]float64, len(pressures))
-		for i, f := range w.F {
-			r.KInfC[c] += f * w.KC[c][i]
+		for _, cp := range p.components() {
+			for i, f := range cp.w.F {
+				r.KInfC[c] += cp.weight * f * cp.w.KC[c][i]
+			}
 		}
 	}
 	if p.kernel != nil {

@@ -70,6 +70,11 @@ type Reaction struct {
 	HasReactionEnergy bool
 	// Tunnelling is NoTunnelling (default), Wigner or Eckart.
 	Tunnelling Tunnelling
+	// Rotation is how the external rotation of the well and its transition
+	// states exchanges energy: AllActive (default) or AdiabaticJ. It is one
+	// choice for the whole well, since the master equation's energy variable
+	// (total or active energy) is the well's.
+	Rotation Rotation
 	// Barrierless, if set, makes the main channel barrierless (Via is then
 	// empty): k(E) from the inverse Laplace transform of its k∞(T).
 	Barrierless *Barrierless
@@ -85,6 +90,26 @@ const (
 	NoTunnelling Tunnelling = "none"
 	Wigner       Tunnelling = "wigner"
 	Eckart       Tunnelling = "eckart"
+)
+
+// Rotation names a treatment of the external rotation, as written in the
+// input file.
+type Rotation string
+
+// Treatments of the external rotation.
+const (
+	// AllActive lets all three external rotations exchange energy freely
+	// with the vibrations.
+	AllActive Rotation = "all-active"
+	// AdiabaticJ keeps the two-dimensional J rotation adiabatic, with
+	// centrifugal thresholds, and lets the K rotor mix; the master equation
+	// is solved at a few J of the thermal J distribution, J conserved in
+	// collisions, and the rates averaged (rrkm.JQuadrature).
+	AdiabaticJ Rotation = "adiabatic-j"
+	// AdiabaticJAveraged is the standard one-dimensional reduction: one
+	// master equation on the active energy with k(E) averaged over the
+	// thermal J distribution (rrkm.RRKMAdiabatic).
+	AdiabaticJAveraged Rotation = "adiabatic-j-averaged"
 )
 
 // Channel is a competing channel: through a transition state (Via) or

@@ -109,6 +109,9 @@ func (p *parser) reaction(r *rawReaction, mols []*Molecule) (Reaction, error) {
 	if rx.Tunnelling, err2 = p.tunnelling("reaction.tunnelling", &r.Tunnelling, rx.HasReactionEnergy, ts); err2 != nil {
 		return rx, err2
 	}
+	if rx.Rotation, err2 = p.rotationTreatment("reaction.rotation", &r.Rotation); err2 != nil {
+		return rx, err2
+	}
 	if err := p.eckartSides("reaction", &r.ReactionEnergy, rx.Tunnelling, rx.ReactionEnergy, ts); err != nil {
 		return rx, err
 	}
@@ -195,6 +198,22 @@ func (p *parser) tunnelling(path string, n *yaml.Node, hasEnergy bool, ts *Molec
 		return v, nil
 	}
 	return "", p.errAt(path, n, problemf("unknown tunnelling correction"), "use none, wigner or eckart")
+}
+
+// rotationTreatment reads all-active, adiabatic-j or adiabatic-j-averaged.
+func (p *parser) rotationTreatment(path string, n *yaml.Node) (Rotation, error) {
+	if !given(n) {
+		return AllActive, nil
+	}
+	name, err := p.name(path, n)
+	if err != nil {
+		return "", err
+	}
+	switch v := Rotation(name); v {
+	case AllActive, AdiabaticJ, AdiabaticJAveraged:
+		return v, nil
+	}
+	return "", p.errAt(path, n, problemf("unknown treatment of the external rotation"), "use all-active, adiabatic-j or adiabatic-j-averaged")
 }
 
 // competing reads one competing channel.

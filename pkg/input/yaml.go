@@ -91,6 +91,7 @@ type rawReaction struct {
 	PathDegeneracy yaml.Node       `yaml:"path-degeneracy"`
 	ReactionEnergy yaml.Node       `yaml:"reaction-energy"`
 	Tunnelling     yaml.Node       `yaml:"tunnelling"`
+	Rotation       yaml.Node       `yaml:"rotation"`
 	Barrierless    *rawBarrierless `yaml:"barrierless"`
 	Competing      []rawChannel    `yaml:"competing"`
 }

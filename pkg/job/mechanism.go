@@ -35,6 +35,7 @@ func (r *RatesResult) Header() export.Header {
 		Lines: []string{
 			"Direction: " + r.directionName() + fmt.Sprintf(" (molecularity %d)", r.Order),
 			"Collision model: " + r.Transfer,
+			"External rotation: " + r.Rotation,
 			fmt.Sprintf("Bath gas: %s (%s)", r.Bath.Gas, r.Bath.Source),
 		}}
 	for _, e := range r.Entries {

@@ -72,6 +72,9 @@ func New(m *input.Model) (*Network, error) {
 			return nil, err
 		}
 	}
+	if err := n.checkRotation(); err != nil {
+		return nil, err
+	}
 	if err := n.checkCountSize(); err != nil {
 		return nil, err
 	}
@@ -190,11 +193,22 @@ func (n *Network) masterEquation(ctx context.Context, ceiling float64) (collisio
 	m := n.Model
 	fine := m.EnergyGrid.Fine
 	top := n.CountTop(ceiling)
-	rc, err := rrkm.NewCounterContext(ctx, &n.reactant().Species, fine, top)
+	adiabatic := m.Reaction.Rotation == input.AdiabaticJ || m.Reaction.Rotation == input.AdiabaticJAveraged
+	resolved := m.Reaction.Rotation == input.AdiabaticJ
+	jx, jw := rrkm.JQuadrature(jNodes)
+	reactant, jr := &n.reactant().Species, rrkm.JRotor{}
+	if adiabatic {
+		reactant, jr = rrkm.SplitExternalRotation(reactant)
+	}
+	rc, err := rrkm.NewCounterContext(ctx, reactant, fine, top)
 	if err != nil {
 		return collision.Channel{}, countError(m.File, err)
 	}
+	tMax := m.Temperatures[len(m.Temperatures)-1]
 	var chs []collision.Channel
+	// thresholds give each transition-state channel's threshold in J
+	// component q at tK.
+	var thresholds []func(tK float64, q int) float64
 	for _, c := range n.Channels {
 		cc := collision.Channel{Name: c.Name, L: c.L, E0: c.E0}
 		if c.ILT != nil {
@@ -208,6 +222,39 @@ func (n *Network) masterEquation(ctx context.Context, ceiling float64) (collisio
 		tsTop := top - c.E0
 		if e := c.Eckart(); e != nil {
 			tsTop = top - e.Emin()
+		}
+		if adiabatic {
+			// The K rotor and the J average: the transition state is counted
+			// as far above the grid as the centrifugal threshold falls.
+			ts, jts := rrkm.SplitExternalRotation(&c.TS.Species)
+			tc, err := rrkm.NewCounterContext(ctx, ts, fine, math.Max(tsTop+rrkm.MaxJShift(jr, jts, tMax), fine))
+			if err != nil {
+				return collision.Channel{}, countError(m.File, err)
+			}
+			cc.TS = tc
+			tab := tc.NewSumTable(tc.Ceiling())
+			l, imag, wigner := c.L, c.TS.Imaginary, c.Tunnelling == input.Wigner
+			withWigner := func(mi *rrkm.Micro, tK float64) *rrkm.Micro {
+				if wigner {
+					kw := rrkm.Wigner(imag, tK)
+					for j := range mi.K {
+						mi.K[j] *= kw
+					}
+				}
+				return mi
+			}
+			cc.Micro = func(g rrkm.Grains, tK float64) (*rrkm.Micro, error) {
+				return withWigner(rrkm.RRKMAdiabatic(rc, tab, l, g, jr, jts, tK), tK), nil
+			}
+			if resolved {
+				cc.MicroJ = func(g rrkm.Grains, tK float64, q int) (*rrkm.Micro, error) {
+					return withWigner(rrkm.RRKMShifted(rc, tab, l, g, rrkm.JNodeShift(jr, jts, jx[q], tK), tK), tK), nil
+				}
+				e0 := c.E0
+				thresholds = append(thresholds, func(tK float64, q int) float64 { return e0 + rrkm.JNodeShift(jr, jts, jx[q], tK) })
+			}
+			chs = append(chs, cc)
+			continue
 		}
 		tc, err := rrkm.NewCounterContext(ctx, &c.TS.Species, fine, math.Max(tsTop, fine))
 		if err != nil {
@@ -236,7 +283,58 @@ func (n *Network) masterEquation(ctx context.Context, ceiling float64) (collisio
 	well := chs[0]
 	well.Reactant = rc
 	well.Competing = chs[1:]
+	if resolved {
+		well.JWeights = func(float64) []float64 { return jw }
+		lowest := n.lowestE0()
+		well.JThreshold = func(tK float64, q int) float64 {
+			e := lowest // a barrierless channel's threshold does not move
+			if len(thresholds) == len(n.Channels) {
+				e = math.Inf(1)
+			}
+			for _, f := range thresholds {
+				e = math.Min(e, f(tK, q))
+			}
+			return e
+		}
+	}
 	return well, nil
+}
+
+// JNodes is the number of J at which the adiabatic-j treatment solves the
+// master equation: Gauss–Laguerre nodes of the thermal J distribution
+// (rrkm.JQuadrature), exact for rates polynomial of degree below 2·JNodes
+// in J(J+1). The rates' J dependence is close to an exponential in J(J+1)
+// (the centrifugal threshold); TestJNodesConverged bounds the error.
+const JNodes = 4
+
+// jNodes is JNodes, a variable so that a test can check convergence.
+var jNodes = JNodes
+
+// checkRotation refuses an adiabatic J treatment the model cannot carry:
+// Eckart tunnelling (its barrier would have to move with the centrifugal
+// threshold of every J; not implemented) and a reactant and transition state
+// of which only one has external rotation.
+func (n *Network) checkRotation() error {
+	m := n.Model
+	if m.Reaction.Rotation == input.AllActive || m.Reaction.Rotation == "" {
+		return nil
+	}
+	for _, c := range n.Channels {
+		if c.TS == nil {
+			continue
+		}
+		if c.Tunnelling == input.Eckart {
+			return &input.FieldError{File: m.File, Path: "reaction.rotation", Value: string(m.Reaction.Rotation),
+				Err: fmt.Errorf("channel %s: Eckart tunnelling with the adiabatic J rotation is not implemented", c.Label()),
+				Hint: "use rotation: all-active with Eckart tunnelling, or tunnelling: wigner"}
+		}
+		if err := rrkm.CheckAdiabaticPair(&n.reactant().Species, &c.TS.Species); err != nil {
+			return &input.FieldError{File: m.File, Path: "reaction.rotation", Value: string(m.Reaction.Rotation),
+				Err: fmt.Errorf("channel %s: %w", c.Label(), err),
+				Hint: "give rotation: to both the reactant and the transition state, or use rotation: all-active"}
+		}
+	}
+	return nil
 }
 
 // countError wraps a state-count error with the file's name; a cancelled

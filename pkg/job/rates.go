@@ -69,11 +69,14 @@ type RatesResult struct {
 	PrOne          []float64   `json:"pr_one_pressure_Pa"` // Pr = k0[M]/k∞ = 1, the centre of Troe's curve
 	Fcent          []float64   `json:"fcent"`              // k/(k∞/2) at Pr = 1
 	// Tunnelling says which tunnelling corrections k, k∞ and k0 include.
-	Tunnelling     string        `json:"tunnelling"`
-	Grain          []float64     `json:"grain_cm-1"`
-	Ceiling        []float64     `json:"ceiling_cm-1"`
-	Convergence    *float64      `json:"convergence_max_change,omitempty"`
-	Transfer       string        `json:"energy_transfer"`
+	Tunnelling  string    `json:"tunnelling"`
+	Grain       []float64 `json:"grain_cm-1"`
+	Ceiling     []float64 `json:"ceiling_cm-1"`
+	Convergence *float64  `json:"convergence_max_change,omitempty"`
+	Transfer    string    `json:"energy_transfer"`
+	// Rotation says how the external rotation was treated: every rotation
+	// active, or the K rotor active with J adiabatic.
+	Rotation       string        `json:"external_rotation"`
 	Bath           BathInfo      `json:"bath"`
 	PathDegeneracy float64       `json:"path_degeneracy"`
 	Fits           *fit.Results  `json:"fits,omitempty"`
@@ -247,7 +250,7 @@ func (n *Network) forward(res *collision.Result) (*RatesResult, error) {
 	r := n.reactant()
 	out := &RatesResult{File: m.File, Direction: n.forwardName(), KUnits: "s-1", K0Units: "cm3 molecule-1 s-1",
 		Reaction:     r.Name + " -> " + strings.Join(m.Reaction.Products, " + "),
-		Temperatures: m.Temperatures, Pressures: m.Pressures, K: res.K(), Transfer: n.Transfer.String(), Bath: n.Bath,
+		Temperatures: m.Temperatures, Pressures: m.Pressures, K: res.K(), Transfer: n.Transfer.String(), Rotation: n.RotationNote(), Bath: n.Bath,
 		PathDegeneracy: n.Main().L, Warnings: append([]string{}, m.Warnings...), Caution: Caution, Tunnelling: n.tunnellingNote(),
 		Order: 1, Reactants: []string{r.Name}, Products: m.Reaction.Products,
 		model: m, fileWarned: len(m.Warnings)}
@@ -392,6 +395,17 @@ func (r *RatesResult) KPowers() int { return r.Order - 1 }
 
 // K0Powers is the number of cm³ molecule⁻¹ factors in the unit of K0.
 func (r *RatesResult) K0Powers() int { return r.Order }
+
+// RotationNote says in words how the external rotation is treated.
+func (n *Network) RotationNote() string {
+	switch n.Model.Reaction.Rotation {
+	case input.AdiabaticJ:
+		return fmt.Sprintf("K rotor active, J adiabatic (centrifugal thresholds; master equation at %d J of the thermal distribution, J conserved in collisions)", JNodes)
+	case input.AdiabaticJAveraged:
+		return "K rotor active, J adiabatic (centrifugal thresholds; k(E) averaged over the thermal J distribution)"
+	}
+	return "all three rotations active"
+}
 
 // tunnellingNote says which channels' rates include a tunnelling
 // correction: "none", or e.g. "eckart (CH3NC-TS); wigner (TS-2)".

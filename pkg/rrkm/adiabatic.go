@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"slices"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // The conventional treatment of angular momentum in a unimolecular
@@ -226,24 +228,36 @@ func RRKMAdiabatic(reactant *Counter, ts *SumTable, l float64, g Grains, jr, jts
 		K:      make([]float64, g.N)}
 	p := jr.JDistribution(tK)
 	db := jts.B - jr.B
-	w := g.Width
 	for j, pj := range p {
 		if pj < 1e-18 {
 			continue
 		}
-		off := e0 + db*float64(j)*float64(j+1)
-		if off >= g.Top() {
-			continue // every grain lies below this J's threshold
-		}
-		lo := ts.at(-0.5*w - off)
-		for i := range m.SumTS {
-			hi := ts.at((float64(i)+0.5)*w - off)
-			m.SumTS[i] += pj * (hi - lo) / w
-			lo = hi
-		}
+		ts.addShiftedSums(m.SumTS, g, e0+db*float64(j)*float64(j+1), pj)
 	}
-	// Move the flux of empty grains down to the nearest grain with states.
+	m.finish(ts, tK)
+	return m
+}
+
+// addShiftedSums adds weight times the grain averages of W(E − off) to sums.
+func (t *SumTable) addShiftedSums(sums []float64, g Grains, off, weight float64) {
+	if off >= g.Top() {
+		return // every grain lies below this threshold
+	}
+	w := g.Width
+	lo := t.at(-0.5*w - off)
+	for i := range sums {
+		hi := t.at((float64(i)+0.5)*w - off)
+		sums[i] += weight * (hi - lo) / w
+		lo = hi
+	}
+}
+
+// finish moves the flux of grains without reactant states down to the
+// nearest grain with states, weighted by the Boltzmann factor at tK
+// between them (see RRKMAdiabatic), and forms k(E).
+func (m *Micro) finish(ts *SumTable, tK float64) {
 	beta := 1 / kT(tK)
+	w := m.Grains.Width
 	last := -1
 	for i, n := range m.Counts {
 		switch {
@@ -255,6 +269,61 @@ func RRKMAdiabatic(reactant *Counter, ts *SumTable, l float64, g Grains, jr, jts
 		}
 	}
 	m.rates(ts.c.scale)
+}
+
+// JQuadrature returns the nodes x_q and weights w_q of n-point
+// Gauss–Laguerre quadrature, Σ w_q f(x_q) ≈ ∫₀^∞ e^(−x) f(x) dx, exact for
+// polynomials of degree below 2n: the average over a classical thermal J
+// distribution, whose weight (2J+1)·exp(−B̄J(J+1)/kT) is e^(−x) dx in
+// x = B̄J(J+1)/kT. The nodes are the eigenvalues of the Jacobi matrix of the
+// Laguerre polynomials (diagonal 2k+1, off-diagonal k), the weights the
+// squared first components of its eigenvectors (Golub & Welsch, Math.
+// Comp. 23, 221, 1969).
+func JQuadrature(n int) (x, w []float64) {
+	if n < 1 {
+		panic("rrkm: JQuadrature needs at least one node")
+	}
+	a := mat.NewSymDense(n, nil)
+	for k := range n {
+		a.SetSym(k, k, float64(2*k+1))
+		if k+1 < n {
+			a.SetSym(k, k+1, float64(k+1))
+		}
+	}
+	var es mat.EigenSym
+	if !es.Factorize(a, true) {
+		panic("rrkm: JQuadrature: eigendecomposition failed")
+	}
+	x = es.Values(nil)
+	var v mat.Dense
+	es.VectorsTo(&v)
+	w = make([]float64, n)
+	for q := range n {
+		w[q] = v.At(0, q) * v.At(0, q)
+	}
+	return x, w
+}
+
+// JNodeShift returns the centrifugal shift of the threshold, (B̄‡ − B̄)·J(J+1)
+// in cm⁻¹, at the quadrature node x = B̄J(J+1)/kT (JQuadrature) at tK.
+func JNodeShift(jr, jts JRotor, x, tK float64) float64 {
+	if jr.B <= 0 {
+		return 0
+	}
+	return (jts.B - jr.B) * x * kT(tK) / jr.B
+}
+
+// RRKMShifted computes k(E) = L·c·W̄‡(E − E0 − shift)/ρ̄(E) on grains g for
+// one J of the adiabatic treatment (shift = JNodeShift), with the flux of
+// grains without reactant states moved as in RRKMAdiabatic (at tK).
+func RRKMShifted(reactant *Counter, ts *SumTable, l float64, g Grains, shift, tK float64) *Micro {
+	e0 := ts.c.species.E0
+	m := &Micro{Grains: g, E0: e0 + shift, L: l, Scale: reactant.scale,
+		Counts: reactant.ScaledCounts(g, 0),
+		SumTS:  make([]float64, g.N),
+		K:      make([]float64, g.N)}
+	ts.addShiftedSums(m.SumTS, g, e0+shift, 1)
+	m.finish(ts, tK)
 	return m
 }
 
