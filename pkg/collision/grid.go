@@ -5,8 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"slices"
 	"runtime"
+	"slices"
 	"sync"
 
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"

@@ -325,12 +325,12 @@ func (n *Network) checkRotation() error {
 		}
 		if c.Tunnelling == input.Eckart {
 			return &input.FieldError{File: m.File, Path: "reaction.rotation", Value: string(m.Reaction.Rotation),
-				Err: fmt.Errorf("channel %s: Eckart tunnelling with the adiabatic J rotation is not implemented", c.Label()),
+				Err:  fmt.Errorf("channel %s: Eckart tunnelling with the adiabatic J rotation is not implemented", c.Label()),
 				Hint: "use rotation: all-active with Eckart tunnelling, or tunnelling: wigner"}
 		}
 		if err := rrkm.CheckAdiabaticPair(&n.reactant().Species, &c.TS.Species); err != nil {
 			return &input.FieldError{File: m.File, Path: "reaction.rotation", Value: string(m.Reaction.Rotation),
-				Err: fmt.Errorf("channel %s: %w", c.Label(), err),
+				Err:  fmt.Errorf("channel %s: %w", c.Label(), err),
 				Hint: "give rotation: to both the reactant and the transition state, or use rotation: all-active"}
 		}
 	}
