@@ -859,3 +859,26 @@ func TestReplacementCharacterEscaped(t *testing.T) {
 		t.Errorf("raw U+FFFD in %q", err.Error())
 	}
 }
+
+// reaction.rotation: all-active by default; the three treatments read as
+// written; anything else refused at the field, with the choices in the hint.
+func TestRotationTreatment(t *testing.T) {
+	m, err := Parse(testFile, []byte(minimal))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m.Reaction.Rotation != AllActive {
+		t.Errorf("default rotation %q, want %q", m.Reaction.Rotation, AllActive)
+	}
+	for _, r := range []Rotation{AllActive, AdiabaticJ, AdiabaticJAveraged} {
+		m, err := Parse(testFile, edit(t, "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  rotation: "+string(r)+"\n"))
+		if err != nil || m.Reaction.Rotation != r {
+			t.Errorf("rotation: %s read as %q, %v", r, m.Reaction.Rotation, err)
+		}
+	}
+	_, err = Parse(testFile, edit(t, "  path-degeneracy: auto\n", "  path-degeneracy: auto\n  rotation: adiabatic\n"))
+	var fe *FieldError
+	if !errors.As(err, &fe) || fe.Path != "reaction.rotation" || fe.Value != "adiabatic" || !strings.Contains(fe.Hint, "adiabatic-j") {
+		t.Errorf("rotation: adiabatic: %v", err)
+	}
+}
