@@ -26,8 +26,11 @@ func runMicroCmd(args []string, s streams) error {
 		return writeJSON(s.out, res)
 	}
 	mc := res.Channels[0]
-	fmt.Fprintf(s.out, "%s: %s\nchannel %s: E0 = %s cm-1 (%s kcal/mol), L = %g, %s cm-1 grains\ntunnelling: %s\n\n",
-		res.File, n.Model.Title, mc.Name, numE(mc.E0), num(mc.E0/units.Cm1PerKcalPerMol), mc.L, num(mc.Grain), tunnellingLine(mc.Tunnelling))
+	fmt.Fprintf(s.out, "%s: %s\nchannel %s: E0 = %s cm-1 (%s kcal/mol), L = %g, %s cm-1 grains\nexternal rotation: %s\ntunnelling: %s\n\n",
+		res.File, n.Model.Title, mc.Name, numE(mc.E0), num(mc.E0/units.Cm1PerKcalPerMol), mc.L, num(mc.Grain), mc.Rotation, tunnellingLine(mc.Tunnelling))
+	if len(mc.KJ) > 0 {
+		return printMicroJ(s, mc, o)
+	}
 	var rows [][]string
 	first := int(math.Ceil(mc.E0 / mc.Grain))
 	for i, k := range mc.K { // with tunnelling, k(E) starts below E0
@@ -81,4 +84,41 @@ func wignerWord(t string) string {
 		return "·κ"
 	}
 	return ""
+}
+
+// printMicroJ prints k(E, J) at the reported J on the active energy, with
+// each J's threshold, and the TST check averaged over E and J.
+func printMicroJ(s streams, mc job.MicroChannel, o reportOptions) error {
+	fmt.Fprintln(s.out, "k(E, J) on the active energy (vibrations, K rotor, torsions); E0(J) = E0 + (B‡ − B)·J(J+1):")
+	header := []string{"E / cm-1", "E - E0 / cm-1"}
+	for _, jj := range mc.J {
+		header = append(header, fmt.Sprintf("k(E, J=%d) / s-1", jj))
+	}
+	var rows [][]string
+	first := int(math.Ceil(mc.E0 / mc.Grain))
+	every := max(1, int(math.Round(o.step.set.Cm1/mc.Grain)))
+	for i := first; i < len(mc.Energies); i += every {
+		row := []string{numE(mc.Energies[i]), numE(mc.Energies[i] - mc.E0)}
+		for j := range mc.J {
+			row = append(row, num(mc.KJ[j][i]))
+		}
+		rows = append(rows, row)
+	}
+	if err := renderTable(s.out, header, rows); err != nil {
+		return err
+	}
+	fmt.Fprint(s.out, "thresholds:")
+	for j, jj := range mc.J {
+		fmt.Fprintf(s.out, " E0(J=%d) = %s cm-1;", jj, numE(mc.E0J[j]))
+	}
+	fmt.Fprintln(s.out, "\n\nCanonical TST against the thermal average of k(E, J) over E and J (they must agree):")
+	rows = rows[:0]
+	for i, t := range mc.Temperatures {
+		rows = append(rows, []string{num(t), num(mc.KInf[i]), num(mc.KInfIntegrated[i]), num6(mc.KInfIntegrated[i] / mc.KInf[i])})
+	}
+	if err := renderTable(s.out, []string{"T / K", "k∞ TST" + kappaWord(mc.Tunnelling) + " / s-1", "<k(E,J)>" + wignerWord(mc.Tunnelling) + " / s-1", "ratio"}, rows); err != nil {
+		return err
+	}
+	_, err := fmt.Fprintln(s.out, "\n"+job.Caution)
+	return err
 }

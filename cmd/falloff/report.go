@@ -10,6 +10,7 @@ import (
 // an input file (states, micro).
 type reportOptions struct {
 	json, quiet    bool
+	jResolved      bool       // states only: --j-resolved
 	step           energyFlag // row spacing of terminal tables
 	grain, ceiling energyFlag
 }
@@ -44,6 +45,9 @@ func (o *reportOptions) grid() job.ReportGrid {
 func (o *reportOptions) parse(verb string, args []string, s streams, example string) (*job.Network, error) {
 	fs := newFlags(verb, verb+" [flags] [FILE]", example, s)
 	o.addFlags(fs)
+	if verb == "states" {
+		fs.BoolVar(&o.jResolved, "j-resolved", false, "the J-resolved states of the adiabatic J treatment: rho(E, J) and W(E, J) at a few J")
+	}
 	args, err := parseVerb(fs, args, func(a []string) error { return o.validate(verb, a) })
 	if err != nil {
 		return nil, err

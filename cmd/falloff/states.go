@@ -3,6 +3,8 @@ package main
 import (
 	"fmt"
 	"math"
+
+	"github.com/falloff-kinetics/falloff/pkg/job"
 )
 
 func runStatesCmd(args []string, s streams) error {
@@ -10,9 +12,13 @@ func runStatesCmd(args []string, s streams) error {
 	n, err := o.parse("states", args, s,
 		"  falloff states                         # the built-in demo\n"+
 			"  falloff states ring.yaml --step \"2000 cm-1\"\n"+
-			"  falloff states ring.yaml --json > states.json")
+			"  falloff states ring.yaml --json > states.json\n"+
+			"  falloff states ch3nc.yaml --j-resolved  # rho(E, J) and W(E, J) for the adiabatic J treatment")
 	if err != nil {
 		return err
+	}
+	if o.jResolved {
+		return printStatesJ(o, n, s)
 	}
 	res, err := n.States(o.grid())
 	if err != nil {
@@ -38,6 +44,43 @@ func runStatesCmd(args []string, s streams) error {
 			rows = append(rows, []string{numE(st.Energies[i]), num(st.Density[i]), num(st.SumStates[i])})
 		}
 		if err := renderTable(s.out, []string{"E / cm-1", "ρ / (cm-1)^-1", "W"}, rows); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// printStatesJ is states --j-resolved: the J-resolved counts of the
+// adiabatic J treatment (job.Counts.StatesJ).
+func printStatesJ(o reportOptions, n *job.Network, s streams) error {
+	cs, err := n.Count(o.grid())
+	if err != nil {
+		return err
+	}
+	res, err := cs.StatesJ()
+	if err != nil {
+		return err
+	}
+	if o.json {
+		return writeJSON(s.out, res)
+	}
+	fmt.Fprintf(s.out, "%s: %s\nJ-resolved states (K rotor active, J adiabatic): rho(E, J) = (2J+1)·rho_act(E − B·J(J+1)), W likewise; energies from each species' zero-point level.\n", n.Model.File, n.Model.Title)
+	for _, st := range res {
+		fmt.Fprintf(s.out, "\n%s: J rotor B = %s cm-1, %s cm-1 grains\n", st.Name, num(st.B), num(st.Grain))
+		header := []string{"E / cm-1", "rho_act / (cm-1)^-1"}
+		for _, j := range st.J {
+			header = append(header, fmt.Sprintf("rho(E,J=%d)", j), fmt.Sprintf("W(E,J=%d)", j))
+		}
+		var rows [][]string
+		every := max(1, int(math.Round(o.step.set.Cm1/st.Grain)))
+		for i := 0; i < len(st.Energies); i += every {
+			row := []string{numE(st.Energies[i]), num(st.ActiveDensity[i])}
+			for j := range st.J {
+				row = append(row, num(st.Density[j][i]), num(st.SumStates[j][i]))
+			}
+			rows = append(rows, row)
+		}
+		if err := renderTable(s.out, header, rows); err != nil {
 			return err
 		}
 	}

@@ -365,6 +365,20 @@ func fcentFigure(res *job.RatesResult) plots.Figure {
 // reactant's ρ(E) on the same grains, temps the grid temperatures.
 func microFigure(mc job.MicroChannel, energies, density, temps []float64) plots.Figure {
 	lo, hi := microRange(mc, energies, density, temps)
+	if len(mc.KJ) > 0 {
+		// Adiabatic J: k(E, J) at the reported J on the active energy.
+		f := plots.Figure{Title: "RRKM k(E, J)", XLabel: "active energy E / cm-1", YLabel: "k(E, J) / s-1", LogY: true}
+		for j, kj := range mc.KJ {
+			var e, k []float64
+			for i, x := range kj {
+				if x > 0 && mc.Energies[i] >= lo && mc.Energies[i] <= hi {
+					e, k = append(e, mc.Energies[i]), append(k, x)
+				}
+			}
+			f.Series = append(f.Series, plots.Series{Name: fmt.Sprintf("J = %d", mc.J[j]), X: e, Y: k, Group: j + 1})
+		}
+		return f
+	}
 	var e, k []float64
 	for i, x := range mc.K {
 		if x > 0 && mc.Energies[i] >= lo && mc.Energies[i] <= hi {

@@ -6,6 +6,7 @@ import (
 
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
 // Caution goes with every report of rate coefficients.
@@ -278,6 +279,14 @@ type MicroChannel struct {
 	// below E0; k_inf = k∞·κ(T)); "wigner" (k(E) without it, since Wigner's
 	// correction is thermal: k_inf and k_inf_integrated carry κ(T)).
 	Tunnelling string `json:"tunnelling"`
+	// Rotation is the treatment of the external rotation. With adiabatic
+	// J the energies are the active energy (vibrations, K rotor, torsions),
+	// K is k(E, J = 0), KJ[j] is k(E, J[j]) with its threshold E0J[j], and
+	// k_inf_integrated averages over E and the thermal J distribution.
+	Rotation string      `json:"external_rotation"`
+	J        []int       `json:"J,omitempty"`
+	E0J      []float64   `json:"E0_at_J_cm-1,omitempty"`
+	KJ       [][]float64 `json:"k_at_J_per_s,omitempty"`
 }
 
 // MicroResult is the result of Micro (the JSON of `falloff micro`).
@@ -296,6 +305,9 @@ const microNote = "energies from the reactant zero-point level; k in s-1; k_inf 
 // the TST check.
 func (cs *Counts) Micro() (*MicroResult, error) {
 	n, c := cs.n, cs.c
+	if r := n.Model.Reaction.Rotation; r == input.AdiabaticJ || r == input.AdiabaticJAveraged {
+		return cs.microAdiabatic()
+	}
 	mi := rrkm.RRKMTunnel(c.rc, c.tc, c.l, c.grains, c.channel.Eckart())
 	temps := n.Model.Temperatures
 	tunnel := c.channel.Tunnelling
@@ -303,7 +315,7 @@ func (cs *Counts) Micro() (*MicroResult, error) {
 		tunnel = input.NoTunnelling
 	}
 	mc := MicroChannel{Name: c.name, E0: c.ts.E0, L: c.l, Grain: c.grains.Width,
-		Energies: make([]float64, c.grains.N), K: mi.K, Temperatures: temps, Tunnelling: string(tunnel)}
+		Energies: make([]float64, c.grains.N), K: mi.K, Temperatures: temps, Tunnelling: string(tunnel), Rotation: n.RotationNote()}
 	for i := range mc.Energies {
 		mc.Energies[i] = c.grains.Energy(i)
 	}
@@ -321,4 +333,130 @@ func (cs *Counts) Micro() (*MicroResult, error) {
 		}
 	}
 	return &MicroResult{File: n.Model.File, Note: microNote, Caution: Caution, Channels: []MicroChannel{mc}}, nil
+}
+
+// MicroJs returns the J at which Micro reports k(E, J) for the J rotor jr:
+// 0 and 1, 2 and 3 times the most populated J at tK.
+func MicroJs(jr rrkm.JRotor, tK float64) []int {
+	if jr.B <= 0 {
+		return []int{0}
+	}
+	peak := max(1, int(math.Round(math.Sqrt(units.KT(tK)/(2*jr.B)))))
+	return []int{0, peak, 2 * peak, 3 * peak}
+}
+
+// microAdiabatic is Micro with adiabatic J: k(E, J) at a few J on the
+// active energy, and the TST check averaged over E and J.
+func (cs *Counts) microAdiabatic() (*MicroResult, error) {
+	n, c := cs.n, cs.c
+	m := n.Model
+	temps := m.Temperatures
+	ra, jr := rrkm.SplitExternalRotation(&c.reactant.Species)
+	tsa, jts := rrkm.SplitExternalRotation(&c.ts.Species)
+	top := c.grains.Top()
+	rc, err := rrkm.NewCounter(ra, m.EnergyGrid.Fine, top)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", m.File, err)
+	}
+	tc, err := rrkm.NewCounter(tsa, m.EnergyGrid.Fine, math.Max(top-c.ts.E0+rrkm.MaxJShift(jr, jts, temps[len(temps)-1]), m.EnergyGrid.Fine))
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", m.File, err)
+	}
+	tab := tc.NewSumTable(tc.Ceiling())
+	tunnel := c.channel.Tunnelling
+	if tunnel == "" {
+		tunnel = input.NoTunnelling
+	}
+	mc := MicroChannel{Name: c.name, E0: c.ts.E0, L: c.l, Grain: c.grains.Width,
+		Energies: make([]float64, c.grains.N), Temperatures: temps, Tunnelling: string(tunnel), Rotation: n.RotationNote(),
+		J: MicroJs(jr, temps[len(temps)/2])}
+	for i := range mc.Energies {
+		mc.Energies[i] = c.grains.Energy(i)
+	}
+	for _, j := range mc.J {
+		mi := rrkm.RRKMAtJ(rc, tc, c.l, c.grains, jr, jts, j)
+		mc.E0J = append(mc.E0J, mi.E0)
+		mc.KJ = append(mc.KJ, mi.K)
+	}
+	mc.K = mc.KJ[0]
+	for _, t := range temps {
+		kw := 1.0
+		if tunnel == input.Wigner {
+			kw = rrkm.Wigner(c.ts.Imaginary, t)
+		}
+		mc.KInf = append(mc.KInf, c.channel.KInf(&c.reactant.Species, t))
+		mc.KInfIntegrated = append(mc.KInfIntegrated, rrkm.RRKMAdiabatic(rc, tab, c.l, c.grains, jr, jts, t).ThermalK(t)*kw)
+	}
+	for _, xs := range append([][]float64{mc.KInf, mc.KInfIntegrated}, mc.KJ...) {
+		if err := finite("k", xs...); err != nil {
+			return nil, err
+		}
+	}
+	return &MicroResult{File: m.File, Note: microNote, Caution: Caution, Channels: []MicroChannel{mc}}, nil
+}
+
+// JStates are one species' J-resolved state counts for the adiabatic J
+// treatment, on the reporting grains (energies from its zero-point level):
+// the active density ρ_act(E) (vibrations, K rotor, torsions, electronic
+// levels) and, at each J, ρ(E, J) = (2J+1)·ρ_act(E − B̄J(J+1)) and
+// W(E, J) = (2J+1)·W_act(E − B̄J(J+1)), the 2J+1 being the degeneracy of the
+// space-fixed projection M (Holbrook, Pilling & Robertson 1996, §4.6).
+type JStates struct {
+	Name          string      `json:"name"`
+	B             float64     `json:"J_rotor_B_cm-1"`
+	Grain         float64     `json:"grain_cm-1"`
+	Energies      []float64   `json:"energies_cm-1"`
+	ActiveDensity []float64   `json:"active_density_per_cm-1"`
+	J             []int       `json:"J"`
+	Density       [][]float64 `json:"density_at_J_per_cm-1"`
+	SumStates     [][]float64 `json:"sum_of_states_at_J"`
+}
+
+// StatesJ returns the J-resolved counts of the reactant and the main
+// transition state at the J Micro reports (MicroJs at the middle
+// temperature of the file).
+func (cs *Counts) StatesJ() ([]JStates, error) {
+	n, c := cs.n, cs.c
+	m := n.Model
+	_, jr := rrkm.SplitExternalRotation(&c.reactant.Species)
+	js := MicroJs(jr, m.Temperatures[len(m.Temperatures)/2])
+	var out []JStates
+	for _, x := range []struct {
+		sp  *rrkm.Species
+		top float64
+	}{{&c.reactant.Species, c.grains.Top()}, {&c.ts.Species, c.tc.Ceiling()}} {
+		act, jrot := rrkm.SplitExternalRotation(x.sp)
+		g := rrkm.GrainsTo(c.grains.Width, x.top)
+		counter, err := rrkm.NewCounter(act, m.EnergyGrid.Fine, g.Top())
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", m.File, err)
+		}
+		st := JStates{Name: x.sp.Name, B: jrot.B, Grain: g.Width, Energies: make([]float64, g.N),
+			ActiveDensity: counter.Densities(g), J: js}
+		for i := range st.Energies {
+			st.Energies[i] = g.Energy(i)
+		}
+		for _, j := range js {
+			erot := jrot.Energy(j)
+			deg := float64(2*j + 1)
+			counts := counter.Counts(g, erot)
+			rho := make([]float64, g.N)
+			sums := make([]float64, g.N)
+			for i := range rho {
+				rho[i] = deg * counts[i] / g.Width
+				if e := g.Energy(i) - erot; e > 0 {
+					sums[i] = deg * counter.Sum(e)
+				}
+			}
+			st.Density = append(st.Density, rho)
+			st.SumStates = append(st.SumStates, sums)
+		}
+		for _, xs := range append(append([][]float64{st.ActiveDensity}, st.Density...), st.SumStates...) {
+			if err := finite(x.sp.Name+" J-resolved count", xs...); err != nil {
+				return nil, err
+			}
+		}
+		out = append(out, st)
+	}
+	return out, nil
 }
