@@ -546,13 +546,19 @@ func (p *prepared) rate(omega float64) (float64, error) {
 // to each channel's k(E) with the same slowest mode, so the shares sum to the
 // total; for a well resolved in J, the weighted sums over its components.
 func (p *prepared) rates(omega float64) (float64, []float64, error) {
+	return p.sum(func(w *Well, kernel *Kernel) (float64, []float64, error) { return p.rates1(w, kernel, omega) })
+}
+
+// sum returns f of the single component, or f's weighted sum over the J
+// components of a well resolved in J.
+func (p *prepared) sum(f func(w *Well, kernel *Kernel) (float64, []float64, error)) (float64, []float64, error) {
 	if len(p.more) == 0 {
-		return p.rates1(p.w, p.kernel, omega)
+		return f(p.w, p.kernel)
 	}
 	k := 0.0
 	var kc []float64
 	for _, c := range p.components() {
-		kq, kcq, err := p.rates1(c.w, c.kernel, omega)
+		kq, kcq, err := f(c.w, c.kernel)
 		if err != nil {
 			return 0, nil, err
 		}
@@ -596,25 +602,7 @@ func (p *prepared) rates1(w *Well, kernel *Kernel, omega float64) (float64, []fl
 // channel: in that limit a molecule that reaches a reactive grain reacts
 // there, by channel c with probability k_c(E)/k(E).
 func (p *prepared) k0PerOmega() (float64, []float64, error) {
-	if len(p.more) == 0 {
-		return p.k0PerOmega1(p.w, p.kernel)
-	}
-	k := 0.0
-	var kc []float64
-	for _, c := range p.components() {
-		kq, kcq, err := p.k0PerOmega1(c.w, c.kernel)
-		if err != nil {
-			return 0, nil, err
-		}
-		k += c.weight * kq
-		if kc == nil {
-			kc = make([]float64, len(kcq))
-		}
-		for i := range kcq {
-			kc[i] += c.weight * kcq[i]
-		}
-	}
-	return k, kc, nil
+	return p.sum(p.k0PerOmega1)
 }
 
 // k0PerOmega1 is k0PerOmega for one component.

@@ -1,6 +1,7 @@
 package qcread
 
 import (
+	"errors"
 	"fmt"
 	"math"
 )
@@ -74,4 +75,22 @@ func (f *Frequencies) SetModes(freqs []float64) error {
 	}
 	f.Vibrations, f.Imaginary, f.Dropped = vib, imag, dropped
 	return nil
+}
+
+// setModesAt is SetModes for a text reader: a *ModeError becomes a
+// *ReadError from fail, at the offending mode's line (lines[i] for mode i)
+// or, for the list as a whole, at line at.
+func (f *Frequencies) setModesAt(freqs []float64, lines []int, at int, fail func(int, string, string) error) error {
+	err := f.SetModes(freqs)
+	if err == nil {
+		return nil
+	}
+	var me *ModeError
+	if !errors.As(err, &me) {
+		return fail(at, err.Error(), "")
+	}
+	if me.Index >= 0 && me.Index < len(lines) {
+		return fail(lines[me.Index], me.What, me.Hint)
+	}
+	return fail(at, me.What, me.Hint)
 }

@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strconv"
 	"strings"
 )
@@ -78,14 +77,7 @@ type Printed struct {
 
 // ReadMoldenFile reads the frequency sections of the Molden file at path;
 // see ReadMolden.
-func ReadMoldenFile(path string) (*Frequencies, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("qcread: %w", err)
-	}
-	defer f.Close()
-	return ReadMolden(f, path)
-}
+func ReadMoldenFile(path string) (*Frequencies, error) { return readPath(path, ReadMolden) }
 
 type section struct {
 	header string // e.g. "[FREQ]" text after the bracket, like "AU"

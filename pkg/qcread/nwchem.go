@@ -6,7 +6,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"slices"
 	"strconv"
 	"strings"
@@ -49,14 +48,7 @@ func isNWChem(head []byte) bool {
 }
 
 // ReadNWChemFile reads the NWChem output at path; see ReadNWChem.
-func ReadNWChemFile(path string) (*Frequencies, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("qcread: %w", err)
-	}
-	defer f.Close()
-	return ReadNWChem(f, path)
-}
+func ReadNWChemFile(path string) (*Frequencies, error) { return readPath(path, ReadNWChem) }
 
 // ReadNWChem reads the output of an NWChem run with one "task scf freq" or
 // "task dft freq" (alone or after "task … optimize" or "saddle"); name is
@@ -263,15 +255,8 @@ func ReadNWChem(r io.Reader, name string) (*Frequencies, error) {
 		return nil, fail(atomsAt+1, fmt.Sprintf("geometry: %v", err), "")
 	}
 	out.Linear = g.Linear
-	if err := out.SetModes(freqs); err != nil {
-		var me *ModeError
-		if errors.As(err, &me) && me.Index >= 0 && me.Index < len(freqLines) {
-			return nil, fail(freqLines[me.Index], me.What, me.Hint)
-		}
-		if me != nil {
-			return nil, fail(start+1, me.What, me.Hint)
-		}
-		return nil, fail(start+1, err.Error(), "")
+	if err := out.setModesAt(freqs, freqLines, start+1, fail); err != nil {
+		return nil, err
 	}
 	return out, nil
 }

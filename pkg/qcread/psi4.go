@@ -7,7 +7,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"regexp"
 	"slices"
 	"strconv"
@@ -41,14 +40,7 @@ func isPsi4(head []byte) bool {
 }
 
 // ReadPsi4File reads the Psi4 output at path; see ReadPsi4.
-func ReadPsi4File(path string) (*Frequencies, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("qcread: %w", err)
-	}
-	defer f.Close()
-	return ReadPsi4(f, path)
-}
+func ReadPsi4File(path string) (*Frequencies, error) { return readPath(path, ReadPsi4) }
 
 // psi4Call finds the method of a frequency()/hessian() call in the input
 // echo, e.g. frequency('scf') or freq("b3lyp", dertype=1).
@@ -262,15 +254,8 @@ func ReadPsi4(r io.Reader, name string) (*Frequencies, error) {
 		return nil, fail(geomAt+1, fmt.Sprintf("geometry: %v", err), "")
 	}
 	out.Linear = g.Linear
-	if err := out.SetModes(freqs); err != nil {
-		var me *ModeError
-		if errors.As(err, &me) && me.Index >= 0 && me.Index < len(freqLines) {
-			return nil, fail(freqLines[me.Index], me.What, me.Hint)
-		}
-		if me != nil {
-			return nil, fail(vib+1, me.What, me.Hint)
-		}
-		return nil, fail(vib+1, err.Error(), "")
+	if err := out.setModesAt(freqs, freqLines, vib+1, fail); err != nil {
+		return nil, err
 	}
 	return out, nil
 }

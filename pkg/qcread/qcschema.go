@@ -30,7 +30,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"regexp"
 	"strings"
 	"unicode/utf8"
@@ -69,14 +68,7 @@ func isQCSchema(head []byte) bool {
 }
 
 // ReadQCSchemaFile reads the QCSchema result at path; see ReadQCSchema.
-func ReadQCSchemaFile(path string) (*Frequencies, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("qcread: %w", err)
-	}
-	defer f.Close()
-	return ReadQCSchema(f, path)
-}
+func ReadQCSchemaFile(path string) (*Frequencies, error) { return readPath(path, ReadQCSchema) }
 
 type qcsResult struct {
 	SchemaName *string                    `json:"schema_name"`

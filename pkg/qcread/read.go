@@ -112,3 +112,14 @@ func ReadFile(path, formatName string) (*Frequencies, string, error) {
 	}
 	return out, f.name, nil
 }
+
+// readPath opens path and reads it with read, path naming the file in
+// errors.
+func readPath(path string, read func(io.Reader, string) (*Frequencies, error)) (*Frequencies, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("qcread: %w", err)
+	}
+	defer f.Close()
+	return read(f, path)
+}

@@ -29,14 +29,7 @@ var xtbBenignWarnings = []string{
 
 // ReadXtbFile reads the stdout of an xtb --ohess run saved in the file at
 // path; see ReadXtb.
-func ReadXtbFile(path string) (*Frequencies, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("qcread: %w", err)
-	}
-	defer f.Close()
-	return ReadXtb(f, path)
-}
+func ReadXtbFile(path string) (*Frequencies, error) { return readPath(path, ReadXtb) }
 
 // ReadXtb reads the standard output of an xtb frequency calculation
 // (Bannwarth et al., WIREs Comput. Mol. Sci. 11, e01493, 2021), observed for
