@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"strconv"
 
 	"github.com/falloff-kinetics/falloff/pkg/job"
 )
@@ -40,10 +41,19 @@ func runStatesCmd(args []string, s streams) error {
 		fmt.Fprintf(s.out, "\n%s: states on %s cm-1 grains\n", st.Name, num(st.Grain))
 		rows = rows[:0]
 		every := max(1, int(math.Round(o.step.set.Cm1/st.Grain)))
+		header := []string{"E / cm-1", "ρ / (cm-1)^-1", "W"}
+		if st.Density == nil {
+			// Beyond the floating-point range: the powers of ten.
+			header = []string{"E / cm-1", "log10 ρ / (cm-1)^-1", "log10 W"}
+		}
 		for i := 0; i < len(st.Energies); i += every {
+			if st.Density == nil {
+				rows = append(rows, []string{numE(st.Energies[i]), log10Cell(st.Log10Density[i]), log10Cell(st.Log10SumStates[i])})
+				continue
+			}
 			rows = append(rows, []string{numE(st.Energies[i]), num(st.Density[i]), num(st.SumStates[i])})
 		}
-		if err := renderTable(s.out, []string{"E / cm-1", "ρ / (cm-1)^-1", "W"}, rows); err != nil {
+		if err := renderTable(s.out, header, rows); err != nil {
 			return err
 		}
 	}
@@ -85,4 +95,12 @@ func printStatesJ(o reportOptions, n *job.Network, s streams) error {
 		}
 	}
 	return nil
+}
+
+// log10Cell shows a log10 value, "-" for an empty grain (log10 0).
+func log10Cell(x float64) string {
+	if x <= -math.MaxFloat64 {
+		return "-"
+	}
+	return strconv.FormatFloat(x, 'f', 3, 64)
 }

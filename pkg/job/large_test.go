@@ -252,3 +252,38 @@ func TestLargeMoleculeBeyondRange(t *testing.T) {
 		t.Errorf("count to the %g K top, which the hint says fits: %v", fitsK, err)
 	}
 }
+
+// states on the 150-atom molecule at 2500 K, whose counts pass float64
+// (before, the Boltzmann sum of the counts came out NaN and states
+// failed): the partition function from the counts, summed in log space,
+// equals the analytic product of the factors (harmonic oscillators,
+// classical rotor; McQuarrie 1976) to the grain error of 10 cm⁻¹ grains,
+// (Δ/kT)²/8 ≤ 1.4e-4 at 300 K; the densities and sums are then reported
+// as powers of ten, all finite.
+func TestLargeMoleculeStates(t *testing.T) {
+	if testing.Short() {
+		t.Skip("counts a 150-atom molecule to 1e6 cm-1")
+	}
+	m, err := input.Parse("big150.yaml", largeInput(150, "{unit: K, values: [300, 2500]}", largePressures))
+	if err != nil {
+		t.Fatal(err)
+	}
+	n, err := New(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := n.States(ReportGrid{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, sp := range res.Species {
+		for _, q := range sp.Q {
+			if math.Abs(q.Counted/q.Q-1) > 2e-4 {
+				t.Errorf("%s at %g K: Q(counts)/Q = %.8f", sp.Name, q.T, q.Counted/q.Q)
+			}
+		}
+		if sp.Density != nil || len(sp.Log10Density) != len(sp.Energies) || len(sp.Log10SumStates) != len(sp.Energies) {
+			t.Errorf("%s: densities beyond float64 should be given as log10 only", sp.Name)
+		}
+	}
+}

@@ -153,6 +153,12 @@ type SpeciesStates struct {
 	Energies  []float64           `json:"energies_cm-1"`
 	Density   []float64           `json:"density_per_cm-1"`
 	SumStates []float64           `json:"sum_of_states"`
+	// Log10Density and Log10SumStates are given instead of Density and
+	// SumStates (then null) when some value lies beyond the floating-point
+	// range (a molecule of 100 atoms or more at the energies of its thermal
+	// distribution); an empty grain is then −1e308 (log10 of 0).
+	Log10Density   []float64 `json:"log10_density_per_cm-1,omitempty"`
+	Log10SumStates []float64 `json:"log10_sum_of_states,omitempty"`
 }
 
 // StatesResult is the result of States (the JSON of `falloff states`).
@@ -244,22 +250,34 @@ func (cs *Counts) States() (*StatesResult, error) {
 func statesOf(sp *rrkm.Species, c *rrkm.Counter, g rrkm.Grains, temps []float64) (SpeciesStates, error) {
 	out := SpeciesStates{Name: sp.Name, Grain: g.Width,
 		Density: c.Densities(g), SumStates: c.SumsAt(g), Energies: make([]float64, g.N)}
-	counts := c.Counts(g, 0)
+	if !allFinite(out.Density) || !allFinite(out.SumStates) {
+		out.Density, out.SumStates = nil, nil
+		out.Log10Density, out.Log10SumStates = c.Log10Densities(g), c.Log10SumsAt(g)
+		for _, xs := range [][]float64{out.Log10Density, out.Log10SumStates} {
+			for i, x := range xs {
+				if math.IsInf(x, -1) {
+					xs[i] = -math.MaxFloat64 // JSON has no −Inf: an empty grain
+				}
+			}
+		}
+	}
 	for i := range out.Energies {
 		out.Energies[i] = g.Energy(i)
 	}
 	for _, t := range temps {
+		// The Boltzmann sum over the counts in log space: the counts of a
+		// large molecule pass float64 where Q does not.
 		q := PartitionFunction{T: t, Q: sp.InternalQ(t), Vib: sp.VibrationalQ(t), Rot: sp.RotationalQ(t), El: sp.ElectronicQ(t), Hind: sp.HinderedQ(t),
-			Counted: rrkm.CountedQ(counts, g, t)}
+			Counted: math.Exp(c.LogCountedQ(g, t))}
 		if err := finite(sp.Name+" partition function", q.Q, q.Counted); err != nil {
 			return out, err
 		}
 		out.Q = append(out.Q, q)
 	}
-	if err := finite(sp.Name+" density", out.Density...); err != nil {
+	if err := finite(sp.Name+" density", append(out.Density, out.Log10Density...)...); err != nil {
 		return out, err
 	}
-	return out, finite(sp.Name+" sum of states", out.SumStates...)
+	return out, finite(sp.Name+" sum of states", append(out.SumStates, out.Log10SumStates...)...)
 }
 
 // MicroChannel is one channel's RRKM k(E) on the reporting grains, with
@@ -459,4 +477,13 @@ func (cs *Counts) StatesJ() ([]JStates, error) {
 		out = append(out, st)
 	}
 	return out, nil
+}
+
+func allFinite(xs []float64) bool {
+	for _, x := range xs {
+		if math.IsInf(x, 0) || math.IsNaN(x) {
+			return false
+		}
+	}
+	return true
 }

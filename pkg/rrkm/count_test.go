@@ -227,3 +227,20 @@ func TestNewCounterContextStops(t *testing.T) {
 		t.Error("the context changed the count")
 	}
 }
+
+// LogCountedQ is ln CountedQ where the latter is representable (an
+// independent summation in linear space), to rounding.
+func TestLogCountedQ(t *testing.T) {
+	r, _ := ch3ncPair()
+	c, err := NewCounter(r, 1, 40000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	g := GrainsTo(10, 39990)
+	for _, tK := range []float64{200, 1000, 3000} {
+		want := math.Log(CountedQ(c.Counts(g, 0), g, tK))
+		if got := c.LogCountedQ(g, tK); math.Abs(got-want) > 1e-12*math.Abs(want) {
+			t.Errorf("%g K: ln Q = %.15g, want %.15g", tK, got, want)
+		}
+	}
+}

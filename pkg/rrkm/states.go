@@ -178,3 +178,50 @@ func CountedQ(counts []float64, g Grains, tK float64) float64 {
 	}
 	return q
 }
+
+// LogCountedQ returns the natural logarithm of CountedQ of the counter's
+// grain counts on g at tK, formed in log space from the scaled counts, so
+// that it is finite for a molecule whose counts pass the floating-point
+// range (where Counts is +Inf) while its partition function does not.
+func (c *Counter) LogCountedQ(g Grains, tK float64) float64 {
+	counts := c.ScaledCounts(g, 0)
+	beta := 1 / kT(tK)
+	top := math.Inf(-1)
+	lw := make([]float64, len(counts))
+	for i, n := range counts {
+		lw[i] = math.Inf(-1)
+		if n > 0 {
+			lw[i] = math.Log(n) - beta*g.Energy(i)
+			top = math.Max(top, lw[i])
+		}
+	}
+	if math.IsInf(top, -1) {
+		return top
+	}
+	s := 0.0
+	for _, l := range lw {
+		s += math.Exp(l - top)
+	}
+	return top + math.Log(s) + float64(c.scale)*math.Ln2
+}
+
+// Log10Densities returns log10 of the grain-averaged density of states in
+// states per cm⁻¹ (−Inf for an empty grain), finite at any size.
+func (c *Counter) Log10Densities(g Grains) []float64 {
+	n := c.ScaledCounts(g, 0)
+	out := make([]float64, len(n))
+	for i, x := range n {
+		out[i] = (math.Log(x/g.Width) + float64(c.scale)*math.Ln2) / math.Ln10
+	}
+	return out
+}
+
+// Log10SumsAt returns log10 of SumsAt (−Inf where W = 0), finite at any size.
+func (c *Counter) Log10SumsAt(g Grains) []float64 {
+	c.need(g, 0)
+	out := make([]float64, g.N)
+	for i := range out {
+		out[i] = c.LogSum(g.Energy(i)) / math.Ln10
+	}
+	return out
+}
