@@ -42,7 +42,14 @@ func runCheckCmd(args []string, s streams) error {
 	if len(args) == 0 && !o.quiet && !o.json {
 		fmt.Fprintln(s.err, "falloff: no input file given; running the built-in demo (an invented molecule; see `falloff example`)")
 	}
-	n, err := loadNetwork(args, true, s)
+	m, err := loadModel(args, true, s)
+	if err != nil {
+		return err
+	}
+	if m.Network != nil {
+		return printNetworkSummary(s, m, o.json)
+	}
+	n, err := job.New(m)
 	if err != nil {
 		return err
 	}

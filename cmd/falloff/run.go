@@ -228,6 +228,16 @@ func parseAndLoad(fs *pflag.FlagSet, args []string, validate func([]string) erro
 // stderr unless quiet, and builds its network (job.New), which refuses what
 // any calculation would refuse of the file.
 func loadNetwork(args []string, quiet bool, s streams) (*job.Network, error) {
+	m, err := loadModel(args, quiet, s)
+	if err != nil {
+		return nil, err
+	}
+	return job.New(m)
+}
+
+// loadModel reads the file named in args, or the built-in demo, and prints
+// its warnings to stderr unless quiet (see loadNetwork).
+func loadModel(args []string, quiet bool, s streams) (*input.Model, error) {
 	var m *input.Model
 	var err error
 	switch len(args) {
@@ -249,5 +259,5 @@ func loadNetwork(args []string, quiet bool, s streams) (*job.Network, error) {
 			fmt.Fprintln(s.err, "warning:", w)
 		}
 	}
-	return job.New(m)
+	return m, nil
 }

@@ -11,3 +11,12 @@ const Name = "demo.yaml"
 //
 //go:embed demo.yaml
 var Text []byte
+
+// NetworkName is the file name the demo network reports as its source.
+const NetworkName = "network.yaml"
+
+// NetworkText is the demo network input: two invented wells, fragments and
+// a bimolecular source.
+//
+//go:embed network.yaml
+var NetworkText []byte

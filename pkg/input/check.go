@@ -39,10 +39,19 @@ func (p *parser) model(raw *rawFile) (*Model, error) {
 		return nil, err
 	}
 
+	p.inNetwork = raw.Network != nil
 	if m.Molecules, err = p.molecules(raw.Molecules); err != nil {
 		return nil, err
 	}
-	if m.Reaction, err = p.reaction(raw.Reaction, m.Molecules); err != nil {
+	if raw.Network != nil {
+		if raw.Reaction != nil {
+			return nil, p.errAt("reaction", p.index.byPath["reaction"], problemf("both reaction: and network: are given"),
+				"a file describes one well (reaction:) or a network of wells (network:); remove one")
+		}
+		if m.Network, err = p.network(raw.Network, m.Molecules); err != nil {
+			return nil, err
+		}
+	} else if m.Reaction, err = p.reaction(raw.Reaction, m.Molecules); err != nil {
 		return nil, err
 	}
 	if raw.Bath != nil {
@@ -65,7 +74,11 @@ func (p *parser) model(raw *rawFile) (*Model, error) {
 	if m.EnergyGrid, err = p.energyGrid(raw.EnergyGrid); err != nil {
 		return nil, err
 	}
-	if err := p.crossCheck(m, raw); err != nil {
+	if m.Network != nil {
+		if err := p.networkCrossCheck(m, raw); err != nil {
+			return nil, err
+		}
+	} else if err := p.crossCheck(m, raw); err != nil {
 		return nil, err
 	}
 	p.warnRenamed()
@@ -162,8 +175,13 @@ func (p *parser) crossCheck(m *Model, raw *rawFile) error {
 		return err
 	}
 	p.warnReducedTemperature(m)
-	// The fine grain must resolve every vibration (rrkm.NewCounter refuses
-	// a frequency below it).
+	return p.checkFineGrain(m)
+}
+
+// checkFineGrain refuses a fine grain that does not resolve every
+// vibration (rrkm.NewCounter refuses a frequency below it).
+func (p *parser) checkFineGrain(m *Model) error {
+	g := m.EnergyGrid
 	for _, mol := range m.Molecules {
 		for i, v := range mol.Vibrations {
 			if v >= g.Fine {
@@ -298,6 +316,8 @@ func (p *parser) warnOdd(m *Model) {
 		}
 		kcal := mol.E0 / units.Cm1PerKcalPerMol
 		switch {
+		case m.Network != nil:
+			// Measured from the reference well, not a barrier height.
 		case kcal > highBarrierKcal:
 			p.warn(path+".energy", "barrier E0 = %.4g kcal/mol is unusually large (above %g kcal/mol): check the unit", kcal, highBarrierKcal)
 		case kcal < lowBarrierKcal:
@@ -305,6 +325,9 @@ func (p *parser) warnOdd(m *Model) {
 		}
 	}
 
+	if m.Network != nil {
+		return
+	}
 	reactant, ts := m.ReactantAndTS()
 	if ts == nil {
 		return // a barrierless main channel: no transition state to compare
@@ -364,4 +387,27 @@ func modeText(mol *Molecule) string {
 		s += fmt.Sprintf(" (%d vibration%s, %d torsion%s)", v, plural(v), k, plural(k))
 	}
 	return s
+}
+
+// networkCrossCheck is crossCheck for a network: every well needs its mass
+// (the collision frequency), a pressure grid needs the bath and the
+// energy-transfer model, and a grid without pressures fits only Arrhenius.
+func (p *parser) networkCrossCheck(m *Model, raw *rawFile) error {
+	for _, w := range m.Network.Wells {
+		if m.Molecule(w.Name).Mass == 0 {
+			return p.missing("molecules."+w.Name+".mass", "a well's mass enters its collision frequency; give e.g. mass: 70.09 amu")
+		}
+	}
+	if m.Pressures != nil {
+		if raw.Bath == nil {
+			return p.missing("bath", "a pressure grid needs a bath gas, e.g. bath: {gas: Ar}")
+		}
+		if raw.EnergyTransfer == nil {
+			return p.missing("energy-transfer", "a pressure grid needs an energy-transfer model, e.g. energy-transfer: {model: exponential-down, alpha-300: 250 cm-1}")
+		}
+	}
+	if err := p.checkTorsions(m); err != nil {
+		return err
+	}
+	return p.checkFineGrain(m)
 }

@@ -66,7 +66,7 @@ var fuzzSeeds = []struct{ old, new string }{
 }
 
 // fuzzFiles are the real inputs, relative to this package's directory.
-var fuzzFiles = []string{"../../testdata/*.yaml", "../../internal/demo/demo.yaml"}
+var fuzzFiles = []string{"../../testdata/*.yaml", "../../internal/demo/demo.yaml", "../../internal/demo/network.yaml"}
 
 // FuzzParse checks Parse on arbitrary bytes and file names: it never
 // panics; an error is a *FieldError for the file given, with a one-line
@@ -190,6 +190,31 @@ func checkModel(t *testing.T, name string, data []byte, m *Model) {
 	}
 	checkAxis(t, "Pressures", m.Pressures)
 
+	if net := m.Network; net != nil {
+		// A network: the reference is a well at 0, every step starts from
+		// a well and ends at a well or fragment set, and no transition
+		// state lies below either end of its step.
+		if w := net.Well(net.Reference); w == nil || w.Energy != 0 {
+			t.Errorf("reference %q is not a well at energy 0", net.Reference)
+		}
+		for _, st := range net.Steps {
+			from, to := net.EnergyOf(st.From), net.EnergyOf(st.To)
+			if net.Well(st.From) == nil || math.IsNaN(to) {
+				t.Errorf("step %+v: unknown ends", st)
+			}
+			if ts := m.Molecule(st.Via); st.Barrierless == nil && (ts == nil || !ts.IsTS || ts.E0 < math.Max(from, to)) {
+				t.Errorf("step %+v: transition state missing or below an end", st)
+			}
+		}
+	} else {
+		checkReaction(t, m)
+	}
+	checkEnergyGridAndMolecules(t, m, name)
+}
+
+// checkReaction checks the one well's reaction of an accepted model.
+func checkReaction(t *testing.T, m *Model) {
+	t.Helper()
 	reactant, ts := m.ReactantAndTS()
 	switch {
 	case reactant == nil:
@@ -205,7 +230,11 @@ func checkModel(t *testing.T, name string, data []byte, m *Model) {
 	case ts != nil && (!ts.IsTS || ts.E0 < 0 || ts.Vibrations == nil):
 		t.Errorf("transition state %q: IsTS %v, E0 %v, %d vibrations", ts.Name, ts.IsTS, ts.E0, len(ts.Vibrations))
 	}
+}
 
+// checkEnergyGridAndMolecules is the rest of the accepted model's checks.
+func checkEnergyGridAndMolecules(t *testing.T, m *Model, name string) {
+	t.Helper()
 	g := m.EnergyGrid
 	if !(g.Fine > 0) || g.Grain < g.Fine || g.MEGrain < 0 || g.MEGrain > 0 && g.MEGrain < g.Fine || g.Ceiling < 0 {
 		t.Errorf("energy grid %+v: want 0 < fine ≤ grain, master-equation grain 0 or ≥ fine, ceiling ≥ 0", g)

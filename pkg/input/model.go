@@ -18,9 +18,13 @@ type Model struct {
 	File      string // name used in messages
 	Title     string
 	Molecules []*Molecule // in file order
-	Reaction  Reaction
-	Bath      Bath
-	Transfer  EnergyTransfer
+	// Reaction is the one well's reaction; empty when Network is set.
+	Reaction Reaction
+	// Network, if set, is the file's network of wells (network:), in place
+	// of Reaction.
+	Network  *Network
+	Bath     Bath
+	Transfer EnergyTransfer
 	// Temperatures are the grid temperatures in K, ascending.
 	Temperatures []float64
 	// Pressures are the grid pressures in Pa, ascending; nil if the file
@@ -312,11 +316,15 @@ func (m *Model) ReactantAndTS() (reactant, ts *Molecule) {
 // parser carries the file name, the node index and the warnings through
 // the checks.
 type parser struct {
-	file     string
-	data     []byte // the file's content, for messages about its lines
-	index    *nodeIndex
-	warnings []string
-	renames  []renameUse // old key names the file uses, for warnings
+	// network says the file has a network: section: transition-state
+	// energies are then measured from the reference well and may be
+	// negative.
+	inNetwork bool
+	file      string
+	data      []byte // the file's content, for messages about its lines
+	index     *nodeIndex
+	warnings  []string
+	renames   []renameUse // old key names the file uses, for warnings
 }
 
 // threshold is one channel's threshold energy, for checks.

@@ -69,12 +69,20 @@ func (p *parser) molecule(path, name string, r *rawMolecule) (*Molecule, error) 
 		if err != nil {
 			return nil, err
 		}
-		if e0 < 0 {
+		switch {
+		case e0 < 0 && !p.inNetwork:
 			return nil, p.errAt(path+".energy", &r.Energy, problemf("negative barrier"),
 				"energy is the zero-point-corrected barrier E0, measured from the reactant's zero-point level; a transition state cannot lie below it")
-		}
-		if err := p.threshold(path+".energy", &r.Energy, "E0", e0); err != nil {
-			return nil, err
+		case e0 < 0:
+			// In a network, measured from the reference well: it may lie
+			// below it if the step's wells do (Network checks).
+			if err := p.threshold(path+".energy", &r.Energy, "|energy|", -e0); err != nil {
+				return nil, err
+			}
+		default:
+			if err := p.threshold(path+".energy", &r.Energy, "E0", e0); err != nil {
+				return nil, err
+			}
 		}
 		m.E0 = e0
 	}

@@ -22,6 +22,7 @@ type rawFile struct {
 	Title          yaml.Node               `yaml:"title"`
 	Molecules      map[string]*rawMolecule `yaml:"molecules"`
 	Reaction       *rawReaction            `yaml:"reaction"`
+	Network        *rawNetwork             `yaml:"network"`
 	Bath           *rawBath                `yaml:"bath"`
 	EnergyTransfer *rawTransfer            `yaml:"energy-transfer"`
 	Grid           *rawGrid                `yaml:"grid"`
@@ -154,25 +155,33 @@ type rawEnergyGrid struct {
 // shapes describes each raw type for messages about a value of the wrong
 // kind: what the field should look like.
 var shapes = map[reflect.Type]string{
-	reflect.TypeFor[rawFile]():                 "a mapping of top-level keys (title, molecules, reaction, ...)",
-	reflect.TypeFor[map[string]*rawMolecule](): "a mapping from molecule names to molecules",
-	reflect.TypeFor[rawMolecule]():             "a mapping of molecule keys such as mass, vibrations, rotation",
-	reflect.TypeFor[rawList]():                 "a unit and a list of numbers, {unit: cm-1, values: [3010, 1450]}",
-	reflect.TypeFor[rawRotation]():             "a mapping such as {constants: {unit: cm-1, values: [A, B, C]}, symmetry: 1}",
-	reflect.TypeFor[[]*rawLevel]():             "a list of levels such as [{energy: 0 cm-1, degeneracy: 1}]",
-	reflect.TypeFor[rawLevel]():                "a level such as {energy: 0 cm-1, degeneracy: 1}",
-	reflect.TypeFor[rawLJ]():                   "a mapping such as {sigma: 5.0 angstrom, epsilon: 400 K}",
-	reflect.TypeFor[[]rawTorsion]():            "a list of torsions such as [{rotational-constant: 5.3 cm-1, barrier-height: 1000 cm-1, periodicity: 3}]",
-	reflect.TypeFor[rawTorsion]():              "a torsion such as {rotational-constant: 5.3 cm-1, barrier-height: 1000 cm-1, periodicity: 3}",
-	reflect.TypeFor[[]rawChannel]():            "a list of channels such as [{via: TS-NAME, products: [A, B]}]",
-	reflect.TypeFor[rawReaction]():             "a mapping such as {reactant: NAME, via: TS-NAME, products: [A, B]}",
-	reflect.TypeFor[rawChannel]():              "a mapping such as {via: TS-NAME, products: [A, B]}",
-	reflect.TypeFor[rawBarrierless]():          "a mapping such as {A: 1e15 s-1, T0: 300 K, n: 0.5, energy: 85 kcal/mol}",
-	reflect.TypeFor[rawBath]():                 "a mapping such as {gas: Ar}",
-	reflect.TypeFor[rawTransfer]():             "a mapping such as {model: exponential-down, alpha-300: 250 cm-1}",
-	reflect.TypeFor[rawGrid]():                 "a mapping with temperatures and, optionally, pressures",
-	reflect.TypeFor[rawRange]():                "{from: 300 K, to: 2500 K, points: 12} or {unit: K, values: [300, 400]}",
-	reflect.TypeFor[rawEnergyGrid]():           "a mapping such as {fine-grain: 1 cm-1, grain: 10 cm-1}",
+	reflect.TypeFor[rawFile]():                  "a mapping of top-level keys (title, molecules, reaction, ...)",
+	reflect.TypeFor[map[string]*rawMolecule]():  "a mapping from molecule names to molecules",
+	reflect.TypeFor[rawMolecule]():              "a mapping of molecule keys such as mass, vibrations, rotation",
+	reflect.TypeFor[rawList]():                  "a unit and a list of numbers, {unit: cm-1, values: [3010, 1450]}",
+	reflect.TypeFor[rawRotation]():              "a mapping such as {constants: {unit: cm-1, values: [A, B, C]}, symmetry: 1}",
+	reflect.TypeFor[[]*rawLevel]():              "a list of levels such as [{energy: 0 cm-1, degeneracy: 1}]",
+	reflect.TypeFor[rawLevel]():                 "a level such as {energy: 0 cm-1, degeneracy: 1}",
+	reflect.TypeFor[rawLJ]():                    "a mapping such as {sigma: 5.0 angstrom, epsilon: 400 K}",
+	reflect.TypeFor[[]rawTorsion]():             "a list of torsions such as [{rotational-constant: 5.3 cm-1, barrier-height: 1000 cm-1, periodicity: 3}]",
+	reflect.TypeFor[rawTorsion]():               "a torsion such as {rotational-constant: 5.3 cm-1, barrier-height: 1000 cm-1, periodicity: 3}",
+	reflect.TypeFor[[]rawChannel]():             "a list of channels such as [{via: TS-NAME, products: [A, B]}]",
+	reflect.TypeFor[rawReaction]():              "a mapping such as {reactant: NAME, via: TS-NAME, products: [A, B]}",
+	reflect.TypeFor[rawChannel]():               "a mapping such as {via: TS-NAME, products: [A, B]}",
+	reflect.TypeFor[rawBarrierless]():           "a mapping such as {A: 1e15 s-1, T0: 300 K, n: 0.5, energy: 85 kcal/mol}",
+	reflect.TypeFor[rawNetwork]():               "a mapping such as {reference: A, wells: {A: {}, B: {energy: -4 kcal/mol}}, steps: [{from: A, to: B, via: TS-AB}]}",
+	reflect.TypeFor[map[string]*rawNetWell]():   "a mapping from well names to {energy: E}, such as {A: {}, B: {energy: -4 kcal/mol}}",
+	reflect.TypeFor[rawNetWell]():               "a mapping such as {energy: -4.5 kcal/mol}",
+	reflect.TypeFor[map[string]*rawFragments](): "a mapping from names to fragment sets, such as {P1_P2: {species: [P1, P2], energy: 12 kcal/mol}}",
+	reflect.TypeFor[rawFragments]():             "a mapping such as {species: [P1, P2], energy: 12 kcal/mol}",
+	reflect.TypeFor[[]rawStep]():                "a list of steps such as [{from: A, to: B, via: TS-AB}]",
+	reflect.TypeFor[rawStep]():                  "a mapping such as {from: A, to: B, via: TS-AB}",
+	reflect.TypeFor[rawSource]():                "a mapping such as {fragments: P1_P2, into: A}",
+	reflect.TypeFor[rawBath]():                  "a mapping such as {gas: Ar}",
+	reflect.TypeFor[rawTransfer]():              "a mapping such as {model: exponential-down, alpha-300: 250 cm-1}",
+	reflect.TypeFor[rawGrid]():                  "a mapping with temperatures and, optionally, pressures",
+	reflect.TypeFor[rawRange]():                 "{from: 300 K, to: 2500 K, points: 12} or {unit: K, values: [300, 400]}",
+	reflect.TypeFor[rawEnergyGrid]():            "a mapping such as {fine-grain: 1 cm-1, grain: 10 cm-1}",
 }
 
 // shapeByName finds a raw type by the name the YAML decoder prints for it.

@@ -1,0 +1,89 @@
+package main
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+
+	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/job"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// printNetworkSummary is check on a file with a network: the wells,
+// fragment sets and steps, and the energy levels drawn as text.
+func printNetworkSummary(s streams, m *input.Model, asJSON bool) error {
+	rep := job.SummariseNetwork(m)
+	if asJSON {
+		return writeJSON(s.out, rep)
+	}
+	kcal := func(e float64) string { return fmt.Sprintf("%.2f", e/units.Cm1PerKcalPerMol) }
+	frag := map[string]job.NetworkFragment{}
+	for _, f := range rep.Fragments {
+		frag[f.Name] = f
+	}
+	label := func(name string) string {
+		if f, ok := frag[name]; ok {
+			return strings.Join(f.Species, " + ")
+		}
+		return name
+	}
+	fmt.Fprintf(s.out, "%s: %s\nnetwork of %d wells, %d fragment sets, %d steps; energies in kcal/mol, zero-point corrected, from the zero-point level of %s\n\n",
+		rep.File, rep.Title, len(rep.Wells), len(rep.Fragments), len(rep.Steps), rep.Reference)
+	fmt.Fprintln(s.out, "steps:")
+	for _, st := range rep.Steps {
+		arrow := "↔"
+		if st.ToFragments {
+			arrow = "→"
+		}
+		how := fmt.Sprintf("via %s at %s", st.Via, kcal(st.Barrier))
+		if st.Barrierless {
+			how = fmt.Sprintf("barrierless, k∞ with %s above %s", kcal(st.BarrierlessEnergy), st.From)
+		}
+		fmt.Fprintf(s.out, "  %s %s %s  (%s)\n", st.From, arrow, label(st.To), how)
+	}
+	if src := rep.Source; src != nil {
+		fmt.Fprintf(s.out, "  source: %s → %s (association; chemically activated rates)\n", label(src.Fragments), src.Into)
+	}
+
+	// The energy levels, highest first.
+	type level struct {
+		e    float64
+		mark string
+		text string
+	}
+	var levels []level
+	for _, w := range rep.Wells {
+		text := w.Name + " (well"
+		if w.Name == rep.Reference {
+			text += ", reference"
+		}
+		levels = append(levels, level{w.Energy, "═══", text + ")"})
+	}
+	for _, f := range rep.Fragments {
+		levels = append(levels, level{f.Energy, "───", label(f.Name) + " (fragments)"})
+	}
+	for _, st := range rep.Steps {
+		if !st.Barrierless {
+			arrow := "↔"
+			if st.ToFragments {
+				arrow = "→"
+			}
+			levels = append(levels, level{st.Barrier, " ╳ ", fmt.Sprintf("%s (%s %s %s)", st.Via, st.From, arrow, label(st.To))})
+		}
+	}
+	sort.SliceStable(levels, func(i, j int) bool { return levels[i].e > levels[j].e })
+	fmt.Fprintln(s.out, "\nenergy levels / kcal/mol:")
+	for _, l := range levels {
+		fmt.Fprintf(s.out, "  %9s  %s %s\n", kcal(l.e), l.mark, l.text)
+	}
+	fmt.Fprintf(s.out, "\nnote: %s.\n", rep.Note)
+	if len(rep.Warnings) == 0 {
+		fmt.Fprintln(s.out, "no warnings")
+	}
+	for _, w := range rep.Warnings {
+		fmt.Fprintln(s.out, "warning:", w)
+	}
+	_, err := fmt.Fprintln(s.out, "\n"+job.Caution)
+	return err
+}
