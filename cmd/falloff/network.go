@@ -87,3 +87,76 @@ func printNetworkSummary(s streams, m *input.Model, asJSON bool) error {
 	_, err := fmt.Fprintln(s.out, "\n"+job.Caution)
 	return err
 }
+
+// runNetworkRates is rates on a network file: the phenomenological rate
+// coefficients at every (T, P), as tables or JSON. Fits, mechanism files
+// and figures are not yet made for a network; asking for them is refused.
+func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
+	if o.out != "" || o.plots != "" || o.csv {
+		return usagef("a network's rates are printed (tables or --json); --out, --plots and --csv are not yet available for a network")
+	}
+	bar := newProgress(s, "network master equation", len(m.Temperatures), o.quiet || o.json)
+	res, err := job.NetworkRates(s.ctx, m, bar.step)
+	bar.finish()
+	if err != nil {
+		return err
+	}
+	if o.json {
+		return writeJSON(s.out, res)
+	}
+	d := o.disp
+	fmt.Fprintf(s.out, "%s: %s\nnetwork of %d wells; %s.\n", res.File, m.Title, len(res.Wells), res.Note)
+	header := []string{"T / K", "P / " + d.Pressure}
+	for _, from := range res.Wells {
+		for _, to := range res.Wells {
+			if to != from {
+				header = append(header, fmt.Sprintf("%s→%s", from, to))
+			}
+		}
+		for _, p := range res.Products {
+			header = append(header, fmt.Sprintf("%s→%s", from, p))
+		}
+	}
+	header = append(header, "separation")
+	var rows [][]string
+	for i, t := range res.Temperatures {
+		for j, p := range res.Pressures {
+			row := []string{num(t), num(d.P(p))}
+			k, kx := res.K[i][j], res.KProducts[i][j]
+			for a := range res.Wells {
+				for b := range res.Wells {
+					if a == b {
+						continue
+					}
+					if k == nil {
+						row = append(row, "-")
+					} else {
+						row = append(row, num(k[b][a]))
+					}
+				}
+				for x := range res.Products {
+					if kx == nil {
+						row = append(row, "-")
+					} else {
+						row = append(row, num(kx[x][a]))
+					}
+				}
+			}
+			if k == nil {
+				row = append(row, "refused")
+			} else {
+				row = append(row, num(res.Separation[i][j]))
+			}
+			rows = append(rows, row)
+		}
+	}
+	fmt.Fprintln(s.out, "\nrate coefficients / s-1 (a well's own loss is the sum of its columns):")
+	if err := renderTable(s.out, header, rows); err != nil {
+		return err
+	}
+	for at, why := range res.Refused {
+		fmt.Fprintf(s.out, "refused at %s: %s\n", at, why)
+	}
+	_, err = fmt.Fprintln(s.out, "\n"+job.Caution)
+	return err
+}

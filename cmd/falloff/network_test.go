@@ -12,9 +12,8 @@ import (
 
 // example --network prints the demo network; check summarises it (the
 // steps and the energy levels, highest first, in kcal/mol from the
-// reference) and --json carries the same; a calculation on it is refused
-// with one line naming the network section (the master equation of a
-// network is issue 18's next step).
+// reference) and --json carries the same; a one-well calculation on it is
+// refused with one line naming the network section.
 func TestNetworkCheck(t *testing.T) {
 	code, out, _ := runCLI(t, "example", "--network")
 	if code != exitOK || out != string(demo.NetworkText) {
@@ -34,9 +33,9 @@ func TestNetworkCheck(t *testing.T) {
 			t.Errorf("check output lacks %q:\n%s", want, out)
 		}
 	}
-	// Levels highest first: ring-b + H (70), scission-TS (38.5), closure-TS
+	// Levels highest first: ring-b + H (40), scission-TS (38.5), closure-TS
 	// (24), frag-a + frag-b (22), chain (0), ring (−12).
-	order := []string{"70.00", "38.50", "24.00", "22.00", "0.00", "-12.00"}
+	order := []string{"40.00", "38.50", "24.00", "22.00", "0.00", "-12.00"}
 	last := -1
 	for _, o := range order {
 		i := strings.Index(out, "  "+o+"  ")
@@ -57,7 +56,8 @@ func TestNetworkCheck(t *testing.T) {
 		t.Errorf("check --json: exit %d, %+v", code, rep)
 	}
 	checkFailures(t, []failCase{
-		{"rates on a network", []string{"rates", file}, exitInput, "network: a network of several wells"},
-		{"micro on a network", []string{"micro", file}, exitInput, "check` summarises the network"},
+		{"micro on a network", []string{"micro", file}, exitInput, "network: a network of several wells"},
+		{"compare on a network", []string{"compare", file}, exitInput, "rates` gives its rate coefficients"},
+		{"rates --out on a network", []string{"rates", "--out", t.TempDir(), file}, exitUsage, "not yet available for a network"},
 	})
 }

@@ -127,7 +127,18 @@ func runRatesCmd(args []string, s streams) error {
 			"  falloff rates ring.yaml --csv > grid.csv\n"+
 			"  falloff rates ring.yaml --json > rates.json", s)
 	o.addFlags(fs)
-	n, err := parseAndLoad(fs, args, o.validate, func() bool { return o.quiet || o.json || o.csv }, s)
+	args, err := parseVerb(fs, args, o.validate)
+	if err != nil {
+		return err
+	}
+	m, err := loadModel(args, o.quiet || o.json || o.csv, s)
+	if err != nil {
+		return err
+	}
+	if m.Network != nil {
+		return runNetworkRates(o, m, s)
+	}
+	n, err := job.New(m)
 	if err != nil {
 		return err
 	}

@@ -69,7 +69,7 @@ func TestNetworkRefused(t *testing.T) {
 		{"reference not a well", "reference: chain", "reference: scission", "network.reference", "not one of the wells"},
 		{"reference energy", "    chain: {}", "    chain: {energy: 1 kcal/mol}", "network.wells.chain.energy", "not 0"},
 		{"step from fragments", "{from: chain, to: scission, via: scission-TS}", "{from: scission, to: chain, via: scission-TS}", "network.steps[1].from", "not one of the wells"},
-		{"barrierless below the fragments", "energy: 82.0 kcal/mol}", "energy: 60.0 kcal/mol}", "network.steps[2].barrierless.energy", "below the fragments"},
+		{"barrierless below the fragments", "energy: 52.0 kcal/mol}", "energy: 50.0 kcal/mol}", "network.steps[2].barrierless.energy", "below the fragments"},
 		{"fragment set named like a molecule", "    scission: {species", "    ring: {species", "network.fragments.ring", "name of a molecule"},
 		{"no steps", "  steps:\n", "  old-steps:\n", "network.old-steps", ""},
 	}

@@ -22,6 +22,12 @@ type BathInfo struct {
 // collision rate constant, from the built-in table unless the file overrides
 // them or gives the rate constant itself.
 func collider(m *input.Model) (collision.Collider, BathInfo, error) {
+	r, _ := m.ReactantAndTS()
+	return colliderWith(m, r)
+}
+
+// colliderWith is collider for the molecule r colliding with the bath gas.
+func colliderWith(m *input.Model, r *input.Molecule) (collision.Collider, BathInfo, error) {
 	b := m.Bath
 	info := BathInfo{Gas: b.Gas, Mass: b.Mass, Source: "input file"}
 	if b.CollisionRate > 0 {
@@ -46,7 +52,6 @@ func collider(m *input.Model) (collision.Collider, BathInfo, error) {
 		return collision.Collider{}, info, m.FieldError("bath.mass", fmt.Errorf("missing: no mass for bath gas %q", b.Gas), "give bath.mass, e.g. 28.01 amu")
 	}
 	info.Sigma, info.Eps = lj.Sigma, lj.Epsilon
-	r, _ := m.ReactantAndTS()
 	if r.LJ == nil {
 		return collision.Collider{}, info, m.FieldError("molecules."+r.Name+".lennard-jones",
 			errors.New("missing: the collision rate with the bath gas needs the reactant's Lennard-Jones parameters"),

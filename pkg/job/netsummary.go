@@ -49,7 +49,7 @@ type NetworkStep struct {
 
 // networkNote says what the summary is and what is not yet computed.
 const networkNote = "energies zero-point corrected, from the reference well's zero-point level; " +
-	"the master equation of a network is not yet available in this version"
+	"`falloff rates` gives the phenomenological rate coefficients (no fits, mechanism files or source yet)"
 
 // SummariseNetwork describes the network of m (m.Network must be set).
 func SummariseNetwork(m *input.Model) *NetworkSummary {

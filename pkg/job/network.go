@@ -367,10 +367,10 @@ func (n *Network) errBarrierless() error {
 		Hint: "run rates for the barrierless channel's k(T,P)"}
 }
 
-// ErrNetworkNotSolved is the error of a calculation asked of a file with a
-// network: section: the network's master equation is not yet part of the
-// job (issue 18). check summarises such a file.
+// ErrNetworkNotSolved is the error of a one-well calculation asked of a
+// file with a network: section: check summarises such a file and rates
+// computes it (NetworkRates); the other verbs are for one well.
 func ErrNetworkNotSolved(m *input.Model) error {
-	return m.FieldError("network", errors.New("a network of several wells is read and checked, but its master equation is not yet available in this version"),
-		"`falloff check` summarises the network; rates, compare, states, micro and thermo take a one-well file (reaction:)")
+	return m.FieldError("network", errors.New("a network of several wells: only check and rates take it in this version"),
+		"`falloff check` summarises the network and `falloff rates` gives its rate coefficients; compare, states, micro and thermo take a one-well file (reaction:)")
 }

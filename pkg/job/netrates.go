@@ -1,0 +1,231 @@
+package job
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+
+	"github.com/falloff-kinetics/falloff/pkg/collision"
+	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/network"
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
+)
+
+// NetworkRatesResult holds the phenomenological rate coefficients of a
+// network of wells on the file's grid (the JSON of `rates` on a network
+// file). K[iT][iP][j][i] is k(i→j) between wells in s⁻¹ (the diagonal minus
+// the total loss of well i), KProducts[iT][iP][x][i] is k(i→x) to the
+// fragment set x. A point whose chemically significant eigenvalues are not
+// separated from the relaxation (or are lost in rounding) has nil there
+// and its reason in Refused.
+type NetworkRatesResult struct {
+	File         string            `json:"file"`
+	Wells        []string          `json:"wells"`
+	Products     []string          `json:"products"`
+	Temperatures []float64         `json:"temperatures_K"`
+	Pressures    []float64         `json:"pressures_Pa"`
+	K            [][][][]float64   `json:"k_wells_per_s"`
+	KProducts    [][][][]float64   `json:"k_products_per_s"`
+	Separation   [][]float64       `json:"separation"`
+	Balance      [][]float64       `json:"detailed_balance_departure"`
+	Equilibrium  [][]float64       `json:"equilibrium_fractions"`
+	Refused      map[string]string `json:"refused,omitempty"`
+	Grain        []float64         `json:"grain_cm-1"`
+	Ceiling      []float64         `json:"ceiling_cm-1"`
+	Note         string            `json:"note"`
+	Caution      string            `json:"caution"`
+}
+
+// networkNoteRates says what NetworkRates computes and leaves out.
+const networkNoteRates = "phenomenological rate coefficients from the chemically significant eigenpairs of the " +
+	"network's master equation, solved densely; the collision frequency is the reference well's with the bath gas; " +
+	"every rotation active; the source (chemical activation), fits and mechanism files are not yet computed"
+
+// networkCeilingKT is how far above the highest threshold of the network
+// the energy grid reaches, in kT: the single-well default (common practice,
+// no source).
+const networkCeilingKT = 40
+
+// NetworkRates solves the master equation of the network of m at every
+// (T, P) of its grid. Every rotation is active, one grid (the single-well
+// default grain at each temperature) holds all wells from the lowest
+// well's zero-point level, and every well collides with the bath gas at the
+// reference well's Lennard-Jones rate. progress, if set, is called after
+// each temperature.
+func NetworkRates(ctx context.Context, m *input.Model, progress func()) (*NetworkRatesResult, error) {
+	net := m.Network
+	if net == nil {
+		return nil, errors.New("job: NetworkRates on a file without network:")
+	}
+	if len(m.Pressures) == 0 {
+		return nil, &input.FieldError{File: m.File, Path: "grid.pressures", Err: errors.New("missing: a network's rate coefficients need a pressure grid"),
+			Hint: "add pressures: {from: 0.01 bar, to: 100 bar, points: 9}"}
+	}
+	ref := m.Molecule(net.Reference)
+	col, _, err := colliderWith(m, ref)
+	if err != nil {
+		return nil, err
+	}
+	tr := transfer(m)
+	zero := math.Inf(1) // the lowest well's energy: the grid's zero
+	for _, w := range net.Wells {
+		zero = math.Min(zero, w.Energy)
+	}
+	top := math.Inf(-1) // the highest threshold above the grid's zero
+	for _, st := range net.Steps {
+		switch {
+		case st.Barrierless != nil:
+			top = math.Max(top, net.EnergyOf(st.From)+st.Barrierless.Energy-zero)
+		default:
+			top = math.Max(top, m.Molecule(st.Via).E0-zero)
+		}
+	}
+	res := &NetworkRatesResult{File: m.File, Temperatures: m.Temperatures, Pressures: m.Pressures,
+		Refused: map[string]string{}, Note: networkNoteRates, Caution: Caution}
+	for _, w := range net.Wells {
+		res.Wells = append(res.Wells, w.Name)
+	}
+	for _, tK := range m.Temperatures {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		grain := collision.GrainFor(tr, tK)
+		g := rrkm.GrainsTo(grain, top+networkCeilingKT*units.KT(tK))
+		if len(net.Wells)*g.N > network.MaxGrains {
+			return nil, m.FieldError("network", fmt.Errorf("%d wells on %d grains of %.3g cm-1 at %g K: more than the %d grains the dense solver takes", len(net.Wells), g.N, g.Width, tK, network.MaxGrains),
+				"fewer wells or a narrower temperature range; the banded solver is to come")
+		}
+		nw, err := buildNetwork(m, g, zero, tr)
+		if err != nil {
+			return nil, err
+		}
+		var kT, kP [][][]float64
+		var sep, bal, eq []float64
+		for _, pPa := range m.Pressures {
+			omega := col.Z(tK) * collision.Concentration(pPa, tK)
+			r, err := network.Solve(nw, tK, omega, network.Options{})
+			var se *network.SeparationError
+			var pe *network.PrecisionError
+			switch {
+			case errors.As(err, &se), errors.As(err, &pe):
+				res.Refused[fmt.Sprintf("%g K, %g Pa", tK, pPa)] = err.Error()
+				kT, kP = append(kT, nil), append(kP, nil)
+				sep, bal = append(sep, math.NaN()), append(bal, math.NaN())
+				continue
+			case err != nil:
+				return nil, &NumericalError{Err: fmt.Errorf("network at %g K, %g Pa: %w", tK, pPa, err)}
+			}
+			if res.Products == nil {
+				res.Products = r.Exits
+			}
+			kT, kP = append(kT, r.K), append(kP, r.KExit)
+			sep, bal, eq = append(sep, r.Separation), append(bal, r.Balance), r.Equilibrium
+		}
+		res.K, res.KProducts = append(res.K, kT), append(res.KProducts, kP)
+		res.Separation, res.Balance, res.Equilibrium = append(res.Separation, sep), append(res.Balance, bal), append(res.Equilibrium, eq)
+		res.Grain, res.Ceiling = append(res.Grain, g.Width), append(res.Ceiling, g.Top()+zero)
+		if progress != nil {
+			progress()
+		}
+	}
+	// JSON has no NaN: a refused point's separation and balance are -1.
+	for _, xs := range append(append([][]float64{}, res.Separation...), res.Balance...) {
+		for i, x := range xs {
+			if math.IsNaN(x) {
+				xs[i] = -1
+			}
+		}
+	}
+	return res, nil
+}
+
+// buildNetwork counts the wells' states and every step's k(E) on the
+// common grains g (energies from zero, the lowest well).
+func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Transfer) (*network.Network, error) {
+	net := m.Network
+	fine := m.EnergyGrid.Fine
+	nw := &network.Network{Grains: g}
+	counters := map[string]*rrkm.Counter{}
+	index := map[string]int{}
+	offset := func(name string) float64 { return net.EnergyOf(name) - zero }
+	for i, w := range net.Wells {
+		sp := &m.Molecule(w.Name).Species
+		c, err := rrkm.NewCounter(sp, fine, math.Max(g.Top()-offset(w.Name), fine))
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", m.File, err)
+		}
+		counters[w.Name], index[w.Name] = c, i
+		nw.Wells = append(nw.Wells, network.Well{Name: w.Name, Counts: c.ScaledCounts(g, offset(w.Name)), CountScale: c.Scale(), Transfer: tr})
+	}
+	for _, st := range net.Steps {
+		from := counters[st.From]
+		counts := from.Counts(g, offset(st.From))
+		k := make([]float64, g.N)
+		name := st.To
+		if st.ToFragments {
+			name = productName(net, st.To)
+		}
+		if st.Barrierless != nil {
+			if err := iltOnGrid(k, from, st.Barrierless, g, offset(st.From)); err != nil {
+				return nil, fmt.Errorf("%s: step %s → %s: %w", m.File, st.From, st.To, err)
+			}
+		} else {
+			ts := m.Molecule(st.Via)
+			e0 := ts.E0 - zero
+			tc, err := rrkm.NewCounter(&ts.Species, fine, math.Max(g.Top()-e0, fine))
+			if err != nil {
+				return nil, fmt.Errorf("%s: %w", m.File, err)
+			}
+			l := rrkm.PathDegeneracy(&m.Molecule(st.From).Species, &ts.Species)
+			sums := tc.AveragedSums(g, e0)
+			for i, n := range counts {
+				if n > 0 && sums[i] > 0 {
+					k[i] = l * units.LightCm * sums[i] * g.Width / n
+				}
+			}
+		}
+		if st.ToFragments {
+			nw.Exits = append(nw.Exits, network.Exit{Name: name, Well: index[st.From], K: k})
+		} else {
+			nw.Isomerisations = append(nw.Isomerisations, network.Isomerisation{Name: st.Via, From: index[st.From], To: index[st.To], K: k})
+		}
+	}
+	return nw, nil
+}
+
+// productName names a fragment set's products in equations: A + B.
+func productName(net *input.Network, set string) string {
+	f := net.FragmentSet(set)
+	s := ""
+	for i, x := range f.Species {
+		if i > 0 {
+			s += " + "
+		}
+		s += x
+	}
+	return s
+}
+
+// iltOnGrid fills k with the barrierless k(E) of the well counted by c, by
+// the inverse Laplace transform of its k∞ (rrkm.ILTMicro) on the well's own
+// grains of width g.Width/4, interpolated linearly in energy onto the
+// common grains g, on which the well's zero lies at off.
+func iltOnGrid(k []float64, c *rrkm.Counter, b *input.Barrierless, g rrkm.Grains, off float64) error {
+	own := rrkm.GrainsTo(g.Width/4, math.Max(c.Ceiling()-g.Width, g.Width))
+	mi, err := rrkm.ILTMicro(c, rrkm.ILT{A: b.A, T0: b.T0, N: b.N, EInf: b.Energy}, own)
+	if err != nil {
+		return err
+	}
+	for i := range k {
+		x := (g.Energy(i) - off) / own.Width
+		j := int(math.Floor(x))
+		if j < 0 || j+1 >= len(mi.K) {
+			continue
+		}
+		f := x - float64(j)
+		k[i] = mi.K[j]*(1-f) + mi.K[j+1]*f
+	}
+	return nil
+}

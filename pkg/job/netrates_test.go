@@ -1,0 +1,139 @@
+package job
+
+import (
+	"context"
+	"math"
+	"strings"
+	"testing"
+
+	"github.com/falloff-kinetics/falloff/internal/demo"
+	"github.com/falloff-kinetics/falloff/pkg/input"
+)
+
+// A network of one well with one exit to fragments is the one-well
+// problem: its phenomenological k(well → fragments) equals the one-well
+// master equation's k(T,P) of the same molecules (the CH3NC validation
+// data, exponential-down in Ar), at 800 and 1200 K, 0.01–100 bar. Measured
+// 2.1e-5 at most; tolerance 1e-4 for the grid conventions the two paths do
+// not yet share (the one-well grid puts a grain edge on E0 and weights each
+// grain by its exact in-grain Boltzmann sum; the network's grid starts at
+// the lowest well and weights by the plain counts), both grain-level
+// effects. Issue 18 asks 1e-10 once the conventions are shared.
+func TestNetworkOneWellEqualsSingleWell(t *testing.T) {
+	body := `molecules:
+  CH3NC:
+    mass: 41.0265 amu
+    vibrations: {unit: cm-1, values: [278.6, 278.6, 969.7, 1162.4, 1162.4, 1481.5, 1517.0, 1517.0, 2249.9, 3064.2, 3138.0, 3138.0]}
+    rotation: {constants: {unit: cm-1, values: [5.27235, 0.333999, 0.333999]}, symmetry: 3}
+    lennard-jones: {sigma: 4.47 angstrom, epsilon: 380 K}
+  TS:
+    energy: 38.0989 kcal/mol
+    imaginary-frequency: 440.4 cm-1
+    vibrations: {unit: cm-1, values: [208.6, 621.9, 999.6, 1002.0, 1350.0, 1492.8, 1506.8, 2020.7, 3113.7, 3204.7, 3245.0]}
+    rotation: {constants: {unit: cm-1, values: [1.35081, 0.526916, 0.409692]}, symmetry: 1}
+bath: {gas: Ar}
+energy-transfer: {model: exponential-down, alpha-300: 300 cm-1}
+grid:
+  temperatures: {unit: K, values: [800, 1200]}
+  pressures: {unit: bar, values: [0.01, 1, 100]}
+`
+	netFile := "title: one-well network\n" + body + `network:
+  reference: CH3NC
+  wells: {CH3NC: {}}
+  fragments: {iso: {species: [CH3CN], energy: -24.18585 kcal/mol}}
+  steps: [{from: CH3NC, to: iso, via: TS}]
+`
+	oneFile := "title: one well\n" + body + "reaction: {reactant: CH3NC, via: TS, products: [CH3CN]}\n"
+	mn, err := input.Parse("net.yaml", []byte(netFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	net, err := NetworkRates(context.Background(), mn, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mo, err := input.Parse("one.yaml", []byte(oneFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	n, err := New(mo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	one, err := n.Rates(context.Background(), Options{SkipCheck: true, SkipHeldOut: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	worst := 0.0
+	for i := range one.Temperatures {
+		for j := range one.Pressures {
+			if net.KProducts[i][j] == nil {
+				t.Fatalf("%g K, %g Pa refused: %v", one.Temperatures[i], one.Pressures[j], net.Refused)
+			}
+			got, want := net.KProducts[i][j][0][0], one.K[i][j]
+			worst = math.Max(worst, math.Abs(got/want-1))
+			if math.Abs(got/want-1) > 1e-4 {
+				t.Errorf("%g K, %g Pa: network k = %.8g, one well %.8g", one.Temperatures[i], one.Pressures[j], got, want)
+			}
+		}
+	}
+	t.Logf("worst relative difference %.2g", worst)
+}
+
+// The demo network's rate coefficients (invented data) keep the laws of a
+// rate matrix at every point it does not refuse: population is conserved
+// (a well's loss, −K[i][i], is the sum of its rates to the other wells and
+// to the products, 1e-9), and chain ⇌ ring obeys detailed balance with the
+// equilibrium fractions, k(chain→ring)·x_chain = k(ring→chain)·x_ring,
+// within the departure the solver reports (Balance) plus 1e-6. The refused
+// points name the reason.
+func TestNetworkDemoRates(t *testing.T) {
+	if testing.Short() {
+		t.Skip("16 dense network solves")
+	}
+	m, err := input.Parse(demo.NetworkName, demo.NetworkText)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := NetworkRates(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	solved := 0
+	for i := range res.Temperatures {
+		for j := range res.Pressures {
+			k, kx := res.K[i][j], res.KProducts[i][j]
+			if k == nil {
+				continue
+			}
+			solved++
+			for w := range res.Wells {
+				out := 0.0
+				for v := range res.Wells {
+					if v != w {
+						out += k[v][w]
+					}
+				}
+				for x := range res.Products {
+					out += kx[x][w]
+				}
+				if math.Abs(out+k[w][w]) > 1e-9*math.Abs(k[w][w]) {
+					t.Errorf("point %d,%d well %s: loss %g, outflows %g", i, j, res.Wells[w], -k[w][w], out)
+				}
+			}
+			x := res.Equilibrium[i]
+			f, r := k[1][0]*x[0], k[0][1]*x[1]
+			if math.Abs(f-r) > (res.Balance[i][j]+1e-6)*math.Max(f, r) {
+				t.Errorf("point %d,%d: k_f x_chain = %g, k_r x_ring = %g", i, j, f, r)
+			}
+		}
+	}
+	if solved == 0 {
+		t.Fatal("every point refused")
+	}
+	for at, why := range res.Refused {
+		if !strings.Contains(why, "separation") && !strings.Contains(why, "rounding") {
+			t.Errorf("refused at %s without a reason: %s", at, why)
+		}
+	}
+}
