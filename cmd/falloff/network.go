@@ -96,7 +96,7 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 		return usagef("a network's rates are printed (tables or --json); --out, --plots and --csv are not yet available for a network")
 	}
 	bar := newProgress(s, "network master equation", len(m.Temperatures), o.quiet || o.json)
-	res, err := job.NetworkRates(s.ctx, m, bar.step)
+	res, err := job.NetworkRates(s.ctx, m, bar.step, o.workLimit.Seconds())
 	bar.finish()
 	if err != nil {
 		return err

@@ -43,6 +43,10 @@ const networkNoteRates = "phenomenological rate coefficients from the chemically
 	"network's master equation, solved densely; the collision frequency is the reference well's with the bath gas; " +
 	"every rotation active; the source (chemical activation), fits and mechanism files are not yet computed"
 
+// denseSecondsPerGrain3 is the CPU time of one dense network solve per
+// grain cubed, s (0.8 s for 777 grains on the 2-core CI machine).
+const denseSecondsPerGrain3 = 1.7e-9
+
 // networkCeilingKT is how far above the highest threshold of the network
 // the energy grid reaches, in kT: the single-well default (common practice,
 // no source).
@@ -54,7 +58,7 @@ const networkCeilingKT = 40
 // well's zero-point level, and every well collides with the bath gas at the
 // reference well's Lennard-Jones rate. progress, if set, is called after
 // each temperature.
-func NetworkRates(ctx context.Context, m *input.Model, progress func()) (*NetworkRatesResult, error) {
+func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimit float64) (*NetworkRatesResult, error) {
 	net := m.Network
 	if net == nil {
 		return nil, errors.New("job: NetworkRates on a file without network:")
@@ -81,6 +85,22 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func()) (*Networ
 		default:
 			top = math.Max(top, m.Molecule(st.Via).E0-zero)
 		}
+	}
+	// The work before any: a dense symmetric eigensolve of n grains costs
+	// about denseSecondsPerGrain3·n³ (measured: 777 grains in 0.8 s,
+	// pkg/network BenchmarkSolveDense), once per (T, P).
+	if workLimit <= 0 {
+		workLimit = DefaultWorkLimit
+	}
+	est := 0.0
+	for _, tK := range m.Temperatures {
+		n := float64(len(net.Wells) * rrkm.GrainsTo(collision.GrainFor(tr, tK), top+networkCeilingKT*units.KT(tK)).N)
+		est += float64(len(m.Pressures)) * denseSecondsPerGrain3 * n * n * n
+	}
+	if est > workLimit {
+		return nil, m.FieldError("grid", fmt.Errorf("the network's master equation over %d temperatures × %d pressures would take about %s of CPU time; the limit is %s",
+			len(m.Temperatures), len(m.Pressures), duration(est), duration(workLimit)),
+			"use fewer temperatures or pressures, or raise the limit with --work-limit")
 	}
 	res := &NetworkRatesResult{File: m.File, Temperatures: m.Temperatures, Pressures: m.Pressures,
 		Refused: map[string]string{}, Note: networkNoteRates, Caution: Caution}

@@ -48,7 +48,7 @@ grid:
 	if err != nil {
 		t.Fatal(err)
 	}
-	net, err := NetworkRates(context.Background(), mn, nil)
+	net, err := NetworkRates(context.Background(), mn, nil, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -95,7 +95,7 @@ func TestNetworkDemoRates(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	res, err := NetworkRates(context.Background(), m, nil)
+	res, err := NetworkRates(context.Background(), m, nil, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -135,5 +135,18 @@ func TestNetworkDemoRates(t *testing.T) {
 		if !strings.Contains(why, "separation") && !strings.Contains(why, "rounding") {
 			t.Errorf("refused at %s without a reason: %s", at, why)
 		}
+	}
+}
+
+// The work is estimated before any and refused beyond the limit, with the
+// flag that raises it.
+func TestNetworkWorkLimit(t *testing.T) {
+	m, err := input.Parse(demo.NetworkName, demo.NetworkText)
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = NetworkRates(context.Background(), m, nil, 1e-3)
+	if err == nil || !strings.Contains(err.Error(), "--work-limit") || !strings.Contains(err.Error(), "CPU time") {
+		t.Errorf("1 ms limit: %v", err)
 	}
 }
