@@ -3,7 +3,6 @@ package qcread
 import (
 	"bytes"
 	"context"
-	"errors"
 	"math"
 	"os"
 	"os/exec"
@@ -303,9 +302,7 @@ func nwLastStepEnergy(t *testing.T, text string) float64 {
 func TestReadNWChemRefuses(t *testing.T) {
 	good := p4Read(t, nwPath("water_freq_only.out"))
 	cut := func(s, from string) string { return s[:strings.Index(s, from)] }
-	cases := []struct {
-		name, text, want string
-	}{
+	cases := []refusal{
 		{"water_opt_fail.out", "", "NWChem stopped with an error: scf optimize failed"},
 		{"water_opt_ignored.out", "", "a task failed and the run went on (!! warning: scf optimize failed)"},
 		{"water_freq_only_truncated.out", "", "no closing \"Total times\" line"},
@@ -318,25 +315,7 @@ func TestReadNWChemRefuses(t *testing.T) {
 		{"not-nwchem", p4Read(t, p4Path("water.out")), "no NWChem banner"},
 		{"empty", "", "no NWChem banner"},
 	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			var f *Frequencies
-			var err error
-			if strings.HasSuffix(tc.name, ".out") {
-				f, err = ReadNWChemFile(nwPath(tc.name))
-			} else {
-				f, err = ReadNWChem(strings.NewReader(tc.text), tc.name)
-			}
-			var re *ReadError
-			if err == nil || !errors.As(err, &re) || f != nil {
-				t.Fatalf("got %v, %v; want a *ReadError", f, err)
-			}
-			msg := err.Error()
-			if !strings.Contains(msg, tc.want) || !strings.Contains(msg, tc.name) || strings.ContainsAny(msg, "\n\r") {
-				t.Errorf("error %q: want one line naming %q and containing %q", msg, tc.name, tc.want)
-			}
-		})
-	}
+	checkRefusals(t, cases, nwPath, ReadNWChemFile, ReadNWChem)
 }
 
 // TestReadNWChemLive reruns testdata/nwchem/water_freq_only.nw (HF/6-31G*

@@ -284,9 +284,7 @@ func TestPublishedHCN(t *testing.T) {
 func TestReadPsi4Refuses(t *testing.T) {
 	good := p4Read(t, p4Path("water_freq_only.out"))
 	cut := func(s, from string) string { return s[:strings.Index(s, from)] }
-	cases := []struct {
-		name, text, want string
-	}{
+	cases := []refusal{
 		{"water_opt_fail.out", "", "Psi4 stopped with an error: Could not converge geometry optimization in 2 iterations"},
 		{"water_freq_only_truncated.out", "", "no \"Psi4 exiting successfully\" line"},
 		{"water_two_freqs.out", "", "2 harmonic vibrational analyses"},
@@ -300,25 +298,7 @@ func TestReadPsi4Refuses(t *testing.T) {
 		{"not-psi4", p4Read(t, filepath.Join("testdata", "nwchem", "water.out")), "no Psi4 banner"},
 		{"empty", "", "no Psi4 banner"},
 	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			var f *Frequencies
-			var err error
-			if strings.HasSuffix(tc.name, ".out") {
-				f, err = ReadPsi4File(p4Path(tc.name))
-			} else {
-				f, err = ReadPsi4(strings.NewReader(tc.text), tc.name)
-			}
-			var re *ReadError
-			if err == nil || !errors.As(err, &re) || f != nil {
-				t.Fatalf("got %v, %v; want a *ReadError", f, err)
-			}
-			msg := err.Error()
-			if !strings.Contains(msg, tc.want) || !strings.Contains(msg, tc.name) || strings.ContainsAny(msg, "\n\r") {
-				t.Errorf("error %q: want one line naming %q and containing %q", msg, tc.name, tc.want)
-			}
-		})
-	}
+	checkRefusals(t, cases, p4Path, ReadPsi4File, ReadPsi4)
 }
 
 // TestDetectPsi4NWChem checks isPsi4 and isNWChem on the first 64 KiB of
