@@ -2,8 +2,12 @@ package main
 
 import (
 	"fmt"
+	"path/filepath"
 	"sort"
 	"strings"
+
+	"github.com/falloff-kinetics/falloff/pkg/export"
+	"github.com/falloff-kinetics/falloff/pkg/fit"
 
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/job"
@@ -92,8 +96,15 @@ func printNetworkSummary(s streams, m *input.Model, asJSON bool) error {
 // coefficients at every (T, P), as tables or JSON. Fits, mechanism files
 // and figures are not yet made for a network; asking for them is refused.
 func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
-	if o.out != "" || o.plots != "" || o.csv {
-		return usagef("a network's rates are printed (tables or --json); --out, --plots and --csv are not yet available for a network")
+	if o.plots != "" || o.csv {
+		return usagef("a network's rates are printed (tables or --json) or written with --out; --plots and --csv are not yet available for a network")
+	}
+	var set export.FileSet
+	defer set.Release()
+	if o.out != "" {
+		if err := set.ReserveFolder(o.out); err != nil {
+			return err
+		}
 	}
 	bar := newProgress(s, "network master equation", len(m.Temperatures), o.quiet || o.json)
 	res, err := job.NetworkRates(s.ctx, m, bar.step, o.workLimit.Seconds())
@@ -101,8 +112,29 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 	if err != nil {
 		return err
 	}
+	chs := res.FitNetwork(m, o.tolerancePct/100)
+	var written []string
+	if o.out != "" {
+		u, err := export.ParseUnits(o.energyUnit, string(o.disp.Quantity.Quantity))
+		if err != nil {
+			return usagef("%v", err)
+		}
+		y, txt, err := res.NetworkMechanismFiles(m, chs, u, o.writeFailed)
+		if err != nil {
+			return err
+		}
+		set.Add(filepath.Join(o.out, "reactions.yaml"), y)
+		set.Add(filepath.Join(o.out, "reactions.txt"), txt)
+		if written, err = set.Commit(s.ctx); err != nil {
+			return err
+		}
+	}
 	if o.json {
-		return writeJSON(s.out, res)
+		return writeJSON(s.out, struct {
+			*job.NetworkRatesResult
+			Channels []job.NetworkChannel `json:"channels"`
+			Written  []string             `json:"files_written,omitempty"`
+		}{res, chs, written})
 	}
 	d := o.disp
 	fmt.Fprintf(s.out, "%s: %s\nnetwork of %d wells; %s.\n", res.File, m.Title, len(res.Wells), res.Note)
@@ -156,6 +188,19 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 	}
 	for at, why := range res.Refused {
 		fmt.Fprintf(s.out, "refused at %s: %s\n", at, why)
+	}
+	fmt.Fprintln(s.out, "\nfits (PLOG and Chebyshev, on the points not refused):")
+	for _, ch := range chs {
+		switch {
+		case ch.Written:
+			rep := ch.Fits.Reports()[fit.FormName(ch.Recommended)]
+			fmt.Fprintf(s.out, "  %s -> %s: %s, max error %.3g %% on %d points\n", ch.From, strings.Join(ch.Products, " + "), ch.Recommended, rep.MaxErrorPct, ch.Points)
+		default:
+			fmt.Fprintf(s.out, "  %s -> %s: not written: %s\n", ch.From, strings.Join(ch.Products, " + "), ch.WhyNot)
+		}
+	}
+	for _, w := range written {
+		fmt.Fprintln(s.out, "wrote", w)
 	}
 	_, err = fmt.Fprintln(s.out, "\n"+job.Caution)
 	return err

@@ -7,6 +7,8 @@ import (
 	"strings"
 	"testing"
 
+	"go.yaml.in/yaml/v3"
+
 	"github.com/falloff-kinetics/falloff/internal/demo"
 )
 
@@ -58,6 +60,77 @@ func TestNetworkCheck(t *testing.T) {
 	checkFailures(t, []failCase{
 		{"micro on a network", []string{"micro", file}, exitInput, "network: a network of several wells"},
 		{"compare on a network", []string{"compare", file}, exitInput, "rates` gives its rate coefficients"},
-		{"rates --out on a network", []string{"rates", "--out", t.TempDir(), file}, exitUsage, "not yet available for a network"},
+		{"rates --plots on a network", []string{"rates", "--plots", t.TempDir(), file}, exitUsage, "not yet available for a network"},
 	})
+}
+
+// rates --out on a network writes the mechanism files of the rate
+// coefficients whose fits pass: here a one-well network (the CH3NC
+// validation molecules, 4 × 9 points, 3 % tolerance), whose one entry,
+// CH3NC <=> CH3CN, is read back by the YAML library.
+func TestNetworkRatesOut(t *testing.T) {
+	if testing.Short() {
+		t.Skip("36 network solves and their fits, about 20 s")
+	}
+	src := `title: one-well network (CH3NC validation molecules)
+molecules:
+  CH3NC:
+    mass: 41.0265 amu
+    vibrations: {unit: cm-1, values: [278.6, 278.6, 969.7, 1162.4, 1162.4, 1481.5, 1517.0, 1517.0, 2249.9, 3064.2, 3138.0, 3138.0]}
+    rotation: {constants: {unit: cm-1, values: [5.27235, 0.333999, 0.333999]}, symmetry: 3}
+    lennard-jones: {sigma: 4.47 angstrom, epsilon: 380 K}
+  TS:
+    energy: 38.0989 kcal/mol
+    imaginary-frequency: 440.4 cm-1
+    vibrations: {unit: cm-1, values: [208.6, 621.9, 999.6, 1002.0, 1350.0, 1492.8, 1506.8, 2020.7, 3113.7, 3204.7, 3245.0]}
+    rotation: {constants: {unit: cm-1, values: [1.35081, 0.526916, 0.409692]}, symmetry: 1}
+network:
+  reference: CH3NC
+  wells: {CH3NC: {}}
+  fragments: {iso: {species: [CH3CN], energy: -24.18585 kcal/mol}}
+  steps: [{from: CH3NC, to: iso, via: TS}]
+bath: {gas: Ar}
+energy-transfer: {model: exponential-down, alpha-300: 300 cm-1}
+grid:
+  temperatures: {from: 800 K, to: 1200 K, points: 4}
+  pressures: {from: 0.1 bar, to: 10 bar, points: 9}
+`
+	dir := t.TempDir()
+	file := filepath.Join(dir, "net.yaml")
+	if err := os.WriteFile(file, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "out")
+	code, js, errs := runCLI(t, "rates", "-q", "--json", "--tolerance", "3", "--out", out, file)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var res struct {
+		KProducts [][][][]float64 `json:"k_products_per_s"`
+		Channels  []struct {
+			Written     bool   `json:"written"`
+			Recommended string `json:"recommended"`
+		} `json:"channels"`
+	}
+	if err := json.Unmarshal([]byte(js), &res); err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Channels) != 1 || !res.Channels[0].Written {
+		t.Fatalf("channels %+v", res.Channels)
+	}
+	y, err := os.ReadFile(filepath.Join(out, "reactions.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc struct {
+		Reactions []struct {
+			Equation string `yaml:"equation"`
+		} `yaml:"reactions"`
+	}
+	if err := yaml.Unmarshal(y, &doc); err != nil || len(doc.Reactions) != 1 || doc.Reactions[0].Equation != "CH3NC <=> CH3CN" {
+		t.Fatalf("reactions.yaml: %v, %+v", err, doc.Reactions)
+	}
+	if _, err := os.Stat(filepath.Join(out, "reactions.txt")); err != nil {
+		t.Error(err)
+	}
 }

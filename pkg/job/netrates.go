@@ -41,7 +41,7 @@ type NetworkRatesResult struct {
 // networkNoteRates says what NetworkRates computes and leaves out.
 const networkNoteRates = "phenomenological rate coefficients from the chemically significant eigenpairs of the " +
 	"network's master equation, solved densely; the collision frequency is the reference well's with the bath gas; " +
-	"every rotation active; the source (chemical activation), fits and mechanism files are not yet computed"
+	"every rotation active; the source (chemical activation) is not yet computed"
 
 // denseSecondsPerGrain3 is the CPU time of one dense network solve per
 // grain cubed, s (0.8 s for 777 grains on the 2-core CI machine).
