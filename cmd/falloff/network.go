@@ -6,6 +6,7 @@ import (
 	"sort"
 	"strings"
 
+	"github.com/falloff-kinetics/falloff/internal/figures"
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 
@@ -96,13 +97,16 @@ func printNetworkSummary(s streams, m *input.Model, asJSON bool) error {
 // coefficients at every (T, P), as tables or JSON. Fits, mechanism files
 // and figures are not yet made for a network; asking for them is refused.
 func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
-	if o.plots != "" || o.csv {
-		return usagef("a network's rates are printed (tables or --json) or written with --out; --plots and --csv are not yet available for a network")
+	if o.csv {
+		return usagef("a network's rates are printed (tables or --json) or written with --out and --plots; --csv is not yet available for a network")
 	}
 	var set export.FileSet
 	defer set.Release()
-	if o.out != "" {
-		if err := set.ReserveFolder(o.out); err != nil {
+	for _, dir := range []string{o.out, o.plots} {
+		if dir == "" {
+			continue
+		}
+		if err := set.ReserveFolder(dir); err != nil {
 			return err
 		}
 	}
@@ -125,6 +129,17 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 		}
 		set.Add(filepath.Join(o.out, "reactions.yaml"), y)
 		set.Add(filepath.Join(o.out, "reactions.txt"), txt)
+	}
+	if o.plots != "" {
+		figs, err := figures.Network(res, o.disp.Units)
+		if err != nil {
+			return err
+		}
+		for _, f := range figs {
+			set.Add(filepath.Join(o.plots, f.Name), f.Data)
+		}
+	}
+	if o.out != "" || o.plots != "" {
 		if written, err = set.Commit(s.ctx); err != nil {
 			return err
 		}

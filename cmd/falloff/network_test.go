@@ -60,7 +60,7 @@ func TestNetworkCheck(t *testing.T) {
 	checkFailures(t, []failCase{
 		{"micro on a network", []string{"micro", file}, exitInput, "network: a network of several wells"},
 		{"compare on a network", []string{"compare", file}, exitInput, "rates` gives its rate coefficients"},
-		{"rates --plots on a network", []string{"rates", "--plots", t.TempDir(), file}, exitUsage, "not yet available for a network"},
+		{"rates --csv on a network", []string{"rates", "--csv", file}, exitUsage, "not yet available for a network"},
 	})
 }
 
@@ -101,7 +101,8 @@ grid:
 		t.Fatal(err)
 	}
 	out := filepath.Join(dir, "out")
-	code, js, errs := runCLI(t, "rates", "-q", "--json", "--tolerance", "3", "--out", out, file)
+	plotsDir := filepath.Join(dir, "plots")
+	code, js, errs := runCLI(t, "rates", "-q", "--json", "--tolerance", "3", "--out", out, "--plots", plotsDir, file)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -130,7 +131,9 @@ grid:
 	if err := yaml.Unmarshal(y, &doc); err != nil || len(doc.Reactions) != 1 || doc.Reactions[0].Equation != "CH3NC <=> CH3CN" {
 		t.Fatalf("reactions.yaml: %v, %+v", err, doc.Reactions)
 	}
-	if _, err := os.Stat(filepath.Join(out, "reactions.txt")); err != nil {
-		t.Error(err)
+	for _, f := range []string{filepath.Join(out, "reactions.txt"), filepath.Join(plotsDir, "populations.svg"), filepath.Join(plotsDir, "k-vs-P.svg")} {
+		if _, err := os.Stat(f); err != nil {
+			t.Error(err)
+		}
 	}
 }

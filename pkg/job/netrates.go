@@ -22,6 +22,7 @@ import (
 // and its reason in Refused.
 type NetworkRatesResult struct {
 	File         string            `json:"file"`
+	Reference    string            `json:"reference"`
 	Wells        []string          `json:"wells"`
 	Products     []string          `json:"products"`
 	Temperatures []float64         `json:"temperatures_K"`
@@ -102,7 +103,7 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 			len(m.Temperatures), len(m.Pressures), duration(est), duration(workLimit)),
 			"use fewer temperatures or pressures, or raise the limit with --work-limit")
 	}
-	res := &NetworkRatesResult{File: m.File, Temperatures: m.Temperatures, Pressures: m.Pressures,
+	res := &NetworkRatesResult{File: m.File, Reference: net.Reference, Temperatures: m.Temperatures, Pressures: m.Pressures,
 		Refused: map[string]string{}, Note: networkNoteRates, Caution: Caution}
 	for _, w := range net.Wells {
 		res.Wells = append(res.Wells, w.Name)
