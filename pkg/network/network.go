@@ -17,6 +17,9 @@ type Network struct {
 	Wells          []Well
 	Isomerisations []Isomerisation
 	Exits          []Exit
+	// Sources are bimolecular sources (source.go); Solve reports their
+	// yields in Result.Sources.
+	Sources []Source
 }
 
 // Well is one potential well of a network.
@@ -190,7 +193,7 @@ func (n *Network) validate() error {
 			}
 		}
 	}
-	return nil
+	return n.validateSources() // source.go
 }
 
 // countRatio returns N_a/N_b on grain i, both nonzero.

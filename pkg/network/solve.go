@@ -63,6 +63,9 @@ type Result struct {
 	// reactive fluxes (see rates) and were measured 3 to 3000 times more
 	// precise than this bound for one well; it is the bound Solve checks.
 	Roundoff float64
+	// Sources holds the yields of each of Network.Sources, in order
+	// (source.go); nil without sources.
+	Sources []SourceResult
 }
 
 // ErrNotSeparated marks chemically significant eigenvalues that do not stand
@@ -213,6 +216,12 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 	}
 	if err := rates(n, l, &vecs, cols, fl, res); err != nil {
 		return nil, err
+	}
+	// The bimolecular sources' yields (source.go).
+	if len(n.Sources) > 0 {
+		if err := sources(n, l, vals, &vecs, cols, res); err != nil {
+			return nil, err
+		}
 	}
 	return res, nil
 }
