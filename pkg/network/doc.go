@@ -47,7 +47,13 @@
 // eigenvalues lie below the rounding of the dense solve, as they do at low
 // temperature (ε·‖S‖ against eigenvalues 1e-15 of ω and less).
 //
-// Not yet here: the banded solver, bimolecular sources (association into a
-// well, chemical activation), angular-momentum resolution, and the input
-// and job wiring.
+// Bimolecular sources (Network.Sources, source.go): fragments associating
+// into a well through one of its exits read backwards, with the
+// chemical-activation distribution a(E) ∝ k(E)·N(E)·e^(−E/kT); Solve gives
+// per captured molecule the yields stabilised in each well and carried to
+// each product (redissociation included), summing to 1, so that the
+// bimolecular rate coefficients are k_capture·yield.
+//
+// Not yet here: the banded solver and angular-momentum resolution. pkg/job
+// (NetworkRates) builds the networks from input files.
 package network
