@@ -204,6 +204,47 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 	for at, why := range res.Refused {
 		fmt.Fprintf(s.out, "refused at %s: %s\n", at, why)
 	}
+	if src := res.Source; src != nil {
+		fmt.Fprintf(s.out, "\nsource %s -> %s: yields per captured molecule (stabilised in each well; carried to each product, back to %s included):\n", src.Fragments, src.Into, src.Fragments)
+		yh := []string{"T / K", "P / " + d.Pressure}
+		for _, w := range res.Wells {
+			yh = append(yh, "into "+w)
+		}
+		for _, p := range res.Products {
+			yh = append(yh, "to "+p)
+		}
+		if src.KCapture != nil {
+			yh = append(yh, "k_capture / cm3 molecule-1 s-1")
+		}
+		var yr [][]string
+		for i, t := range res.Temperatures {
+			for j, p := range res.Pressures {
+				row := []string{num(t), num(d.P(p))}
+				if src.Stabilised[i][j] == nil {
+					for range len(res.Wells) + len(res.Products) {
+						row = append(row, "-")
+					}
+				} else {
+					for _, y := range src.Stabilised[i][j] {
+						row = append(row, num(y))
+					}
+					for _, y := range src.Activated[i][j] {
+						row = append(row, num(y))
+					}
+				}
+				if src.KCapture != nil {
+					row = append(row, num(src.KCapture[i][j]))
+				}
+				yr = append(yr, row)
+			}
+		}
+		if err := renderTable(s.out, yh, yr); err != nil {
+			return err
+		}
+		if src.KCapture == nil {
+			fmt.Fprintln(s.out, "(no capture rate constant: describe every fragment species under molecules to have K_c, and the bimolecular rate coefficients k_capture × yield)")
+		}
+	}
 	fmt.Fprintln(s.out, "\nfits (PLOG and Chebyshev, on the points not refused):")
 	for _, ch := range chs {
 		switch {

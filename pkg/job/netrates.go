@@ -33,16 +33,38 @@ type NetworkRatesResult struct {
 	Balance      [][]float64       `json:"detailed_balance_departure"`
 	Equilibrium  [][]float64       `json:"equilibrium_fractions"`
 	Refused      map[string]string `json:"refused,omitempty"`
-	Grain        []float64         `json:"grain_cm-1"`
-	Ceiling      []float64         `json:"ceiling_cm-1"`
-	Note         string            `json:"note"`
-	Caution      string            `json:"caution"`
+	// Source, if the network has one, holds per (T, P) the yields per
+	// captured molecule: Stabilised[iT][iP][w] in each well and
+	// Activated[iT][iP][x] carried to each product (redissociation to the
+	// source's fragments included), summing to 1.
+	Source  *NetworkSource `json:"source,omitempty"`
+	Grain   []float64      `json:"grain_cm-1"`
+	Ceiling []float64      `json:"ceiling_cm-1"`
+	Note    string         `json:"note"`
+	Caution string         `json:"caution"`
+}
+
+// NetworkSource is the bimolecular source of a network result.
+type NetworkSource struct {
+	Fragments  string        `json:"fragments"` // the products' name of the fragment set
+	Into       string        `json:"into"`
+	Stabilised [][][]float64 `json:"stabilised_yield"`
+	Activated  [][][]float64 `json:"activated_yield"`
+	// KDissociation[iT][iP] is the high-pressure rate coefficient of the
+	// well's dissociation to the fragments on the grid, s⁻¹.
+	KDissociation [][]float64 `json:"k_dissociation_inf_per_s"`
+	// KCapture[iT][iP] is the association rate coefficient at the high-
+	// pressure limit, k_diss∞/K_c in cm³ molecule⁻¹ s⁻¹, K_c of the well ⇌
+	// fragments from the same partition functions; nil unless every
+	// fragment species is described under molecules. The bimolecular rate
+	// coefficients are KCapture times the yields.
+	KCapture [][]float64 `json:"k_capture_cm3_per_molecule_per_s,omitempty"`
 }
 
 // networkNoteRates says what NetworkRates computes and leaves out.
 const networkNoteRates = "phenomenological rate coefficients from the chemically significant eigenpairs of the " +
 	"network's master equation, solved densely; the collision frequency is the reference well's with the bath gas; " +
-	"every rotation active; the source (chemical activation) is not yet computed"
+	"every rotation active"
 
 // denseSecondsPerGrain3 is the CPU time of one dense network solve per
 // grain cubed, s (0.8 s for 777 grains on the 2-core CI machine).
@@ -108,6 +130,18 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 	for _, w := range net.Wells {
 		res.Wells = append(res.Wells, w.Name)
 	}
+	var fragSpecies []*rrkm.Species // the source's fragments, all described, or nil
+	if src := net.Source; src != nil {
+		res.Source = &NetworkSource{Fragments: productName(net, src.Fragments), Into: src.Into}
+		for _, name := range net.FragmentSet(src.Fragments).Species {
+			mol := m.Molecule(name)
+			if mol == nil || mol.IsTS || mol.Mass == 0 {
+				fragSpecies = nil
+				break
+			}
+			fragSpecies = append(fragSpecies, &mol.Species)
+		}
+	}
 	for _, tK := range m.Temperatures {
 		if err := ctx.Err(); err != nil {
 			return nil, err
@@ -124,6 +158,8 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 		}
 		var kT, kP [][][]float64
 		var sep, bal, eq []float64
+		var stab, act [][]float64
+		var kd, kc []float64
 		for _, pPa := range m.Pressures {
 			omega := col.Z(tK) * collision.Concentration(pPa, tK)
 			r, err := network.Solve(nw, tK, omega, network.Options{})
@@ -134,6 +170,7 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 				res.Refused[fmt.Sprintf("%g K, %g Pa", tK, pPa)] = err.Error()
 				kT, kP = append(kT, nil), append(kP, nil)
 				sep, bal = append(sep, math.NaN()), append(bal, math.NaN())
+				stab, act, kd, kc = append(stab, nil), append(act, nil), append(kd, math.NaN()), append(kc, math.NaN())
 				continue
 			case err != nil:
 				return nil, &NumericalError{Err: fmt.Errorf("network at %g K, %g Pa: %w", tK, pPa, err)}
@@ -143,16 +180,40 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 			}
 			kT, kP = append(kT, r.K), append(kP, r.KExit)
 			sep, bal, eq = append(sep, r.Separation), append(bal, r.Balance), r.Equilibrium
+			if len(r.Sources) > 0 {
+				sr := r.Sources[0]
+				stab, act, kd = append(stab, sr.Wells), append(act, sr.Exits), append(kd, sr.KInf)
+				capture := math.NaN()
+				if fragSpecies != nil {
+					into := net.Well(net.Source.Into)
+					kcEq := rrkm.EquilibriumConstant(&m.Molecule(into.Name).Species, fragSpecies, net.FragmentSet(net.Source.Fragments).Energy-into.Energy, tK)
+					capture = sr.KInf / kcEq
+				}
+				kc = append(kc, capture)
+			}
 		}
 		res.K, res.KProducts = append(res.K, kT), append(res.KProducts, kP)
 		res.Separation, res.Balance, res.Equilibrium = append(res.Separation, sep), append(res.Balance, bal), append(res.Equilibrium, eq)
 		res.Grain, res.Ceiling = append(res.Grain, g.Width), append(res.Ceiling, g.Top()+zero)
+		if res.Source != nil {
+			res.Source.Stabilised, res.Source.Activated = append(res.Source.Stabilised, stab), append(res.Source.Activated, act)
+			res.Source.KDissociation, res.Source.KCapture = append(res.Source.KDissociation, kd), append(res.Source.KCapture, kc)
+		}
 		if progress != nil {
 			progress()
 		}
 	}
-	// JSON has no NaN: a refused point's separation and balance are -1.
-	for _, xs := range append(append([][]float64{}, res.Separation...), res.Balance...) {
+	// JSON has no NaN: a refused point's separation and balance are -1, as
+	// are the source's rate coefficients there (and the capture everywhere
+	// when a fragment is not described: then KCapture is nil).
+	all := append(append([][]float64{}, res.Separation...), res.Balance...)
+	if res.Source != nil {
+		if fragSpecies == nil {
+			res.Source.KCapture = nil
+		}
+		all = append(append(all, res.Source.KDissociation...), res.Source.KCapture...)
+	}
+	for _, xs := range all {
 		for i, x := range xs {
 			if math.IsNaN(x) {
 				xs[i] = -1
@@ -209,6 +270,9 @@ func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Tran
 		}
 		if st.ToFragments {
 			nw.Exits = append(nw.Exits, network.Exit{Name: name, Well: index[st.From], K: k})
+			if src := net.Source; src != nil && src.Into == st.From && src.Fragments == st.To {
+				nw.Sources = []network.Source{{Name: name + " -> " + st.From, Well: index[st.From], Exit: name}}
+			}
 		} else {
 			nw.Isomerisations = append(nw.Isomerisations, network.Isomerisation{Name: st.Via, From: index[st.From], To: index[st.To], K: k})
 		}

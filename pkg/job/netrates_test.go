@@ -8,6 +8,8 @@ import (
 
 	"github.com/falloff-kinetics/falloff/internal/demo"
 	"github.com/falloff-kinetics/falloff/pkg/input"
+	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
 // A network of one well with one exit to fragments is the one-well
@@ -149,4 +151,84 @@ func TestNetworkWorkLimit(t *testing.T) {
 	if err == nil || !strings.Contains(err.Error(), "--work-limit") || !strings.Contains(err.Error(), "CPU time") {
 		t.Errorf("1 ms limit: %v", err)
 	}
+}
+
+// The source of a one-well network (CH3CN "associating" into CH3NC
+// through the isomerisation read backwards; CH3CN described, so K_c is
+// known): the yields sum to 1 at every point; the capture rate constant is
+// the high-pressure dissociation on the grid over K_c, which equals
+// canonical TST for the reverse reaction, L(kT/h)(Q‡/Q_CH3CN)e^(−E0'/kT)
+// (rrkm.KInf / rrkm.EquilibriumConstant, the same partition functions), to
+// the grain error of the network grid, 1e-4 (measured 4e-6); and
+// stabilisation rises with pressure at each temperature.
+func TestNetworkSource(t *testing.T) {
+	src := `title: one-well network with a source
+molecules:
+  CH3NC:
+    mass: 41.0265 amu
+    vibrations: {unit: cm-1, values: [278.6, 278.6, 969.7, 1162.4, 1162.4, 1481.5, 1517.0, 1517.0, 2249.9, 3064.2, 3138.0, 3138.0]}
+    rotation: {constants: {unit: cm-1, values: [5.27235, 0.333999, 0.333999]}, symmetry: 3}
+    lennard-jones: {sigma: 4.47 angstrom, epsilon: 380 K}
+  CH3CN:
+    mass: 41.0265 amu
+    vibrations: {unit: cm-1, values: [387.2, 387.2, 935.7, 1076.9, 1076.9, 1439.2, 1501.4, 1501.4, 2380.4, 3066.8, 3140.0, 3140.0]}
+    rotation: {constants: {unit: cm-1, values: [5.29231, 0.305505, 0.305505]}, symmetry: 3}
+  TS:
+    energy: 38.0989 kcal/mol
+    imaginary-frequency: 440.4 cm-1
+    vibrations: {unit: cm-1, values: [208.6, 621.9, 999.6, 1002.0, 1350.0, 1492.8, 1506.8, 2020.7, 3113.7, 3204.7, 3245.0]}
+    rotation: {constants: {unit: cm-1, values: [1.35081, 0.526916, 0.409692]}, symmetry: 1}
+network:
+  reference: CH3NC
+  wells: {CH3NC: {}}
+  fragments: {iso: {species: [CH3CN], energy: -24.18585 kcal/mol}}
+  steps: [{from: CH3NC, to: iso, via: TS}]
+  source: {fragments: iso, into: CH3NC}
+bath: {gas: Ar}
+energy-transfer: {model: exponential-down, alpha-300: 300 cm-1}
+grid:
+  temperatures: {unit: K, values: [800, 1200]}
+  pressures: {unit: bar, values: [0.01, 1, 100]}
+`
+	m, err := input.Parse("src.yaml", []byte(src))
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := NetworkRates(context.Background(), m, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := res.Source
+	if s == nil || s.KCapture == nil {
+		t.Fatalf("source %+v", s)
+	}
+	r, ts, p := m.Molecule("CH3NC"), m.Molecule("TS"), m.Molecule("CH3CN")
+	worst := 0.0
+	for i, tK := range res.Temperatures {
+		prev := -1.0
+		for j := range res.Pressures {
+			if s.Stabilised[i][j] == nil {
+				t.Fatalf("point %d,%d refused: %v", i, j, res.Refused)
+			}
+			sum := s.Stabilised[i][j][0]
+			for _, y := range s.Activated[i][j] {
+				sum += y
+			}
+			if math.Abs(sum-1) > 1e-9 {
+				t.Errorf("%g K: yields sum to %.12g", tK, sum)
+			}
+			if y := s.Stabilised[i][j][0]; y < prev {
+				t.Errorf("%g K: stabilisation falls with pressure (%g after %g)", tK, y, prev)
+			} else {
+				prev = y
+			}
+			kc := rrkm.EquilibriumConstant(&r.Species, []*rrkm.Species{&p.Species}, -24.18585*units.Cm1PerKcalPerMol, tK)
+			want := rrkm.KInf(&r.Species, &ts.Species, rrkm.PathDegeneracy(&r.Species, &ts.Species), tK) / kc
+			worst = math.Max(worst, math.Abs(s.KCapture[i][j]/want-1))
+			if math.Abs(s.KCapture[i][j]/want-1) > 1e-4 {
+				t.Errorf("%g K: k_capture %.6g, canonical reverse TST %.6g", tK, s.KCapture[i][j], want)
+			}
+		}
+	}
+	t.Logf("k_capture against canonical TST: worst %.2g", worst)
 }
