@@ -250,9 +250,9 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 		switch {
 		case ch.Written:
 			rep := ch.Fits.Reports()[fit.FormName(ch.Recommended)]
-			fmt.Fprintf(s.out, "  %s -> %s: %s, max error %.3g %% on %d points\n", ch.From, strings.Join(ch.Products, " + "), ch.Recommended, rep.MaxErrorPct, ch.Points)
+			fmt.Fprintf(s.out, "  %s -> %s: %s, max error %.3g %% on %d points\n", strings.Join(ch.Reactants, " + "), strings.Join(ch.Products, " + "), ch.Recommended, rep.MaxErrorPct, ch.Points)
 		default:
-			fmt.Fprintf(s.out, "  %s -> %s: not written: %s\n", ch.From, strings.Join(ch.Products, " + "), ch.WhyNot)
+			fmt.Fprintf(s.out, "  %s -> %s: not written: %s\n", strings.Join(ch.Reactants, " + "), strings.Join(ch.Products, " + "), ch.WhyNot)
 		}
 	}
 	for _, w := range written {

@@ -4,6 +4,7 @@ import (
 	"crypto/sha256"
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
@@ -13,6 +14,9 @@ import (
 // NetworkChannel is one phenomenological rate coefficient of a network,
 // from a well to a well or to a fragment set, with its fits.
 type NetworkChannel struct {
+	// Reactants are the species the entry starts from: the well (From), or
+	// the source's fragments for a chemically activated channel.
+	Reactants   []string     `json:"reactants"`
 	From        string       `json:"from"`
 	To          string       `json:"to"`
 	Products    []string     `json:"products"`
@@ -39,8 +43,8 @@ const networkMinPoints = 6
 // is the largest acceptable relative error (0: fit.DefaultTolerance).
 func (res *NetworkRatesResult) FitNetwork(m *input.Model, tolerance float64) []NetworkChannel {
 	var out []NetworkChannel
-	add := func(from, to int, products []string, toName string, k func(i, j int) (float64, bool)) {
-		ch := NetworkChannel{From: res.Wells[from], To: toName, Products: products}
+	add := func(reactants []string, fromName string, products []string, toName string, kUnits string, k func(i, j int) (float64, bool)) {
+		ch := NetworkChannel{Reactants: reactants, From: fromName, To: toName, Products: products}
 		var pts []fit.Point
 		for i, t := range res.Temperatures {
 			for j, p := range res.Pressures {
@@ -55,7 +59,7 @@ func (res *NetworkRatesResult) FitNetwork(m *input.Model, tolerance float64) []N
 			out = append(out, ch)
 			return
 		}
-		r, err := fit.FitAll(&fit.Table{Name: m.File, KUnits: "s-1", Points: pts}, networkFitForms, fit.Options{Tolerance: tolerance})
+		r, err := fit.FitAll(&fit.Table{Name: m.File, KUnits: kUnits, Points: pts}, networkFitForms, fit.Options{Tolerance: tolerance})
 		if err != nil {
 			ch.WhyNot = err.Error()
 			out = append(out, ch)
@@ -71,7 +75,7 @@ func (res *NetworkRatesResult) FitNetwork(m *input.Model, tolerance float64) []N
 	}
 	for a := range res.Wells {
 		for b := a + 1; b < len(res.Wells); b++ {
-			add(a, b, []string{res.Wells[b]}, res.Wells[b], func(i, j int) (float64, bool) {
+			add([]string{res.Wells[a]}, res.Wells[a], []string{res.Wells[b]}, res.Wells[b], "s-1", func(i, j int) (float64, bool) {
 				k := res.K[i][j]
 				if k == nil {
 					return 0, false
@@ -81,13 +85,38 @@ func (res *NetworkRatesResult) FitNetwork(m *input.Model, tolerance float64) []N
 		}
 		for x, p := range res.Products {
 			f := m.Network.FragmentSet(productSet(m.Network, p))
-			add(a, -1, f.Species, p, func(i, j int) (float64, bool) {
+			add([]string{res.Wells[a]}, res.Wells[a], f.Species, p, "s-1", func(i, j int) (float64, bool) {
 				kx := res.KProducts[i][j]
 				if kx == nil {
 					return 0, false
 				}
 				return kx[x][a], true
 			})
+		}
+	}
+	// The source's chemically activated channels to the other products,
+	// k_capture × yield: new reaction pairs. Its stabilisation into each
+	// well is the reverse of that well's entry to the source's fragments
+	// (detailed balance), which the reversible entries above already give.
+	if src := res.Source; src != nil && src.KCapture != nil {
+		own := m.Network.FragmentSet(m.Network.Source.Fragments).Species
+		units := "s-1"
+		if len(own) == 2 {
+			units = "cm3 molecule-1 s-1"
+		}
+		if len(own) <= 2 {
+			for x, p := range res.Products {
+				if p == src.Fragments {
+					continue
+				}
+				f := m.Network.FragmentSet(productSet(m.Network, p))
+				add(own, src.Fragments, f.Species, p, units, func(i, j int) (float64, bool) {
+					if src.Activated[i][j] == nil {
+						return 0, false
+					}
+					return src.KCapture[i][j] * src.Activated[i][j][x], true
+				})
+			}
 		}
 	}
 	return out
@@ -129,11 +158,11 @@ func (res *NetworkRatesResult) NetworkMechanismFiles(m *input.Model, chs []Netwo
 			mark = "FAILED (" + ch.WhyNot + "): "
 		}
 		if name == "" {
-			h.Lines = append(h.Lines, fmt.Sprintf("Not written: %s -> %s: %s", ch.From, ch.To, ch.WhyNot))
+			h.Lines = append(h.Lines, fmt.Sprintf("Not written: %s -> %s: %s", strings.Join(ch.Reactants, " + "), ch.To, ch.WhyNot))
 			continue
 		}
 		rep := ch.Fits.Reports()[name]
-		rs = append(rs, export.Reaction{Reactants: []string{ch.From}, Products: ch.Products, Order: 1,
+		rs = append(rs, export.Reaction{Reactants: ch.Reactants, Products: ch.Products, Order: len(ch.Reactants),
 			Form: ch.Fits.Form(name), Note: fmt.Sprintf("%s%s, max error %.3g %% on %d points", mark, name, rep.MaxErrorPct, ch.Points)})
 	}
 	if len(rs) == 0 {

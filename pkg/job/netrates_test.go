@@ -231,4 +231,33 @@ grid:
 		}
 	}
 	t.Logf("k_capture against canonical TST: worst %.2g", worst)
+
+	// With a second exit, the source's chemically activated channel to it
+	// is fitted as a new reaction pair, CH3CN -> X + Y, from k_capture ×
+	// yield; the source's own fragments get no channel (their reverse is
+	// the well's entry).
+	two := strings.Replace(src, "  steps: [{from: CH3NC, to: iso, via: TS}]",
+		"    xy: {species: [X, Y], energy: 70 kcal/mol}\n  steps: [{from: CH3NC, to: iso, via: TS}, {from: CH3NC, to: xy, barrierless: {A: 1e15 s-1, energy: 75 kcal/mol}}]", 1)
+	two = strings.Replace(two, "  fragments: {iso: {species: [CH3CN], energy: -24.18585 kcal/mol}}", "  fragments:\n    iso: {species: [CH3CN], energy: -24.18585 kcal/mol}", 1)
+	m2, err := input.Parse("src2.yaml", []byte(two))
+	if err != nil {
+		t.Fatal(err)
+	}
+	res2, err := NetworkRates(context.Background(), m2, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var found *NetworkChannel
+	chs := res2.FitNetwork(m2, 0.05)
+	for i, ch := range chs {
+		if strings.Join(ch.Reactants, "+") == "CH3CN" {
+			if strings.Join(ch.Products, "+") != "X+Y" {
+				t.Errorf("a source channel to %v", ch.Products)
+			}
+			found = &chs[i]
+		}
+	}
+	if found == nil || found.Points != len(res2.Temperatures)*len(res2.Pressures) {
+		t.Fatalf("source channel %+v", found)
+	}
 }
