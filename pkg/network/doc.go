@@ -45,7 +45,11 @@
 // more than 0.1 (Options.MaxSeparation) of the smallest relaxation
 // eigenvalue, and (PrecisionError) where the chemically significant
 // eigenvalues lie below the rounding of the dense solve, as they do at low
-// temperature (ε·‖S‖ against eigenvalues 1e-15 of ω and less).
+// temperature (ε·‖S‖ against eigenvalues 1e-15 of ω and less). With
+// Options.Merge, Solve instead merges wells in fast equilibrium into one
+// species each, keeping the slowest chemically significant modes that
+// stand apart from relaxation (merge.go); Result.Groups and Result.Merge
+// say which.
 //
 // Bimolecular sources (Network.Sources, source.go): fragments associating
 // into a well through one of its exits read backwards, with the

@@ -81,6 +81,12 @@ type Options struct {
 	// chemically significant eigenvalues that Solve accepts (0:
 	// DefaultMaxRoundoff).
 	MaxRoundoff float64
+	// Merge, where the separation test fails, merges the wells that are in
+	// fast equilibrium into groups taken as one species each and reports
+	// the rate coefficients between those (Result.Groups, Result.Merge;
+	// merge.go), instead of refusing the point. Where the test passes it
+	// changes nothing.
+	Merge bool
 }
 
 // DefaultMaxSeparation is the default Options.MaxSeparation. A

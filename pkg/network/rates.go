@@ -73,12 +73,20 @@ const maxCondition = 1e6
 // Result.Balance report it. No choice of K from the chemical modes has
 // exact conservation, exact time evolution and exact detailed balance at
 // once when G is not diagonal; this one keeps the first two.
-func rates(n *Network, l *layout, vecs *mat.Dense, cols []int, fl []flux, res *Result) error {
-	nw := len(n.Wells)
+//
+// Groups. With wells merged into groups (merge.go) the same is done over
+// the groups gr: Z, Φ' and b' summed over each group's wells with the
+// factors sqrt(x_w/x_g), x_g in place of x_w, and fl without the
+// isomerisations within a group (groupFluxes); see merge.go for the
+// derivation. For wells alone (singletons) those factors are exactly 1
+// and the arithmetic is the same, bit for bit.
+func rates(n *Network, l *layout, vecs *mat.Dense, cols []int, fl []flux, gr *grouping, res *Result) error {
+	nw := len(cols) // the number of groups (of wells, when none is merged)
 	z := mat.NewDense(nw, nw, nil)
 	for p, w := range l.well {
+		g, s := gr.of[w], gr.share[w]
 		for k, c := range cols {
-			z.Set(w, k, z.At(w, k)+l.sqf[p]*vecs.At(p, c))
+			z.Set(g, k, z.At(g, k)+s*l.sqf[p]*vecs.At(p, c))
 		}
 	}
 	if c := mat.Cond(z, 2); !(c <= maxCondition) {
@@ -105,13 +113,14 @@ func rates(n *Network, l *layout, vecs *mat.Dense, cols []int, fl []flux, res *R
 		bx = mat.NewDense(len(n.Exits), nw, nil)
 	}
 	for _, f := range fl {
-		w := l.well[f.p]
-		r := math.Exp((l.logx[w]-l.logx[f.to])/2) * l.sqf[f.p]
+		w, to := l.well[f.p], gr.of[f.to]
+		r := math.Exp((l.logx[w]-gr.logx[to])/2) * l.sqf[f.p]
 		for k, c := range cols {
 			v := f.k * r * vecs.At(f.p, c)
-			phi.Set(f.to, k, phi.At(f.to, k)+v)
+			phi.Set(to, k, phi.At(to, k)+v)
 			if f.exit >= 0 {
-				// The exit's own well is f.to, so r carries no ratio.
+				// The exit's own well is f.to, so r carries only the
+				// ratio sqrt(x_w/x_g) of its group (1 for a well alone).
 				bx.Set(f.exit, k, bx.At(f.exit, k)-v)
 			}
 		}
@@ -130,7 +139,7 @@ func rates(n *Network, l *layout, vecs *mat.Dense, cols []int, fl []flux, res *R
 	for j := range nw {
 		res.K[j] = make([]float64, nw)
 		for i := range nw {
-			res.K[j][i] = math.Exp((l.logx[j]-l.logx[i])/2) * ksym.At(j, i)
+			res.K[j][i] = math.Exp((gr.logx[j]-gr.logx[i])/2) * ksym.At(j, i)
 		}
 	}
 	// Products: exits with the same name share a row.
@@ -148,7 +157,7 @@ func rates(n *Network, l *layout, vecs *mat.Dense, cols []int, fl []flux, res *R
 			res.KExit = append(res.KExit, make([]float64, nw))
 		}
 		for i := range nw {
-			res.KExit[r][i] += math.Exp((l.logx[e.Well]-l.logx[i])/2) * kx.At(x, i)
+			res.KExit[r][i] += math.Exp((gr.logx[gr.of[e.Well]]-gr.logx[i])/2) * kx.At(x, i)
 		}
 	}
 	for _, row := range append(append([][]float64(nil), res.K...), res.KExit...) {

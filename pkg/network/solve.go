@@ -10,10 +10,28 @@ import (
 
 // Result holds the phenomenological rate coefficients of a network at one
 // temperature and collision frequency.
+//
+// Species. The rate coefficients are between phenomenological species,
+// Groups: each a well, or, where Solve merged wells in fast equilibrium
+// (Options.Merge, merge.go), a group of wells taken as one species whose
+// population is the sum of its wells'. K, KExit, Equilibrium, Eigenvalues
+// and the yields of Sources are indexed by group (GroupNames); Wells keeps
+// the names of all the wells of the network. Without merging, Groups[g] =
+// {g} and GroupNames = Wells, so the indices are the wells' as before.
 type Result struct {
 	T     float64 // K
 	Omega float64 // collision frequency, s⁻¹
+	// Wells names the wells of the network, in order (Network.Wells).
 	Wells []string
+	// Groups lists the wells (indices into Wells, ascending) of each
+	// phenomenological species, ordered by their first well; GroupNames
+	// names each by its wells' names joined with "+" ("A+B").
+	Groups     [][]int
+	GroupNames []string
+	// Merge is nil unless Solve merged wells (Options.Merge): it then says
+	// which separation failed and how far the merged wells are from
+	// equilibrium with their groups.
+	Merge *MergeReport
 	// Exits names the products, one per distinct Exit.Name, in order of
 	// first appearance.
 	Exits []string
@@ -21,33 +39,38 @@ type Result struct {
 	// wells together).
 	Grains int
 	// Eigenvalues are the chemically significant eigenvalues λ ≤ 0 of the
-	// master equation in s⁻¹, one per well, smallest magnitude first.
-	// Conserved of them (one per group of wells joined by isomerisation
-	// with no exit) are exactly 0.
+	// master equation in s⁻¹, one per species (well or merged group),
+	// smallest magnitude first. Conserved of them (one per set of wells
+	// joined by isomerisation with no exit) are exactly 0.
 	Eigenvalues []float64
 	Conserved   int
 	// Relaxation is the internal-energy-relaxation eigenvalue of smallest
-	// magnitude (the next after the chemically significant ones), s⁻¹.
+	// magnitude (the next after the chemically significant ones), s⁻¹;
+	// with merged wells, the slowest of the interconversions merged away
+	// (Merge.Dropped[0]).
 	Relaxation float64
 	// Separation is |largest chemically significant eigenvalue| /
 	// |Relaxation|: the smaller, the better the rate law holds.
 	Separation float64
-	// K[j][i] for j ≠ i is the rate coefficient k(i→j) in s⁻¹ from well i
-	// to well j; K[i][i] is minus the total loss rate coefficient of well i,
-	// so that dX/dt = K·X for the well populations X. Each entry carries
+	// K[j][i] for j ≠ i is the rate coefficient k(i→j) in s⁻¹ from species
+	// i to species j (wells, or groups of merged wells: GroupNames); K[i][i]
+	// is minus the total loss rate coefficient of species i, so that
+	// dX/dt = K·X for the species populations X. Each entry carries
 	// an absolute rounding error of roughly Roundoff·|λ|·sqrt(x_j/x_i), λ
 	// the largest chemically significant eigenvalue: an uphill coefficient
 	// far smaller than that (a well many kT above another) is noise and
 	// may come out slightly negative.
 	K [][]float64
-	// KExit[x][i] is the rate coefficient k(i→x) in s⁻¹ from well i to
+	// KExit[x][i] is the rate coefficient k(i→x) in s⁻¹ from species i to
 	// product x: dP_x/dt = Σ_i KExit[x][i]·X_i.
 	KExit [][]float64
-	// Equilibrium holds the wells' equilibrium fractions x_i =
-	// Q_i/Σ Q, Q_i = Σ N_i(E)·exp(−E/kT) from the common zero.
+	// Equilibrium holds the species' equilibrium fractions x_i =
+	// Q_i/Σ Q, Q_i = Σ N_i(E)·exp(−E/kT) from the common zero (for a
+	// group, the sum over its wells).
 	Equilibrium []float64
 	// Overlap is the largest |G_kl|/sqrt(G_kk·G_ll), k ≠ l, of G = ZᵀZ,
-	// Z the chemical modes' projections on the wells (see rates): 0 when
+	// Z the chemical modes' projections on the wells (on the groups, when
+	// merged; see rates): 0 when
 	// the modes are thermal within every well. Balance is the largest
 	// relative departure from detailed balance, |K_ji·x_i − K_ij·x_j| /
 	// max(|K_ji·x_i|, |K_ij·x_j|) over pairs of wells; it is of order
@@ -85,9 +108,17 @@ type SeparationError struct {
 	Max        float64 // the threshold passed
 	Chemical   float64 // largest-magnitude chemically significant eigenvalue, s⁻¹
 	Relaxation float64 // smallest-magnitude relaxation eigenvalue, s⁻¹
+	// MergeFailure, set when Options.Merge asked for merging, says why
+	// merging wells in fast equilibrium gave no rate law either (merge.go).
+	MergeFailure error
 }
 
 func (e *SeparationError) Error() string {
+	if e.MergeFailure != nil {
+		return fmt.Sprintf("network: T = %g K, ω = %.4g s-1: separation |λ_chem|/|λ_relax| = %.3g (λ_chem = %.4g s-1, λ_relax = %.4g s-1) exceeds %g, "+
+			"and merging wells in fast equilibrium does not help: %v (hint: drop this point)",
+			e.T, e.Omega, e.Separation, e.Chemical, e.Relaxation, e.Max, e.MergeFailure)
+	}
 	return fmt.Sprintf("network: T = %g K, ω = %.4g s-1: separation |λ_chem|/|λ_relax| = %.3g (λ_chem = %.4g s-1, λ_relax = %.4g s-1) exceeds %g: "+
 		"a reaction here is about as fast as energy relaxation, so it has no rate coefficient (hint: merge wells that interconvert within a few collisions, or drop this point)",
 		e.T, e.Omega, e.Separation, e.Chemical, e.Relaxation, e.Max)
@@ -121,7 +152,9 @@ func (e *PrecisionError) Unwrap() error { return ErrRoundoff }
 //
 // Failures: an invalid network (a plain error), ErrTooLarge, a
 // *SeparationError when the chemically significant eigenvalues are not
-// separated from energy relaxation by opt.MaxSeparation, and a
+// separated from energy relaxation by opt.MaxSeparation (with opt.Merge,
+// only when merging the wells in fast equilibrium does not give separated
+// ones either; see merge.go), and a
 // *PrecisionError when they are lost in rounding. The separation is checked
 // first: where it fails no rate coefficient exists, however precise.
 func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
@@ -171,10 +204,9 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 	var vecs mat.Dense
 	es.VectorsTo(&vecs)
 
-	res := &Result{T: tK, Omega: omega, Grains: size, Equilibrium: make([]float64, nw)}
-	for w, well := range n.Wells {
+	res := &Result{T: tK, Omega: omega, Grains: size}
+	for _, well := range n.Wells {
 		res.Wells = append(res.Wells, well.Name)
-		res.Equilibrium[w] = math.Exp(l.logx[w])
 	}
 	// The chemically significant eigenvalues (CSEs) are the nw of smallest
 	// magnitude, columns size−1, size−2, … of vecs; column cols[k] holds
@@ -196,9 +228,26 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 	}
 	chem := math.Abs(res.Eigenvalues[nw-1])
 	res.Separation = chem / math.Abs(res.Relaxation)
+	gr := singletons(l) // every well its own species unless merged
 	if !(res.Separation <= opt.MaxSeparation) {
-		return nil, &SeparationError{T: tK, Omega: omega, Separation: res.Separation, Max: opt.MaxSeparation,
+		se := &SeparationError{T: tK, Omega: omega, Separation: res.Separation, Max: opt.MaxSeparation,
 			Chemical: res.Eigenvalues[nw-1], Relaxation: res.Relaxation}
+		if !opt.Merge {
+			return nil, se
+		}
+		// Keep the slowest modes that stand apart and merge the wells in
+		// fast equilibrium in them (merge.go); this updates the
+		// eigenvalues and the separation in res.
+		if gr, cols, err = merge(n, l, &vecs, cols, res, opt.MaxSeparation); err != nil {
+			se.MergeFailure = err
+			return nil, se
+		}
+		fl = groupFluxes(fl, l, gr)
+	}
+	res.Groups, res.GroupNames = gr.members, gr.names(n)
+	res.Equilibrium = make([]float64, len(gr.members))
+	for g := range gr.members {
+		res.Equilibrium[g] = math.Exp(gr.logx[g])
 	}
 	// Precision: at low temperature the chemically significant eigenvalues
 	// can be 1e-15 of ω and less (a rate of 1e-5 s⁻¹ beside ω = 1e10 s⁻¹),
@@ -207,19 +256,19 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 	// the cure (working with the flux identities and a banded solver that
 	// keeps relative precision, as pkg/collision does for one well) is a
 	// later step.
-	if res.Conserved < nw {
+	if res.Conserved < len(res.Eigenvalues) { // nw, or the groups' number
 		norm := math.Max(math.Abs(vals[0]), math.Abs(vals[size-1]))
 		res.Roundoff = 0x1p-52 * norm / math.Abs(res.Eigenvalues[res.Conserved])
 	}
 	if !(res.Roundoff <= opt.MaxRoundoff) {
 		return nil, &PrecisionError{T: tK, Omega: omega, Roundoff: res.Roundoff, Max: opt.MaxRoundoff}
 	}
-	if err := rates(n, l, &vecs, cols, fl, res); err != nil {
+	if err := rates(n, l, &vecs, cols, fl, gr, res); err != nil {
 		return nil, err
 	}
 	// The bimolecular sources' yields (source.go).
 	if len(n.Sources) > 0 {
-		if err := sources(n, l, vals, &vecs, cols, res); err != nil {
+		if err := sources(n, l, vals, &vecs, cols, gr, res); err != nil {
 			return nil, err
 		}
 	}

@@ -53,7 +53,8 @@ type SourceResult struct {
 	// for one channel), the normalisation of the chemical-activation
 	// distribution.
 	KInf float64
-	// Wells[w] is the yield of well w (as Result.Wells): the share of the
+	// Wells[g] is the yield of species g (as Result.GroupNames: a well, or
+	// a group of merged wells, summed over them): the share of the
 	// captured molecules stabilised there. A well the source cannot reach
 	// has 0 to rounding (which may leave it slightly negative).
 	Wells []float64
@@ -67,7 +68,8 @@ type SourceResult struct {
 	// reversible), which requires Wells[w] = k_c(w→R)·x_w/(x_s·KInf), with
 	// k_c(w→R) the phenomenological rate coefficient of w through the
 	// source's exits (the part of KExit[R][w] that leaves through them), x
-	// the Result.Equilibrium fractions and s the source's well. Balance is
+	// the Result.Equilibrium fractions (w a species of Result.GroupNames)
+	// and x_s that of the source's well alone. Balance is
 	// max_w |Wells[w] − that| / Σ_w that. The yields keep conservation and
 	// the time evolution exact instead (see sources), so Balance is of the
 	// order of the chemical modes' departure from thermal shape within the
@@ -167,7 +169,14 @@ func (s Source) name() string {
 //
 // With F_i = x_w·f_i the computation runs on sqrt(f) (Z, b below) and the
 // wells' ratios sqrt(x_w'/x_w) in log space, as rates does.
-func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int, res *Result) error {
+//
+// Groups. With wells merged (merge.go), Z is summed over each group gr with
+// the factors sqrt(x_w/x_g), and the stabilised yields and their balance
+// are per group (x_g in place of x_v): Σ_{v∈g} Y_v = Ỹ_g·c. The products'
+// yields are as above with the merged wells' fast interconversion among
+// the modes not kept. For wells alone the factors are exactly 1 and the
+// arithmetic is as without groups, bit for bit.
+func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int, gr *grouping, res *Result) error {
 	size := l.size()
 	chem := make([]bool, size)
 	for _, c := range cols {
@@ -187,18 +196,20 @@ func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int,
 			floats.AddScaled(b[e], k*l.sqf[p], vecs.RawRowView(p))
 		}
 	}
-	z := make([][]float64, len(n.Wells))
-	for w := range z {
-		z[w] = make([]float64, len(cols))
+	ng := len(cols) // groups (wells, when none is merged)
+	z := make([][]float64, ng)
+	for g := range z {
+		z[g] = make([]float64, len(cols))
 	}
 	for p, w := range l.well {
 		row := vecs.RawRowView(p)
+		g, s := gr.of[w], gr.share[w]
 		for k, c := range cols {
-			z[w][k] += l.sqf[p] * row[c]
+			z[g][k] += s * l.sqf[p] * row[c]
 		}
 	}
 	var zinv mat.Dense // rates has checked the condition of Z
-	if err := zinv.Inverse(mat.NewDense(len(n.Wells), len(cols), flatten(z))); err != nil {
+	if err := zinv.Inverse(mat.NewDense(ng, len(cols), flatten(z))); err != nil {
 		return fmt.Errorf("network: T = %g K, ω = %.4g s-1: well projections of the chemically significant modes: %v: %w", res.T, res.Omega, err, ErrNotSeparated)
 	}
 	row := map[string]int{} // product name → row of res.Exits
@@ -233,19 +244,19 @@ func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int,
 				floats.AddScaled(c, kwr[a]*l.sqf[p]/kinf, vecs.RawRowView(p))
 			}
 		}
-		sr := SourceResult{Name: src.name(), KInf: kinf, Wells: make([]float64, len(n.Wells)), Exits: make([]float64, len(res.Exits))}
-		for v := range n.Wells {
+		sr := SourceResult{Name: src.name(), KInf: kinf, Wells: make([]float64, ng), Exits: make([]float64, len(res.Exits))}
+		for v := range ng {
 			y := 0.0
 			for k, m := range cols {
 				y += z[v][k] * c[m]
 			}
-			sr.Wells[v] = math.Exp((l.logx[v]-l.logx[w])/2) * y
+			sr.Wells[v] = math.Exp((gr.logx[v]-l.logx[w])/2) * y
 		}
 		// Detailed balance with the phenomenological dissociation through
 		// the source's exits: k_c(v→R) = sqrt(x_w/x_v)·Σ_e (b_e·Z⁻¹)_v, as
 		// rates forms K_exit (there in the flux form, which is the same sum
 		// over the same eigenvectors), times x_v/(x_w·KInf).
-		db := make([]float64, len(n.Wells))
+		db := make([]float64, ng)
 		sum := 0.0
 		for e, ex := range n.Exits {
 			if ex.Well != w || ex.Name != src.Exit {
@@ -256,7 +267,7 @@ func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int,
 				for k, m := range cols {
 					kc += b[e][m] * zinv.At(k, v)
 				}
-				db[v] += kc * math.Exp((l.logx[v]-l.logx[w])/2) / kinf
+				db[v] += kc * math.Exp((gr.logx[v]-l.logx[w])/2) / kinf
 			}
 		}
 		for _, y := range db {
