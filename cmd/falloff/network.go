@@ -201,8 +201,23 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 	if err := renderTable(s.out, header, rows); err != nil {
 		return err
 	}
-	for at, why := range res.Refused {
-		fmt.Fprintf(s.out, "refused at %s: %s\n", at, why)
+	for _, at := range sortedKeys(res.Merged) {
+		mp := res.Merged[at]
+		fmt.Fprintf(s.out, "merged at %s: wells in fast equilibrium taken as %s (departure %.2g):", at, strings.Join(mp.Species, ", "), mp.Departure)
+		for i, from := range mp.Species {
+			for j, to := range mp.Species {
+				if i != j {
+					fmt.Fprintf(s.out, " %s→%s %s;", from, to, num(mp.K[j][i]))
+				}
+			}
+			for x, p := range res.Products {
+				fmt.Fprintf(s.out, " %s→%s %s;", from, p, num(mp.KProducts[x][i]))
+			}
+		}
+		fmt.Fprintln(s.out)
+	}
+	for _, at := range sortedKeys(res.Refused) {
+		fmt.Fprintf(s.out, "refused at %s: %s\n", at, res.Refused[at])
 	}
 	if src := res.Source; src != nil {
 		fmt.Fprintf(s.out, "\nsource %s -> %s: yields per captured molecule (stabilised in each well; carried to each product, back to %s included):\n", src.Fragments, src.Into, src.Fragments)
@@ -260,4 +275,14 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 	}
 	_, err = fmt.Fprintln(s.out, "\n"+job.Caution)
 	return err
+}
+
+// sortedKeys returns the keys of m in order.
+func sortedKeys[V any](m map[string]V) []string {
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	return keys
 }

@@ -33,6 +33,10 @@ type NetworkRatesResult struct {
 	Balance      [][]float64       `json:"detailed_balance_departure"`
 	Equilibrium  [][]float64       `json:"equilibrium_fractions"`
 	Refused      map[string]string `json:"refused,omitempty"`
+	// Merged holds the points where wells in fast equilibrium were merged
+	// into one species each (their K and KProducts are then nil): the
+	// rate coefficients between the merged species there.
+	Merged map[string]*MergedPoint `json:"merged,omitempty"`
 	// Source, if the network has one, holds per (T, P) the yields per
 	// captured molecule: Stabilised[iT][iP][w] in each well and
 	// Activated[iT][iP][x] carried to each product (redissociation to the
@@ -42,6 +46,18 @@ type NetworkRatesResult struct {
 	Ceiling []float64      `json:"ceiling_cm-1"`
 	Note    string         `json:"note"`
 	Caution string         `json:"caution"`
+}
+
+// MergedPoint is one (T, P) point solved over merged species: K[j][i]
+// from species i to j, KProducts[x][i] to product x, in s⁻¹ (as
+// NetworkRatesResult, over Species instead of the wells).
+type MergedPoint struct {
+	Species   []string    `json:"species"` // member wells joined by "+"
+	K         [][]float64 `json:"k_species_per_s"`
+	KProducts [][]float64 `json:"k_products_per_s"`
+	// Departure is how far the merged wells are from equilibrium within
+	// their species (0: exactly).
+	Departure float64 `json:"departure"`
 }
 
 // NetworkSource is the bimolecular source of a network result.
@@ -126,7 +142,7 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 			"use fewer temperatures or pressures, or raise the limit with --work-limit")
 	}
 	res := &NetworkRatesResult{File: m.File, Reference: net.Reference, Temperatures: m.Temperatures, Pressures: m.Pressures,
-		Refused: map[string]string{}, Note: networkNoteRates, Caution: Caution}
+		Refused: map[string]string{}, Merged: map[string]*MergedPoint{}, Note: networkNoteRates, Caution: Caution}
 	for _, w := range net.Wells {
 		res.Wells = append(res.Wells, w.Name)
 	}
@@ -162,11 +178,19 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 		var kd, kc []float64
 		for _, pPa := range m.Pressures {
 			omega := col.Z(tK) * collision.Concentration(pPa, tK)
-			r, err := network.Solve(nw, tK, omega, network.Options{})
-			var se *network.SeparationError
+			r, err := network.Solve(nw, tK, omega, network.Options{Merge: true})
 			var pe *network.PrecisionError
 			switch {
-			case errors.As(err, &se), errors.As(err, &pe):
+			case err == nil && r.Merge != nil:
+				res.Merged[fmt.Sprintf("%g K, %g Pa", tK, pPa)] = &MergedPoint{Species: r.GroupNames, K: r.K, KProducts: r.KExit, Departure: r.Merge.Departure}
+				if res.Products == nil {
+					res.Products = r.Exits
+				}
+				kT, kP = append(kT, nil), append(kP, nil)
+				sep, bal = append(sep, r.Separation), append(bal, r.Balance)
+				stab, act, kd, kc = append(stab, nil), append(act, nil), append(kd, math.NaN()), append(kc, math.NaN())
+				continue
+			case errors.Is(err, network.ErrNotSeparated), errors.As(err, &pe):
 				res.Refused[fmt.Sprintf("%g K, %g Pa", tK, pPa)] = err.Error()
 				kT, kP = append(kT, nil), append(kP, nil)
 				sep, bal = append(sep, math.NaN()), append(bal, math.NaN())

@@ -88,7 +88,7 @@ grid:
 // to the products, 1e-9), and chain ⇌ ring obeys detailed balance with the
 // equilibrium fractions, k(chain→ring)·x_chain = k(ring→chain)·x_ring,
 // within the departure the solver reports (Balance) plus 1e-6. The refused
-// points name the reason.
+// points name the reason; the merged ones are checked below.
 func TestNetworkDemoRates(t *testing.T) {
 	if testing.Short() {
 		t.Skip("16 dense network solves")
@@ -132,6 +132,22 @@ func TestNetworkDemoRates(t *testing.T) {
 	}
 	if solved == 0 {
 		t.Fatal("every point refused")
+	}
+	// Where chain and ring interconvert as fast as energy relaxes, they
+	// are merged into one species; its loss is the sum of its rates to the
+	// products (conservation, 1e-9) and its wells lie within the merge
+	// tolerance of equilibrium.
+	for at, mp := range res.Merged {
+		if len(mp.Species) != 1 || mp.Species[0] != "chain+ring" || mp.Departure > 0.5 {
+			t.Errorf("%s: merged %v (departure %g)", at, mp.Species, mp.Departure)
+		}
+		out := 0.0
+		for x := range res.Products {
+			out += mp.KProducts[x][0]
+		}
+		if math.Abs(out+mp.K[0][0]) > 1e-9*math.Abs(mp.K[0][0]) {
+			t.Errorf("%s: loss %g, outflows %g", at, -mp.K[0][0], out)
+		}
 	}
 	for at, why := range res.Refused {
 		if !strings.Contains(why, "separation") && !strings.Contains(why, "rounding") {
