@@ -182,6 +182,11 @@ func runImport(o importOptions, s streams) error {
 		} else {
 			d, _, err = qcread.ReadFile(src.path, o.format)
 		}
+		var re *qcread.ReadError
+		if errors.As(err, &re) && strings.HasPrefix(re.What, "no geometry: a --hess run") {
+			// Say how the verb reads such an output.
+			re.Hint += fmt.Sprintf("; here: --xyz %s=FILE.xyz", src.name)
+		}
 		if err != nil {
 			return err
 		}

@@ -82,7 +82,7 @@ func TestImportFailures(t *testing.T) {
 // (the recorded run of xtb 6.5.1 on testdata/xtb/h2o_opt.xyz).
 func TestImportXtbHessWithXYZ(t *testing.T) {
 	const dir = "../../pkg/qcread/testdata/xtb/"
-	if code, _, errs := runCLI(t, "import", "W="+dir+"h2o_hess.out"); code != exitInput || !strings.Contains(errs, "no geometry") {
+	if code, _, errs := runCLI(t, "import", "W="+dir+"h2o_hess.out"); code != exitInput || !strings.Contains(errs, "no geometry") || !strings.Contains(errs, "--xyz W=FILE.xyz") {
 		t.Errorf("--hess output alone: exit %d, stderr %q", code, errs)
 	}
 	code, out, errs := runCLI(t, "import", "W="+dir+"h2o_hess.out", "--xyz", "W="+dir+"h2o_opt.xyz")
