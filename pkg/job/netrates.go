@@ -116,14 +116,16 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 	for _, w := range net.Wells {
 		zero = math.Min(zero, w.Energy)
 	}
-	top := math.Inf(-1) // the highest threshold above the grid's zero
+	top := math.Inf(-1)   // the highest threshold above the grid's zero
+	lowest := math.Inf(1) // the lowest
 	for _, st := range net.Steps {
-		switch {
-		case st.Barrierless != nil:
-			top = math.Max(top, net.EnergyOf(st.From)+st.Barrierless.Energy-zero)
-		default:
-			top = math.Max(top, m.Molecule(st.Via).E0-zero)
+		var e float64
+		if st.Barrierless != nil {
+			e = net.EnergyOf(st.From) + st.Barrierless.Energy - zero
+		} else {
+			e = m.Molecule(st.Via).E0 - zero
 		}
+		top, lowest = math.Max(top, e), math.Min(lowest, e)
 	}
 	// The work before any: a dense symmetric eigensolve of n grains costs
 	// about denseSecondsPerGrain3·n³ (measured: 777 grains in 0.8 s,
@@ -162,7 +164,12 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
+		// A grain edge on the lowest threshold, as the one-well master
+		// equation puts one on its E0, so that no grain straddles it.
 		grain := collision.GrainFor(tr, tK)
+		if k := math.Round(lowest/grain - 0.5); k >= 1 {
+			grain = lowest / (k + 0.5)
+		}
 		g := rrkm.GrainsTo(grain, top+networkCeilingKT*units.KT(tK))
 		if len(net.Wells)*g.N > network.MaxGrains {
 			return nil, m.FieldError("network", fmt.Errorf("%d wells on %d grains of %.3g cm-1 at %g K: more than the %d grains the dense solver takes", len(net.Wells), g.N, g.Width, tK, network.MaxGrains),
