@@ -209,6 +209,7 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 			if res.Products == nil {
 				res.Products = r.Exits
 			}
+			symmetrise(r.K, r.KExit, r.Equilibrium)
 			kT, kP = append(kT, r.K), append(kP, r.KExit)
 			sep, bal, eq = append(sep, r.Separation), append(bal, r.Balance), r.Equilibrium
 			if len(r.Sources) > 0 {
@@ -344,4 +345,39 @@ func iltOnGrid(k []float64, c *rrkm.Counter, b *input.Barrierless, g rrkm.Grains
 		k[i] = mi.K[j]*(1-f) + mi.K[j+1]*f
 	}
 	return nil
+}
+
+// symmetrise makes the well-to-well rate coefficients k (k[j][i] from i to
+// j) obey detailed balance with the equilibrium fractions x exactly: each
+// pair's two fluxes at equilibrium, k[j][i]·x_i and k[i][j]·x_j, are
+// replaced by their geometric mean, and the diagonal is set again so that
+// each well's loss is the sum of its rates (with the products', kx). The
+// chemically significant eigenpairs define a rate law only to the order of
+// their separation from relaxation, within which the two fluxes may differ
+// (Bartis & Widom 1974; Miller & Klippenstein 2006); the departure before
+// (Result.Balance, reported as detailed_balance_departure) bounds what this
+// changes. A mechanism's reversible entries need the balanced form.
+func symmetrise(k, kx [][]float64, x []float64) {
+	n := len(k)
+	for i := range n {
+		for j := i + 1; j < n; j++ {
+			f, r := k[j][i]*x[i], k[i][j]*x[j]
+			if f > 0 && r > 0 {
+				g := math.Sqrt(f * r)
+				k[j][i], k[i][j] = g/x[i], g/x[j]
+			}
+		}
+	}
+	for i := range n {
+		loss := 0.0
+		for j := range n {
+			if j != i {
+				loss += k[j][i]
+			}
+		}
+		for _, row := range kx {
+			loss += row[i]
+		}
+		k[i][i] = -loss
+	}
 }
