@@ -260,14 +260,14 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 			fmt.Fprintln(s.out, "(no capture rate constant: describe every fragment species under molecules to have K_c, and the bimolecular rate coefficients k_capture × yield)")
 		}
 	}
-	fmt.Fprintln(s.out, "\nfits (PLOG and Chebyshev, on the points not refused):")
+	fmt.Fprintln(s.out, "\nfits (PLOG and Chebyshev, and Troe where k is a falloff curve, on the points computed per well):")
 	for _, ch := range chs {
 		switch {
 		case ch.Written:
 			rep := ch.Fits.Reports()[fit.FormName(ch.Recommended)]
-			fmt.Fprintf(s.out, "  %s -> %s: %s, max error %.3g %% on %d points\n", strings.Join(ch.Reactants, " + "), strings.Join(ch.Products, " + "), ch.Recommended, rep.MaxErrorPct, ch.Points)
+			fmt.Fprintf(s.out, "  %s -> %s: %s, max error %.3g %% on %d points; %s\n", strings.Join(ch.Reactants, " + "), strings.Join(ch.Products, " + "), ch.Recommended, rep.MaxErrorPct, ch.Points, ch.Falloff)
 		default:
-			fmt.Fprintf(s.out, "  %s -> %s: not written: %s\n", strings.Join(ch.Reactants, " + "), strings.Join(ch.Products, " + "), ch.WhyNot)
+			fmt.Fprintf(s.out, "  %s -> %s: not written: %s; %s\n", strings.Join(ch.Reactants, " + "), strings.Join(ch.Products, " + "), ch.WhyNot, ch.Falloff)
 		}
 	}
 	for _, w := range written {

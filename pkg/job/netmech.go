@@ -4,6 +4,7 @@ import (
 	"crypto/sha256"
 	"fmt"
 	"math"
+	"sort"
 	"strings"
 
 	"github.com/falloff-kinetics/falloff/pkg/export"
@@ -25,6 +26,9 @@ type NetworkChannel struct {
 	Written     bool         `json:"written"` // in the mechanism files
 	WhyNot      string       `json:"why_not_written,omitempty"`
 	Recommended string       `json:"recommended,omitempty"`
+	// Falloff says whether k rises with pressure at every temperature (a
+	// falloff curve, so Troe is fitted too) or why not.
+	Falloff string `json:"falloff"`
 }
 
 // networkFitForms are the forms fitted to a network's rate coefficients:
@@ -59,7 +63,14 @@ func (res *NetworkRatesResult) FitNetwork(m *input.Model, tolerance float64) []N
 			out = append(out, ch)
 			return
 		}
-		r, err := fit.FitAll(&fit.Table{Name: m.File, KUnits: kUnits, Points: pts}, networkFitForms, fit.Options{Tolerance: tolerance})
+		forms := networkFitForms
+		if why := notFalloff(pts); why == "" {
+			ch.Falloff = "a falloff curve: Troe fitted too"
+			forms = append(append([]fit.FormName{}, forms...), fit.FormTroe)
+		} else {
+			ch.Falloff = "not a falloff curve (" + why + "): no Troe form"
+		}
+		r, err := fit.FitAll(&fit.Table{Name: m.File, KUnits: kUnits, Points: pts}, forms, fit.Options{Tolerance: tolerance})
 		if err != nil {
 			ch.WhyNot = err.Error()
 			out = append(out, ch)
@@ -175,4 +186,33 @@ func (res *NetworkRatesResult) NetworkMechanismFiles(m *input.Model, chs []Netwo
 		return nil, nil, err
 	}
 	return yaml, text, nil
+}
+
+// notFalloff returns "" when k rises (or stays) with pressure at every
+// temperature of pts with at least three pressures, as a falloff curve
+// does, and otherwise where it falls: a chemically activated coefficient,
+// for one, falls with pressure, which no Troe form describes.
+func notFalloff(pts []fit.Point) string {
+	byT := map[float64][]fit.Point{}
+	var temps []float64
+	for _, p := range pts {
+		if _, ok := byT[p.T]; !ok {
+			temps = append(temps, p.T)
+		}
+		byT[p.T] = append(byT[p.T], p)
+	}
+	sort.Float64s(temps)
+	for _, t := range temps {
+		row := byT[t]
+		if len(row) < 3 {
+			return fmt.Sprintf("fewer than three pressures at %g K", t)
+		}
+		sort.Slice(row, func(i, j int) bool { return row[i].P < row[j].P })
+		for i := 1; i < len(row); i++ {
+			if row[i].K < row[i-1].K*(1-1e-9) {
+				return fmt.Sprintf("k falls with pressure at %g K", t)
+			}
+		}
+	}
+	return ""
 }

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/falloff-kinetics/falloff/internal/demo"
+	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
@@ -323,5 +324,21 @@ func TestSymmetrise(t *testing.T) {
 				t.Errorf("a balanced matrix changed at %d,%d", j, i)
 			}
 		}
+	}
+}
+
+// A coefficient is a falloff curve when k rises with pressure at every
+// temperature; a chemically activated one falls, and gets no Troe form.
+func TestNotFalloff(t *testing.T) {
+	rising := []fit.Point{{T: 800, P: 1, K: 1}, {T: 800, P: 10, K: 2}, {T: 800, P: 100, K: 2.5}, {T: 900, P: 1, K: 3}, {T: 900, P: 10, K: 5}, {T: 900, P: 100, K: 6}}
+	if why := notFalloff(rising); why != "" {
+		t.Errorf("rising: %q", why)
+	}
+	falling := append(append([]fit.Point{}, rising[:3]...), fit.Point{T: 900, P: 1, K: 6}, fit.Point{T: 900, P: 10, K: 5}, fit.Point{T: 900, P: 100, K: 3})
+	if why := notFalloff(falling); !strings.Contains(why, "falls with pressure at 900 K") {
+		t.Errorf("falling: %q", why)
+	}
+	if why := notFalloff(rising[:2]); !strings.Contains(why, "fewer than three") {
+		t.Errorf("two points: %q", why)
 	}
 }
