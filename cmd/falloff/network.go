@@ -207,11 +207,11 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 		for i, from := range mp.Species {
 			for j, to := range mp.Species {
 				if i != j {
-					fmt.Fprintf(s.out, " %s→%s %s;", from, to, num(mp.K[j][i]))
+					fmt.Fprintf(s.out, " %s→%s %s s-1;", from, to, num(mp.K[j][i]))
 				}
 			}
 			for x, p := range res.Products {
-				fmt.Fprintf(s.out, " %s→%s %s;", from, p, num(mp.KProducts[x][i]))
+				fmt.Fprintf(s.out, " %s→%s %s s-1;", from, p, num(mp.KProducts[x][i]))
 			}
 		}
 		fmt.Fprintln(s.out)

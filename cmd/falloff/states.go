@@ -79,7 +79,7 @@ func printStatesJ(o reportOptions, n *job.Network, s streams) error {
 		fmt.Fprintf(s.out, "\n%s: J rotor B = %s cm-1, %s cm-1 grains\n", st.Name, num(st.B), num(st.Grain))
 		header := []string{"E / cm-1", "rho_act / (cm-1)^-1"}
 		for _, j := range st.J {
-			header = append(header, fmt.Sprintf("rho(E,J=%d)", j), fmt.Sprintf("W(E,J=%d)", j))
+			header = append(header, fmt.Sprintf("rho(E,J=%d) / (cm-1)^-1", j), fmt.Sprintf("W(E,J=%d)", j))
 		}
 		var rows [][]string
 		every := max(1, int(math.Round(o.step.set.Cm1/st.Grain)))

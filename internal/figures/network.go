@@ -5,8 +5,6 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/mat"
-
 	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/plots"
 )
@@ -16,76 +14,6 @@ const (
 	PopulationsPlot = "populations.svg"
 	NetworkKvsPPlot = "k-vs-P.svg"
 )
-
-// populationTimes is the number of times populations.svg is drawn at.
-const populationTimes = 80
-
-// Populations returns, at the point (it, ip) of res, the fractions of the
-// wells and products against time after a start in the reference well,
-// from the phenomenological rate law dX/dt = K·X, dP/dt = K_exit·X
-// (X(t) = exp(A·t)·X(0) with A the rate matrix of wells and products,
-// gonum's matrix exponential), at populationTimes times spaced evenly in
-// log t from 1e-3 of the fastest loss's time to 10 times the slowest's.
-// names lists the wells, then the products; frac[k][i] is species k at
-// times[i].
-func Populations(res *job.NetworkRatesResult, it, ip int) (names []string, times []float64, frac [][]float64, err error) {
-	k, kx := res.K[it][ip], res.KProducts[it][ip]
-	if k == nil {
-		return nil, nil, nil, errors.New("figures: the point was refused")
-	}
-	nw, np := len(res.Wells), len(res.Products)
-	n := nw + np
-	a := mat.NewDense(n, n, nil)
-	fast, slow := 0.0, math.Inf(1)
-	for i := range nw {
-		for j := range nw {
-			a.Set(j, i, k[j][i])
-		}
-		for x := range np {
-			a.Set(nw+x, i, kx[x][i])
-		}
-		if l := -k[i][i]; l > 0 {
-			fast, slow = math.Max(fast, l), math.Min(slow, l)
-		}
-	}
-	if !(fast > 0) {
-		return nil, nil, nil, errors.New("figures: no well reacts at this point")
-	}
-	// The slowest time is that of the rate matrix's smallest nonzero
-	// eigenvalue, which may be far below every diagonal loss (a well that
-	// feeds back into another).
-	var eig mat.Eigen
-	if eig.Factorize(a.Slice(0, nw, 0, nw), mat.EigenNone) {
-		for _, v := range eig.Values(nil) {
-			if r := math.Abs(real(v)); r > 1e-12*fast {
-				slow = math.Min(slow, r)
-			}
-		}
-	}
-	start := -1
-	for i, w := range res.Wells {
-		if w == res.Reference {
-			start = i
-		}
-	}
-	if start < 0 {
-		start = 0
-	}
-	names = append(append(names, res.Wells...), res.Products...)
-	frac = make([][]float64, n)
-	lo, hi := math.Log10(1e-3/fast), math.Log10(10/slow)
-	var at, e mat.Dense
-	for s := range populationTimes {
-		t := math.Pow(10, lo+(hi-lo)*float64(s)/(populationTimes-1))
-		at.Scale(t, a)
-		e.Exp(&at)
-		times = append(times, t)
-		for k := range n {
-			frac[k] = append(frac[k], e.At(k, start))
-		}
-	}
-	return names, times, frac, nil
-}
 
 // Network renders the figures of a network's rates run: populations.svg
 // (Populations at the middle temperature and pressure, or the nearest
@@ -108,7 +36,7 @@ func Network(res *job.NetworkRatesResult, d Units) ([]job.File, error) {
 	if it < 0 {
 		return nil, errors.New("figures: every point of the network was refused; nothing to draw")
 	}
-	names, times, frac, err := Populations(res, it, ip)
+	names, times, frac, err := res.Populations(it, ip)
 	if err != nil {
 		return nil, err
 	}

@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/mat"
+
 	"github.com/falloff-kinetics/falloff/pkg/collision"
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/network"
@@ -160,6 +162,16 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 			fragSpecies = append(fragSpecies, &mol.Species)
 		}
 	}
+	// The states are counted once, to the highest top any temperature's
+	// grid reaches, and reused at every temperature.
+	maxTop := 0.0
+	for _, tK := range m.Temperatures {
+		maxTop = math.Max(maxTop, rrkm.GrainsTo(collision.GrainFor(tr, tK), top+networkCeilingKT*units.KT(tK)).Top()+collision.GrainFor(tr, tK))
+	}
+	counts, err := countNetwork(m, zero, maxTop)
+	if err != nil {
+		return nil, err
+	}
 	for _, tK := range m.Temperatures {
 		if err := ctx.Err(); err != nil {
 			return nil, err
@@ -175,7 +187,7 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 			return nil, m.FieldError("network", fmt.Errorf("%d wells on %d grains of %.3g cm-1 at %g K: more than the %d grains the dense solver takes", len(net.Wells), g.N, g.Width, tK, network.MaxGrains),
 				"fewer wells or a narrower temperature range; the banded solver is to come")
 		}
-		nw, err := buildNetwork(m, g, zero, tr)
+		nw, err := buildNetwork(m, g, zero, tr, counts)
 		if err != nil {
 			return nil, err
 		}
@@ -257,20 +269,14 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 
 // buildNetwork counts the wells' states and every step's k(E) on the
 // common grains g (energies from zero, the lowest well).
-func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Transfer) (*network.Network, error) {
+func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Transfer, counters map[string]*rrkm.Counter) (*network.Network, error) {
 	net := m.Network
-	fine := m.EnergyGrid.Fine
 	nw := &network.Network{Grains: g}
-	counters := map[string]*rrkm.Counter{}
 	index := map[string]int{}
 	offset := func(name string) float64 { return net.EnergyOf(name) - zero }
 	for i, w := range net.Wells {
-		sp := &m.Molecule(w.Name).Species
-		c, err := rrkm.NewCounter(sp, fine, math.Max(g.Top()-offset(w.Name), fine))
-		if err != nil {
-			return nil, fmt.Errorf("%s: %w", m.File, err)
-		}
-		counters[w.Name], index[w.Name] = c, i
+		c := counters[w.Name]
+		index[w.Name] = i
 		nw.Wells = append(nw.Wells, network.Well{Name: w.Name, Counts: c.ScaledCounts(g, offset(w.Name)), CountScale: c.Scale(), Transfer: tr})
 	}
 	for _, st := range net.Steps {
@@ -288,10 +294,7 @@ func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Tran
 		} else {
 			ts := m.Molecule(st.Via)
 			e0 := ts.E0 - zero
-			tc, err := rrkm.NewCounter(&ts.Species, fine, math.Max(g.Top()-e0, fine))
-			if err != nil {
-				return nil, fmt.Errorf("%s: %w", m.File, err)
-			}
+			tc := counters[st.Via]
 			l := rrkm.PathDegeneracy(&m.Molecule(st.From).Species, &ts.Species)
 			sums := tc.AveragedSums(g, e0)
 			for i, n := range counts {
@@ -312,6 +315,39 @@ func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Tran
 	return nw, nil
 }
 
+// countNetwork counts the states of every well and transition state of
+// m's network from its own zero-point level to top cm⁻¹ above the grid's
+// zero (the lowest well), keyed by name.
+func countNetwork(m *input.Model, zero, top float64) (map[string]*rrkm.Counter, error) {
+	net := m.Network
+	fine := m.EnergyGrid.Fine
+	out := map[string]*rrkm.Counter{}
+	count := func(name string, e float64) error {
+		if _, done := out[name]; done {
+			return nil
+		}
+		c, err := rrkm.NewCounter(&m.Molecule(name).Species, fine, math.Max(top-(e-zero), fine))
+		if err != nil {
+			return fmt.Errorf("%s: %w", m.File, err)
+		}
+		out[name] = c
+		return nil
+	}
+	for _, w := range net.Wells {
+		if err := count(w.Name, w.Energy); err != nil {
+			return nil, err
+		}
+	}
+	for _, st := range net.Steps {
+		if st.Via != "" {
+			if err := count(st.Via, m.Molecule(st.Via).E0); err != nil {
+				return nil, err
+			}
+		}
+	}
+	return out, nil
+}
+
 // productName names a fragment set's products in equations: A + B.
 func productName(net *input.Network, set string) string {
 	f := net.FragmentSet(set)
@@ -330,7 +366,9 @@ func productName(net *input.Network, set string) string {
 // grains of width g.Width/4, interpolated linearly in energy onto the
 // common grains g, on which the well's zero lies at off.
 func iltOnGrid(k []float64, c *rrkm.Counter, b *input.Barrierless, g rrkm.Grains, off float64) error {
-	own := rrkm.GrainsTo(g.Width/4, math.Max(c.Ceiling()-g.Width, g.Width))
+	// The well's own grains reach just past the common grid's top (the
+	// counter may be counted higher, for the hottest temperature's grid).
+	own := rrkm.GrainsTo(g.Width/4, math.Max(math.Min(c.Ceiling()-g.Width, g.Top()-off+g.Width), g.Width))
 	mi, err := rrkm.ILTMicro(c, rrkm.ILT{A: b.A, T0: b.T0, N: b.N, EInf: b.Energy}, own)
 	if err != nil {
 		return err
@@ -380,4 +418,74 @@ func symmetrise(k, kx [][]float64, x []float64) {
 		}
 		k[i][i] = -loss
 	}
+}
+
+// populationTimes is the number of times populations.svg is drawn at.
+const populationTimes = 80
+
+// Populations returns, at the point (it, ip) of res, the fractions of the
+// wells and products against time after a start in the reference well,
+// from the phenomenological rate law dX/dt = K·X, dP/dt = K_exit·X
+// (X(t) = exp(A·t)·X(0) with A the rate matrix of wells and products,
+// gonum's matrix exponential), at populationTimes times spaced evenly in
+// log t from 1e-3 of the fastest loss's time to 10 times the slowest's.
+// names lists the wells, then the products; frac[k][i] is species k at
+// times[i].
+func (res *NetworkRatesResult) Populations(it, ip int) (names []string, times []float64, frac [][]float64, err error) {
+	k, kx := res.K[it][ip], res.KProducts[it][ip]
+	if k == nil {
+		return nil, nil, nil, errors.New("job: the point was refused")
+	}
+	nw, np := len(res.Wells), len(res.Products)
+	n := nw + np
+	a := mat.NewDense(n, n, nil)
+	fast, slow := 0.0, math.Inf(1)
+	for i := range nw {
+		for j := range nw {
+			a.Set(j, i, k[j][i])
+		}
+		for x := range np {
+			a.Set(nw+x, i, kx[x][i])
+		}
+		if l := -k[i][i]; l > 0 {
+			fast, slow = math.Max(fast, l), math.Min(slow, l)
+		}
+	}
+	if !(fast > 0) {
+		return nil, nil, nil, errors.New("job: no well reacts at this point")
+	}
+	// The slowest time is that of the rate matrix's smallest nonzero
+	// eigenvalue, which may be far below every diagonal loss (a well that
+	// feeds back into another).
+	var eig mat.Eigen
+	if eig.Factorize(a.Slice(0, nw, 0, nw), mat.EigenNone) {
+		for _, v := range eig.Values(nil) {
+			if r := math.Abs(real(v)); r > 1e-12*fast {
+				slow = math.Min(slow, r)
+			}
+		}
+	}
+	start := -1
+	for i, w := range res.Wells {
+		if w == res.Reference {
+			start = i
+		}
+	}
+	if start < 0 {
+		start = 0
+	}
+	names = append(append(names, res.Wells...), res.Products...)
+	frac = make([][]float64, n)
+	lo, hi := math.Log10(1e-3/fast), math.Log10(10/slow)
+	var at, e mat.Dense
+	for s := range populationTimes {
+		t := math.Pow(10, lo+(hi-lo)*float64(s)/(populationTimes-1))
+		at.Scale(t, a)
+		e.Exp(&at)
+		times = append(times, t)
+		for k := range n {
+			frac[k] = append(frac[k], e.At(k, start))
+		}
+	}
+	return names, times, frac, nil
 }
