@@ -8,6 +8,8 @@ import (
 
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
+
+	"github.com/falloff-kinetics/falloff/internal/band"
 )
 
 // Ω(2,2)* from the Neufeld–Janzen–Aziz fit against the table of Monchick &
@@ -112,7 +114,7 @@ func TestStrongColliderMatrixPath(t *testing.T) {
 		n := w.N()
 		for _, omega := range []float64{1e2, 1e6, 1e8, 1e12} {
 			got := w.StrongCollider(omega)
-			s := &system{a: newBandedSym(n, n-1), loss: w.K, sqf: sqrtF(w, n)}
+			s := &system{a: band.NewSym(n, n-1), loss: w.K, sqf: sqrtF(w, n)}
 			for pr := range n {
 				i := n - 1 - pr
 				for d := 0; d <= pr; d++ {
@@ -121,7 +123,7 @@ func TestStrongColliderMatrixPath(t *testing.T) {
 					if d == 0 {
 						v += omega + w.K[i]
 					}
-					*s.a.at(pr, d) = v
+					*s.a.At(pr, d) = v
 				}
 			}
 			want := bigEigen(s)

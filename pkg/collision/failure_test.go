@@ -11,6 +11,8 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
+
+	"github.com/falloff-kinetics/falloff/internal/band"
 )
 
 // A failure inside the master equation comes back as a *PointError naming
@@ -90,7 +92,7 @@ func TestCheckRate(t *testing.T) {
 	}
 }
 
-// factorShifted's positivity test is Sylvester's law of inertia: A − σI
+// band.Factor's positivity test is Sylvester's law of inertia: A − σI
 // factorises with positive pivots exactly when σ is below the smallest
 // eigenvalue (Golub & Van Loan 2013, §8.4.1). Checked on a master-equation
 // matrix against gonum's dense symmetric eigensolver: shifts 1 % below the
@@ -103,11 +105,11 @@ func TestFactorShiftedInertia(t *testing.T) {
 		t.Fatal(err)
 	}
 	s := build(p.w, p.kernel, 1e8)
-	n := s.a.n
+	n := s.a.N
 	d := mat.NewSymDense(n, nil)
 	for q := range n {
-		for dd := 0; dd <= s.a.b && q-dd >= 0; dd++ {
-			d.SetSym(q, q-dd, *s.a.at(q, dd))
+		for dd := 0; dd <= s.a.B && q-dd >= 0; dd++ {
+			d.SetSym(q, q-dd, *s.a.At(q, dd))
 		}
 	}
 	var es mat.EigenSym
@@ -117,17 +119,17 @@ func TestFactorShiftedInertia(t *testing.T) {
 	l0 := es.Values(nil)[0]
 	norm := 0.0
 	for q := range n {
-		norm = math.Max(norm, *s.a.at(q, 0))
+		norm = math.Max(norm, *s.a.At(q, 0))
 	}
 	// The dense eigenvalue carries an absolute error of about n·ε·‖A‖; the
 	// ±1 % shifts must lie well outside it.
 	if l0 < 1e4*float64(n)*1e-16*norm {
 		t.Fatalf("λ0 = %g, ‖A‖ ≈ %g: too close to rounding for this test", l0, norm)
 	}
-	if _, ok := factorShifted(s.a, 0.99*l0); !ok {
+	if _, ok := band.Factor(s.a, 0.99*l0); !ok {
 		t.Errorf("σ = 0.99 λ0 refused")
 	}
-	if _, ok := factorShifted(s.a, 1.01*l0); ok {
+	if _, ok := band.Factor(s.a, 1.01*l0); ok {
 		t.Errorf("σ = 1.01 λ0 accepted")
 	}
 }

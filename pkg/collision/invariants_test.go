@@ -83,14 +83,14 @@ func bigEigen(s *system) float64 {
 		}
 	}
 	for p := range n {
-		for d := 0; d <= s.a.b && d <= p; d++ {
-			v := *s.a.at(p, d)
+		for d := 0; d <= s.a.B && d <= p; d++ {
+			v := *s.a.At(p, d)
 			a[p][p-d].Set(nf(v))
 			a[p-d][p].Set(nf(v))
 		}
 	}
 	// LU without pivoting, within the band.
-	b := s.a.b
+	b := s.a.B
 	tmp := nf(0)
 	for k := range n {
 		for i := k + 1; i <= min(n-1, k+b); i++ {

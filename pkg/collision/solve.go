@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+
+	"github.com/falloff-kinetics/falloff/internal/band"
 )
 
 // ErrNoConvergence reports an inverse iteration that did not settle.
@@ -27,7 +29,7 @@ const iterationTol = 1e-13
 // order (position p ↔ grain n−1−p), with the per-grain loss rates that enter
 // the flux identity.
 type system struct {
-	a    *bandedSym
+	a    *band.Sym
 	loss []float64 // ascending-energy order
 	sqf  []float64 // sqrt(F), ascending
 	// tau is the stabilising shift: the iteration factorises A + τI, whose
@@ -51,14 +53,14 @@ const tauPerOmega = 1e-11
 // all grains), so the collision operator conserves population to rounding;
 // and, per grain, the probability of a transition to grains ≥ nk.
 type collisionOperator struct {
-	c      *bandedSym
+	c      *band.Sym
 	escape []float64
 }
 
 func newCollisionOperator(w *Well, k *Kernel, nk int) collisionOperator {
 	n := w.N()
-	op := collisionOperator{c: newBandedSym(nk, min(k.Band, max(nk-1, 0))), escape: make([]float64, nk)}
-	b := op.c.b
+	op := collisionOperator{c: band.NewSym(nk, min(k.Band, max(nk-1, 0))), escape: make([]float64, nk)}
+	b := op.c.B
 	for i := range nk {
 		p := nk - 1 - i
 		out := 0.0
@@ -74,10 +76,10 @@ func newCollisionOperator(w *Well, k *Kernel, nk int) collisionOperator {
 				}
 			}
 		}
-		*op.c.at(p, 0) = out
+		*op.c.At(p, 0) = out
 		for d := 1; d <= b && i+d < nk; d++ {
 			// Row p, column p−d is grain i+d (higher in energy).
-			*op.c.at(p, d) = -k.symmetric(i, i+d)
+			*op.c.At(p, d) = -k.symmetric(i, i+d)
 		}
 	}
 	return op
@@ -101,12 +103,12 @@ func sqrtF(w *Well, nk int) []float64 {
 func build(w *Well, k *Kernel, omega float64) *system {
 	op := k.operator(w)
 	n := w.N()
-	s := &system{a: newBandedSym(n, op.c.b), loss: w.K, sqf: sqrtF(w, n), tau: tauPerOmega * omega}
-	for i, v := range op.c.a {
-		s.a.a[i] = omega * v
+	s := &system{a: band.NewSym(n, op.c.B), loss: w.K, sqf: sqrtF(w, n), tau: tauPerOmega * omega}
+	for i, v := range op.c.A {
+		s.a.A[i] = omega * v
 	}
 	for i := range n {
-		*s.a.at(n-1-i, 0) += w.K[i]
+		*s.a.At(n-1-i, 0) += w.K[i]
 	}
 	return s
 }
@@ -142,7 +144,7 @@ func (s *system) eigen() (Solution, error) {
 	if n == 0 {
 		return Solution{}, errors.New("collision: no grains")
 	}
-	f, ok := factorShifted(s.a, -s.tau)
+	f, ok := band.Factor(s.a, -s.tau)
 	if !ok {
 		return Solution{}, fmt.Errorf("%w: a pivot of its LDLᵀ factorisation is not positive", ErrIllConditioned)
 	}
@@ -154,7 +156,7 @@ func (s *system) eigen() (Solution, error) {
 	prev := math.Inf(1)
 	sigma := -s.tau
 	for it := 1; it <= maxIterations; it++ {
-		f.solve(x)
+		f.Solve(x)
 		scale := 0.0
 		for _, v := range x {
 			scale = math.Max(scale, math.Abs(v))
@@ -179,10 +181,10 @@ func (s *system) eigen() (Solution, error) {
 		}
 		prev = lambda
 		if it%shiftEvery == 0 {
-			rq := s.a.rayleigh(x)
+			rq := s.a.Rayleigh(x)
 			for step := 0.9; step > 1e-3; step /= 4 {
 				next := sigma + step*(rq-sigma)
-				if g, ok := factorShifted(s.a, next); ok {
+				if g, ok := band.Factor(s.a, next); ok {
 					f, sigma = g, next
 					break
 				}
