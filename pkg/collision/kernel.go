@@ -13,6 +13,11 @@ import (
 // the benchmark grid) and costs twice the time.
 const bandTolerance = 1e-7
 
+// KernelReach returns how far in energy, cm⁻¹, the exponential-down kernel
+// with mean downward energy alpha cm⁻¹ reaches from a grain: where
+// exp(−ΔE/α) falls to bandTolerance (16.1·α).
+func KernelReach(alpha float64) float64 { return alpha * -math.Log(bandTolerance) }
+
 // minDownShare is the least total downward probability a grain keeps when the
 // top-down normalisation meets a grain whose upward probabilities from
 // detailed balance alone would sum to one or more.

@@ -81,12 +81,21 @@ type NetworkSource struct {
 
 // networkNoteRates says what NetworkRates computes and leaves out.
 const networkNoteRates = "phenomenological rate coefficients from the chemically significant eigenpairs of the " +
-	"network's master equation, solved densely; the collision frequency is the reference well's with the bath gas; " +
+	"network's master equation (banded block inverse iteration; dense for strong-collider wells); the collision frequency is the reference well's with the bath gas; " +
 	"every rotation active"
 
 // denseSecondsPerGrain3 is the CPU time of one dense network solve per
-// grain cubed, s (0.8 s for 777 grains on the 2-core CI machine).
-const denseSecondsPerGrain3 = 1.7e-9
+// grain cubed, s (0.9 s for 777 grains on the 2-core CI machine).
+const denseSecondsPerGrain3 = 2e-9
+
+// bandedSecondsFactor and bandedSecondsSolve are the CPU times of the
+// banded network solver per grain × bandwidth² (the factorisation) and per
+// grain × bandwidth × vector and iteration (the solves), s, on the 2-core
+// CI machine.
+const (
+	bandedSecondsFactor = 1.5e-10
+	bandedSecondsSolve  = 1.2e-9
+)
 
 // networkCeilingKT is how far above the highest threshold of the network
 // the energy grid reaches, in kT: the single-well default (common practice,
@@ -129,16 +138,29 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 		}
 		top, lowest = math.Max(top, e), math.Min(lowest, e)
 	}
-	// The work before any: a dense symmetric eigensolve of n grains costs
-	// about denseSecondsPerGrain3·n³ (measured: 777 grains in 0.8 s,
-	// pkg/network BenchmarkSolveDense), once per (T, P).
+	// The work before any, per (T, P): the banded solver (every well
+	// exponential-down) factorises n grains of half-bandwidth b ≈ wells ×
+	// kernel band once and iterates a block of 2·wells vectors, about
+	// bandedSecondsFactor·n·b² + bandedSecondsSolve·n·b·60·wells (fitted
+	// to pkg/network BenchmarkSolvePoint: 777 grains, b = 78 and 222, in
+	// 10 and 18 ms, with up to 30 iterations allowed for); the dense
+	// solver (a strong collider) about denseSecondsPerGrain3·n³
+	// (BenchmarkSolvePoint: 777 grains in 0.9 s).
 	if workLimit <= 0 {
 		workLimit = DefaultWorkLimit
 	}
 	est := 0.0
 	for _, tK := range m.Temperatures {
-		n := float64(len(net.Wells) * rrkm.GrainsTo(collision.GrainFor(tr, tK), top+networkCeilingKT*units.KT(tK)).N)
-		est += float64(len(m.Pressures)) * denseSecondsPerGrain3 * n * n * n
+		grain := collision.GrainFor(tr, tK)
+		g, entries := collision.MatrixSize(tr, tK, grain, top+networkCeilingKT*units.KT(tK), lowest)
+		nw := float64(len(net.Wells))
+		n := nw * float64(g.N)
+		if tr.Strong {
+			est += float64(len(m.Pressures)) * denseSecondsPerGrain3 * n * n * n
+			continue
+		}
+		b := nw * entries / float64(g.N)
+		est += float64(len(m.Pressures)) * (bandedSecondsFactor*n*b*b + bandedSecondsSolve*n*b*60*nw)
 	}
 	if est > workLimit {
 		return nil, m.FieldError("grid", fmt.Errorf("the network's master equation over %d temperatures × %d pressures would take about %s of CPU time; the limit is %s",
@@ -183,13 +205,13 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 			grain = lowest / (k + 0.5)
 		}
 		g := rrkm.GrainsTo(grain, top+networkCeilingKT*units.KT(tK))
-		if len(net.Wells)*g.N > network.MaxGrains {
-			return nil, m.FieldError("network", fmt.Errorf("%d wells on %d grains of %.3g cm-1 at %g K: more than the %d grains the dense solver takes", len(net.Wells), g.N, g.Width, tK, network.MaxGrains),
-				"fewer wells or a narrower temperature range; the banded solver is to come")
-		}
 		nw, err := buildNetwork(m, g, zero, tr, counts)
 		if err != nil {
 			return nil, err
+		}
+		if err := network.CheckSize(nw, tK); err != nil {
+			return nil, m.FieldError("network", fmt.Errorf("%d wells on %d grains of %.3g cm-1 at %g K: %w", len(net.Wells), g.N, g.Width, tK, err),
+				"fewer wells or a narrower temperature range")
 		}
 		var kT, kP [][][]float64
 		var sep, bal, eq []float64

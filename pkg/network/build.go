@@ -11,9 +11,9 @@ import (
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
 
-// ErrTooLarge reports a network with more grains than the dense solver takes
-// (MaxGrains).
-var ErrTooLarge = errors.New("network: master-equation matrix too large for the dense solver")
+// ErrTooLarge reports a network larger than the solver that would run takes
+// (MaxGrains for the dense one, MaxBandedEntries for the banded one).
+var ErrTooLarge = errors.New("network: master-equation matrix too large")
 
 // layout places the wells' grains in the matrix. The grains of all wells are
 // interleaved by energy: position order is grain i, then well index, so a
@@ -125,14 +125,23 @@ func (l *layout) size() int { return len(l.well) }
 // off it (equal because k_ba = k_ab·N_a/N_b = k_ab·F_a,i/F_b,i at one
 // energy). It returns S and the reactive fluxes of M (see flux).
 func build(n *Network, l *layout, tK, omega float64) (*mat.SymDense, []flux, error) {
-	size := l.size()
-	s := mat.NewSymDense(size, nil)
-	add := func(p, q int, v float64) {
+	s := mat.NewSymDense(l.size(), nil)
+	fl, err := assemble(n, l, tK, omega, func(p, q int, v float64) {
 		if p > q {
 			p, q = q, p
 		}
 		s.SetSym(p, q, s.At(p, q)+v)
+	})
+	if err != nil {
+		return nil, nil, err
 	}
+	return s, fl, nil
+}
+
+// assemble adds the entries of S (build) one by one through add(p, q, v),
+// S(p, q) += v, each off-diagonal pair once, so that the dense and the
+// banded solvers assemble the same numbers in the same order.
+func assemble(n *Network, l *layout, tK, omega float64, add func(p, q int, v float64)) ([]flux, error) {
 	for w, well := range n.Wells {
 		loc := l.local[w]
 		nl := len(loc)
@@ -162,7 +171,7 @@ func build(n *Network, l *layout, tK, omega float64) (*mat.SymDense, []flux, err
 		cw := &collision.Well{T: tK, E: l.e[w], F: f, Grain: n.Grains.Width, Index: loc}
 		ker, err := collision.ExponentialDown(cw, well.Transfer.Alpha(tK))
 		if err != nil {
-			return nil, nil, fmt.Errorf("network: well %q: %w", well.Name, err)
+			return nil, fmt.Errorf("network: well %q: %w", well.Name, err)
 		}
 		for b := range nl {
 			out := 0.0
@@ -212,7 +221,7 @@ func build(n *Network, l *layout, tK, omega float64) (*mat.SymDense, []flux, err
 				if pa < 0 {
 					lost, kept = a, b
 				}
-				return nil, nil, fmt.Errorf("network: isomerisation %q at E = %v cm-1: the Boltzmann weight of well %q there is below 1e-308 of its population while well %q reacts there; "+
+				return nil, fmt.Errorf("network: isomerisation %q at E = %v cm-1: the Boltzmann weight of well %q there is below 1e-308 of its population while well %q reacts there; "+
 					"the grid spans more than the floating-point range at %g K (hint: a lower ceiling, or a higher temperature)", iso.Name, n.Grains.Energy(i), lost.Name, kept.Name, tK)
 			}
 			add(pa, pa, -kf)
@@ -231,7 +240,7 @@ func build(n *Network, l *layout, tK, omega float64) (*mat.SymDense, []flux, err
 			}
 		}
 	}
-	return s, fl, nil
+	return fl, nil
 }
 
 // flux is one reactive entry of M: population at position p leaves its well

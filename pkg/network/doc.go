@@ -21,12 +21,16 @@
 // isomerisation a ⇄ b moves population between the grains of a and b at
 // the same energy, k_ab(E) given and k_ba(E) = k_ab(E)·N_a(E)/N_b(E) (both are
 // W‡/(hρ) of their wells); an exit removes it at k(E). The matrix is
-// symmetrised with sqrt(F) and, in this first version, diagonalised
-// densely (gonum mat.EigenSym), a reference for a banded solver to come;
-// the grains of all wells are interleaved by energy so that the matrix is
-// banded (Gilbert & Smith, Theory of Unimolecular and Recombination
-// Reactions, 1990, ch. 5; Miller & Klippenstein, J. Phys. Chem. A 110,
-// 10528, 2006).
+// symmetrised with sqrt(F), and the grains of all wells are interleaved by
+// energy so that it is banded (Gilbert & Smith, Theory of Unimolecular and
+// Recombination Reactions, 1990, ch. 5; Miller & Klippenstein, J. Phys.
+// Chem. A 110, 10528, 2006). Where every well is exponential-down, Solve
+// finds the chemically significant modes by block inverse iteration on the
+// banded LDLᵀ factors (banded.go), which keeps full relative precision
+// where they are 1e-15 of ω and less (low temperature); a strong collider
+// fills its well's block, and the network is then diagonalised densely
+// (gonum mat.EigenSym), as is any point whose wells must be merged, and any
+// point with Options.Dense (the reference in the tests).
 //
 // Rate coefficients. With n wells, the n eigenvalues of smallest magnitude
 // are chemically significant (Bartis & Widom, J. Chem. Phys. 60, 3474,
@@ -43,9 +47,10 @@
 // the wells (Result.Overlap, Result.Balance). Solve refuses
 // (SeparationError) where the largest chemically significant eigenvalue is
 // more than 0.1 (Options.MaxSeparation) of the smallest relaxation
-// eigenvalue, and (PrecisionError) where the chemically significant
-// eigenvalues lie below the rounding of the dense solve, as they do at low
-// temperature (ε·‖S‖ against eigenvalues 1e-15 of ω and less). With
+// eigenvalue, and, with the dense solver only, (PrecisionError) where the
+// chemically significant eigenvalues lie below the rounding of the dense
+// solve, as they do at low temperature (ε·‖S‖ against eigenvalues 1e-15 of
+// ω and less). With
 // Options.Merge, Solve instead merges wells in fast equilibrium into one
 // species each, keeping the slowest chemically significant modes that
 // stand apart from relaxation (merge.go); Result.Groups and Result.Merge

@@ -87,6 +87,10 @@ type Options struct {
 	// merge.go), instead of refusing the point. Where the test passes it
 	// changes nothing.
 	Merge bool
+	// Dense solves with the dense reference solver (solveDense) even where
+	// the banded one applies (every well exponential-down): for tests and
+	// benchmarks.
+	Dense bool
 }
 
 // DefaultMaxSeparation is the default Options.MaxSeparation. A

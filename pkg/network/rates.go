@@ -82,13 +82,7 @@ const maxCondition = 1e6
 // and the arithmetic is the same, bit for bit.
 func rates(n *Network, l *layout, vecs *mat.Dense, cols []int, fl []flux, gr *grouping, res *Result) error {
 	nw := len(cols) // the number of groups (of wells, when none is merged)
-	z := mat.NewDense(nw, nw, nil)
-	for p, w := range l.well {
-		g, s := gr.of[w], gr.share[w]
-		for k, c := range cols {
-			z.Set(g, k, z.At(g, k)+s*l.sqf[p]*vecs.At(p, c))
-		}
-	}
+	z, phi, bx := projections(n, l, vecs, cols, fl, gr)
 	if c := mat.Cond(z, 2); !(c <= maxCondition) {
 		return fmt.Errorf("network: T = %g K, ω = %.4g s-1: the chemically significant modes do not resolve the wells (condition number %.3g of their well projections): %w",
 			res.T, res.Omega, c, ErrNotSeparated)
@@ -104,26 +98,6 @@ func rates(n *Network, l *layout, vecs *mat.Dense, cols []int, fl []flux, gr *gr
 	var zinv mat.Dense
 	if err := zinv.Inverse(z); err != nil {
 		return fmt.Errorf("network: T = %g K, ω = %.4g s-1: well projections of the chemically significant modes: %v: %w", res.T, res.Omega, err, ErrNotSeparated)
-	}
-	// Φ' (nw × modes) and b' (exits × modes), with the factor
-	// sqrt(x_from/x_to) of each term.
-	phi := mat.NewDense(nw, nw, nil)
-	var bx *mat.Dense // nil without exits (gonum has no empty matrix)
-	if len(n.Exits) > 0 {
-		bx = mat.NewDense(len(n.Exits), nw, nil)
-	}
-	for _, f := range fl {
-		w, to := l.well[f.p], gr.of[f.to]
-		r := math.Exp((l.logx[w]-gr.logx[to])/2) * l.sqf[f.p]
-		for k, c := range cols {
-			v := f.k * r * vecs.At(f.p, c)
-			phi.Set(to, k, phi.At(to, k)+v)
-			if f.exit >= 0 {
-				// The exit's own well is f.to, so r carries only the
-				// ratio sqrt(x_w/x_g) of its group (1 for a well alone).
-				bx.Set(f.exit, k, bx.At(f.exit, k)-v)
-			}
-		}
 	}
 	var ksym mat.Dense
 	ksym.Mul(phi, &zinv)
@@ -168,4 +142,38 @@ func rates(n *Network, l *layout, vecs *mat.Dense, cols []int, fl []flux, gr *gr
 		}
 	}
 	return nil
+}
+
+// projections returns, for the modes cols of vecs and the grouping gr, the
+// groups' projections Z (groups × modes), the reactive fluxes Φ' (groups ×
+// modes) and the exits' fluxes b' (exits × modes; nil without exits), as
+// rates defines them.
+func projections(n *Network, l *layout, vecs *mat.Dense, cols []int, fl []flux, gr *grouping) (z, phi, bx *mat.Dense) {
+	nw := len(cols)
+	z = mat.NewDense(nw, nw, nil)
+	for p, w := range l.well {
+		g, s := gr.of[w], gr.share[w]
+		for k, c := range cols {
+			z.Set(g, k, z.At(g, k)+s*l.sqf[p]*vecs.At(p, c))
+		}
+	}
+	// Φ' and b', with the factor sqrt(x_from/x_to) of each term.
+	phi = mat.NewDense(nw, nw, nil)
+	if len(n.Exits) > 0 { // gonum has no empty matrix
+		bx = mat.NewDense(len(n.Exits), nw, nil)
+	}
+	for _, f := range fl {
+		w, to := l.well[f.p], gr.of[f.to]
+		r := math.Exp((l.logx[w]-gr.logx[to])/2) * l.sqf[f.p]
+		for k, c := range cols {
+			v := f.k * r * vecs.At(f.p, c)
+			phi.Set(to, k, phi.At(to, k)+v)
+			if f.exit >= 0 {
+				// The exit's own well is f.to, so r carries only the
+				// ratio sqrt(x_w/x_g) of its group (1 for a well alone).
+				bx.Set(f.exit, k, bx.At(f.exit, k)-v)
+			}
+		}
+	}
+	return z, phi, bx
 }

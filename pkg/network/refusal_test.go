@@ -6,6 +6,7 @@ import (
 	"math"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/falloff-kinetics/falloff/pkg/collision"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
@@ -51,10 +52,11 @@ func TestSeparationRefused(t *testing.T) {
 
 // TestPrecisionRefused: at 550 K the chemically significant eigenvalues of
 // the three-well network are below 1e-12 of the matrix norm (k(E) at the
-// top of the grid), beyond the default rounding threshold 1e-4: a
-// *PrecisionError (errors.Is ErrRoundoff) with the estimate.
+// top of the grid), beyond the default rounding threshold 1e-4 of the
+// dense solver: a *PrecisionError (errors.Is ErrRoundoff) with the
+// estimate. (The banded solver keeps the precision: TestLowTemperature.)
 func TestPrecisionRefused(t *testing.T) {
-	_, err := Solve(threeWells(t, expDown), 550, 1e10, Options{})
+	_, err := Solve(threeWells(t, expDown), 550, 1e10, Options{Dense: true})
 	var pe *PrecisionError
 	if !errors.As(err, &pe) || !errors.Is(err, ErrRoundoff) {
 		t.Fatalf("error %v, want a *PrecisionError", err)
@@ -150,8 +152,11 @@ func TestInvalidNetwork(t *testing.T) {
 	}
 }
 
-// TestTooLarge: more grains than the dense solver takes give ErrTooLarge
-// before any matrix is formed.
+// TestTooLarge: more grains than the dense solver takes (strong collider),
+// or a band matrix beyond MaxBandedEntries (exponential-down: 45 000
+// grains of 10 cm⁻¹ with a kernel reaching 16.1·α ≈ 11 000 cm⁻¹, over
+// 1e8 entries), give ErrTooLarge before any matrix is formed, from Solve
+// and from CheckSize alike.
 func TestTooLarge(t *testing.T) {
 	g := rrkm.Grains{Width: 10, N: 1500}
 	ones := make([]float64, g.N)
@@ -165,13 +170,36 @@ func TestTooLarge(t *testing.T) {
 	if _, err := Solve(net, 1000, 1e9, Options{}); !errors.Is(err, ErrTooLarge) {
 		t.Errorf("4500 grains: error %v, want ErrTooLarge", err)
 	}
+	if err := CheckSize(net, 1000); !errors.Is(err, ErrTooLarge) {
+		t.Errorf("4500 grains: CheckSize: %v, want ErrTooLarge", err)
+	}
+	big := &Network{Grains: rrkm.Grains{Width: 10, N: 15000}}
+	many := make([]float64, big.Grains.N)
+	for i := range many {
+		many[i] = 1
+	}
+	for _, name := range []string{"A", "B", "C"} {
+		big.Wells = append(big.Wells, Well{Name: name, Counts: many, Transfer: expDown})
+	}
+	start := time.Now()
+	_, err := Solve(big, 1000, 1e9, Options{})
+	if !errors.Is(err, ErrTooLarge) || !strings.Contains(err.Error(), "entries") {
+		t.Errorf("45 000 banded grains: error %v, want ErrTooLarge naming the entries", err)
+	}
+	if err := CheckSize(big, 1000); !errors.Is(err, ErrTooLarge) {
+		t.Errorf("45 000 banded grains: CheckSize: %v, want ErrTooLarge", err)
+	}
+	if small := CheckSize(threeWells(t, expDown), 1000); small != nil {
+		t.Errorf("the three-well test network: CheckSize: %v", small)
+	}
+	t.Logf("%v (refused in %v)", err, time.Since(start))
 }
 
 // TestLayoutBanded: the grains of all wells are interleaved by energy, so
 // that with the exponential-down kernel (cut where exp(−ΔE/α) < 1e-7,
 // pkg/collision) every nonzero entry of the matrix lies within
 // n_wells·(band + 1) of the diagonal, band = ⌊16.12·α/Δ⌋ grains: the
-// structure the banded solver of a later step needs.
+// structure the banded solver needs, and within bandBound, its size check.
 func TestLayoutBanded(t *testing.T) {
 	const tK = 1000
 	net := threeWells(t, expDown)
@@ -198,7 +226,10 @@ func TestLayoutBanded(t *testing.T) {
 	if widest > limit {
 		t.Errorf("nonzero entry %d positions off the diagonal, limit %d", widest, limit)
 	}
-	t.Logf("half-bandwidth %d of %d positions (limit %d; α = %.0f cm-1, %g cm-1 grains)", widest, l.size(), limit, expDown.Alpha(tK), testGrid.Width)
+	if bb := bandBound(net, tK); bb < widest {
+		t.Errorf("bandBound %d below the measured half-bandwidth %d", bb, widest)
+	}
+	t.Logf("half-bandwidth %d of %d positions (limit %d, bandBound %d; α = %.0f cm-1, %g cm-1 grains)", widest, l.size(), limit, bandBound(net, tK), expDown.Alpha(tK), testGrid.Width)
 }
 
 // TestHighWell: a well 100 000 cm⁻¹ (286 kcal/mol) above another. At 300 K

@@ -85,7 +85,14 @@ type Result struct {
 	// The rate coefficients come from the eigenvectors through the
 	// reactive fluxes (see rates) and were measured 3 to 3000 times more
 	// precise than this bound for one well; it is the bound Solve checks.
+	// For the banded solver, which keeps the relative precision of the
+	// modes, it is the last change of the chemical subspace plus
+	// ε·cond(Z): about 1e-13 (measured against 256-bit arithmetic,
+	// TestLowTemperature).
 	Roundoff float64
+	// Banded says which solver ran: the banded block iteration (true) or
+	// the dense eigensolver (false).
+	Banded bool
 	// Sources holds the yields of each of Network.Sources, in order
 	// (source.go); nil without sources.
 	Sources []SourceResult
@@ -96,7 +103,8 @@ type Result struct {
 var ErrNotSeparated = errors.New("network: chemically significant eigenvalues not separated from energy relaxation")
 
 // ErrRoundoff marks chemically significant eigenvalues lost in the rounding
-// of the dense solve (PrecisionError).
+// of the dense solve (PrecisionError), or a banded solve whose estimated
+// error exceeds Options.MaxRoundoff.
 var ErrRoundoff = errors.New("network: chemically significant eigenvalues below the rounding of the dense solve")
 
 // SeparationError reports a (T, ω) point where the slowest
@@ -146,9 +154,10 @@ func (e *PrecisionError) Unwrap() error { return ErrRoundoff }
 // Solve solves the master equation of network n at tK with collision
 // frequency omega (s⁻¹, the same for every well; a strong collider's
 // efficiency multiplies it) and returns the phenomenological rate
-// coefficients. It diagonalises the whole symmetrised matrix densely
-// (gonum mat.EigenSym, O(N³) in the number N of grains): a reference for a
-// banded solver to come.
+// coefficients: by block inverse iteration on the banded matrix where
+// every well is exponential-down (banded.go), else, or with opt.Dense, or
+// where wells must be merged (opt.Merge), by diagonalising the symmetrised
+// matrix densely (gonum mat.EigenSym, O(N³) in the number N of grains).
 //
 // Failures: an invalid network (a plain error), ErrTooLarge, a
 // *SeparationError when the chemically significant eigenvalues are not
@@ -176,9 +185,6 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 	nw := len(n.Wells)
 	l := newLayout(n, tK)
 	size := l.size()
-	if size > MaxGrains {
-		return nil, fmt.Errorf("%w: %d grains over %d wells, at most %d (hint: a larger grain or a lower ceiling)", ErrTooLarge, size, nw, MaxGrains)
-	}
 	for w, loc := range l.local {
 		if len(loc) == 0 {
 			return nil, fmt.Errorf("network: well %q has no state on the grid", n.Wells[w].Name)
@@ -187,27 +193,119 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 	if size <= nw {
 		return nil, fmt.Errorf("network: %d grains for %d wells: no energy-relaxation mode to separate from", size, nw)
 	}
-	s, fl, err := build(n, l, tK, omega)
-	if err != nil {
-		return nil, err
-	}
-	var es mat.EigenSym
-	if !es.Factorize(s, true) {
-		return nil, errors.New("network: dense eigendecomposition failed")
-	}
-	vals := es.Values(nil) // ascending: the most negative first
-	for _, v := range vals {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, fmt.Errorf("network: eigenvalue %v", v)
-		}
-	}
-	var vecs mat.Dense
-	es.VectorsTo(&vecs)
-
 	res := &Result{T: tK, Omega: omega, Grains: size}
 	for _, well := range n.Wells {
 		res.Wells = append(res.Wells, well.Name)
 	}
+	var (
+		sp  *spectrum
+		fl  []flux
+		err error
+	)
+	banded := !opt.Dense && bandable(n)
+	if err := checkSize(n, l, tK, banded); err != nil {
+		return nil, err
+	}
+	if banded {
+		if sp, fl, err = solveBanded(n, l, tK, omega, opt.MaxSeparation, res); err != nil {
+			return nil, err
+		}
+		// Merging wells needs the chemical modes that are not separated,
+		// which the block iteration does not resolve: the dense solver
+		// redoes such a point where it can.
+		if !(res.Separation <= opt.MaxSeparation) && opt.Merge && size <= MaxGrains {
+			banded = false
+			res = &Result{T: tK, Omega: omega, Grains: size, Wells: res.Wells}
+		}
+	}
+	if !banded {
+		if err := checkSize(n, l, tK, false); err != nil {
+			return nil, err
+		}
+		if sp, fl, err = solveDense(n, l, tK, omega, res); err != nil {
+			return nil, err
+		}
+	}
+	chem := math.Abs(res.Eigenvalues[nw-1])
+	res.Separation = chem / math.Abs(res.Relaxation)
+	gr := singletons(l) // every well its own species unless merged
+	if !(res.Separation <= opt.MaxSeparation) {
+		se := &SeparationError{T: tK, Omega: omega, Separation: res.Separation, Max: opt.MaxSeparation,
+			Chemical: res.Eigenvalues[nw-1], Relaxation: res.Relaxation}
+		if !opt.Merge || banded || sp == nil {
+			if opt.Merge && banded {
+				se.MergeFailure = fmt.Errorf("%d grains are more than the %d of the dense solver, which merging needs", size, MaxGrains)
+			}
+			return nil, se
+		}
+		// Keep the slowest modes that stand apart and merge the wells in
+		// fast equilibrium in them (merge.go); this updates the
+		// eigenvalues and the separation in res.
+		if gr, sp.cols, err = merge(n, l, sp.vecs, sp.cols, res, opt.MaxSeparation); err != nil {
+			se.MergeFailure = err
+			return nil, se
+		}
+		fl = groupFluxes(fl, l, gr)
+	}
+	res.Banded = banded
+	res.Groups, res.GroupNames = gr.members, gr.names(n)
+	res.Equilibrium = make([]float64, len(gr.members))
+	for g := range gr.members {
+		res.Equilibrium[g] = math.Exp(gr.logx[g])
+	}
+	if !banded && res.Conserved < len(res.Eigenvalues) { // nw, or the groups' number
+		res.Roundoff = 0x1p-52 * sp.norm / math.Abs(res.Eigenvalues[res.Conserved])
+	}
+	if !(res.Roundoff <= opt.MaxRoundoff) {
+		return nil, &PrecisionError{T: tK, Omega: omega, Roundoff: res.Roundoff, Max: opt.MaxRoundoff}
+	}
+	if err := rates(n, l, sp.vecs, sp.cols, fl, gr, res); err != nil {
+		return nil, err
+	}
+	// The bimolecular sources' yields (source.go).
+	if len(n.Sources) > 0 {
+		if err := sources(n, l, sp, gr, res); err != nil {
+			return nil, err
+		}
+	}
+	return res, nil
+}
+
+// spectrum is what a solver gives rates and sources: the chemically
+// significant modes cols of vecs (columns over the layout's positions,
+// smallest |λ| first), the solve relax(a) = Σ over the other modes of
+// v·(vᵀa)/|λ| (a and the result in layout order), and for the dense
+// solver the largest |λ| of S.
+type spectrum struct {
+	vecs  *mat.Dense
+	cols  []int
+	relax func(a []float64) []float64
+	norm  float64
+}
+
+// solveDense diagonalises S densely (gonum mat.EigenSym, O(N³) in the
+// number N of grains): the reference for the banded solver, and the
+// solver for strong-collider wells, whose kernel fills a well's block.
+// It fills res's spectrum fields as solveBanded does, but Roundoff, which
+// Solve sets after any merging.
+func solveDense(n *Network, l *layout, tK, omega float64, res *Result) (*spectrum, []flux, error) {
+	nw, size := len(n.Wells), l.size()
+	s, fl, err := build(n, l, tK, omega)
+	if err != nil {
+		return nil, nil, err
+	}
+	var es mat.EigenSym
+	if !es.Factorize(s, true) {
+		return nil, nil, errors.New("network: dense eigendecomposition failed")
+	}
+	vals := es.Values(nil) // ascending: the most negative first
+	for _, v := range vals {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, nil, fmt.Errorf("network: eigenvalue %v", v)
+		}
+	}
+	vecs := &mat.Dense{}
+	es.VectorsTo(vecs)
 	// The chemically significant eigenvalues (CSEs) are the nw of smallest
 	// magnitude, columns size−1, size−2, … of vecs; column cols[k] holds
 	// the k-th (Bartis & Widom 1974; Miller & Klippenstein 2006).
@@ -226,53 +324,26 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 	for k := range res.Conserved {
 		res.Eigenvalues[k] = 0
 	}
-	chem := math.Abs(res.Eigenvalues[nw-1])
-	res.Separation = chem / math.Abs(res.Relaxation)
-	gr := singletons(l) // every well its own species unless merged
-	if !(res.Separation <= opt.MaxSeparation) {
-		se := &SeparationError{T: tK, Omega: omega, Separation: res.Separation, Max: opt.MaxSeparation,
-			Chemical: res.Eigenvalues[nw-1], Relaxation: res.Relaxation}
-		if !opt.Merge {
-			return nil, se
-		}
-		// Keep the slowest modes that stand apart and merge the wells in
-		// fast equilibrium in them (merge.go); this updates the
-		// eigenvalues and the separation in res.
-		if gr, cols, err = merge(n, l, &vecs, cols, res, opt.MaxSeparation); err != nil {
-			se.MergeFailure = err
-			return nil, se
-		}
-		fl = groupFluxes(fl, l, gr)
-	}
-	res.Groups, res.GroupNames = gr.members, gr.names(n)
-	res.Equilibrium = make([]float64, len(gr.members))
-	for g := range gr.members {
-		res.Equilibrium[g] = math.Exp(gr.logx[g])
-	}
+	sp := &spectrum{vecs: vecs, cols: cols, norm: math.Max(math.Abs(vals[0]), math.Abs(vals[size-1]))}
 	// Precision: at low temperature the chemically significant eigenvalues
 	// can be 1e-15 of ω and less (a rate of 1e-5 s⁻¹ beside ω = 1e10 s⁻¹),
 	// below the absolute accuracy ε·‖S‖₂ of any dense float64
-	// eigensolver, which then returns noise. This step only detects it;
-	// the cure (working with the flux identities and a banded solver that
-	// keeps relative precision, as pkg/collision does for one well) is a
-	// later step.
-	if res.Conserved < len(res.Eigenvalues) { // nw, or the groups' number
-		norm := math.Max(math.Abs(vals[0]), math.Abs(vals[size-1]))
-		res.Roundoff = 0x1p-52 * norm / math.Abs(res.Eigenvalues[res.Conserved])
-	}
-	if !(res.Roundoff <= opt.MaxRoundoff) {
-		return nil, &PrecisionError{T: tK, Omega: omega, Roundoff: res.Roundoff, Max: opt.MaxRoundoff}
-	}
-	if err := rates(n, l, &vecs, cols, fl, gr, res); err != nil {
-		return nil, err
-	}
-	// The bimolecular sources' yields (source.go).
-	if len(n.Sources) > 0 {
-		if err := sources(n, l, vals, &vecs, cols, gr, res); err != nil {
-			return nil, err
+	// eigensolver, which then returns noise; Solve detects it through
+	// Roundoff (the banded solver keeps the precision).
+	sp.relax = func(a []float64) []float64 {
+		var c mat.VecDense
+		c.MulVec(vecs.T(), mat.NewVecDense(size, a))
+		for m := range size {
+			c.SetVec(m, -c.AtVec(m)/vals[m])
 		}
+		for _, m := range sp.cols { // after any merging
+			c.SetVec(m, 0)
+		}
+		var y mat.VecDense
+		y.MulVec(vecs, &c)
+		return y.RawVector().Data
 	}
-	return res, nil
+	return sp, fl, nil
 }
 
 // conservedGroups returns the number of groups of wells, joined by
@@ -319,4 +390,32 @@ func positive(xs []float64) bool {
 		}
 	}
 	return false
+}
+
+// CheckSize reports, without solving, whether Solve can take n at tK: an
+// error wrapping ErrTooLarge names the size and the limit of the solver
+// that would run (dense where a well is a strong collider, MaxGrains;
+// banded otherwise, MaxBandedEntries, on a bound of the bandwidth). The
+// collision frequency does not change the size.
+func CheckSize(n *Network, tK float64) error {
+	if err := n.validate(); err != nil {
+		return err
+	}
+	return checkSize(n, newLayout(n, tK), tK, bandable(n))
+}
+
+func checkSize(n *Network, l *layout, tK float64, banded bool) error {
+	size, nw := l.size(), len(n.Wells)
+	if !banded {
+		if size > MaxGrains {
+			return fmt.Errorf("%w: %d grains over %d wells, at most %d for the dense solver (strong-collider wells, or merging) (hint: a larger grain, a lower ceiling, or exponential-down)", ErrTooLarge, size, nw, MaxGrains)
+		}
+		return nil
+	}
+	b := bandBound(n, tK)
+	if e := size * (b + 1); e > MaxBandedEntries {
+		return fmt.Errorf("%w: %d grains over %d wells with half-bandwidth up to %d (%d entries), at most %d entries (hint: a larger grain or a lower ceiling)",
+			ErrTooLarge, size, nw, b, e, MaxBandedEntries)
+	}
+	return nil
 }

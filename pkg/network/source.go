@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -116,9 +115,9 @@ func (s Source) name() string {
 	return s.Name
 }
 
-// sources fills res.Sources from the eigenpairs of the symmetrised matrix
-// (vals ascending, vecs their columns; cols the chemically significant
-// ones, as Solve found them).
+// sources fills res.Sources from the chemically significant modes of the
+// symmetrised matrix and the solve of its relaxation part (sp, as Solve
+// found them).
 //
 // Chemical-activation distribution. At equilibrium the association R → w
 // fills grain i of w as fast as the dissociation empties it (detailed
@@ -176,24 +175,23 @@ func (s Source) name() string {
 // yields are as above with the merged wells' fast interconversion among
 // the modes not kept. For wells alone the factors are exactly 1 and the
 // arithmetic is as without groups, bit for bit.
-func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int, gr *grouping, res *Result) error {
+func sources(n *Network, l *layout, sp *spectrum, gr *grouping, res *Result) error {
+	vecs, cols := sp.vecs, sp.cols
 	size := l.size()
-	chem := make([]bool, size)
-	for _, c := range cols {
-		chem[c] = true
-	}
-	// b[e][m] = Σ_{i∈exit e} k_e(E_i)·sqrt(f_i)·v_im (B_em/sqrt(x_well)) for
-	// every mode m; z[w][k] = Σ_{i∈w} sqrt(f_i)·v_im, m = cols[k], for the
-	// chemical modes (Z of rates).
+	// b[e][k] = Σ_{i∈exit e} k_e(E_i)·sqrt(f_i)·v_im (B_em/sqrt(x_well)) and
+	// z[w][k] = Σ_{i∈w} sqrt(f_i)·v_im (Z of rates) for the chemical modes
+	// m = cols[k].
 	b := make([][]float64, len(n.Exits))
 	for e, ex := range n.Exits {
-		b[e] = make([]float64, size)
+		b[e] = make([]float64, len(cols))
 		for i, k := range ex.K {
 			p := l.pos[ex.Well][i]
 			if p < 0 || k == 0 {
 				continue
 			}
-			floats.AddScaled(b[e], k*l.sqf[p], vecs.RawRowView(p))
+			for kk, m := range cols {
+				b[e][kk] += k * l.sqf[p] * vecs.At(p, m)
+			}
 		}
 	}
 	ng := len(cols) // groups (wells, when none is merged)
@@ -202,10 +200,9 @@ func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int,
 		z[g] = make([]float64, len(cols))
 	}
 	for p, w := range l.well {
-		row := vecs.RawRowView(p)
 		g, s := gr.of[w], gr.share[w]
 		for k, c := range cols {
-			z[g][k] += s * l.sqf[p] * row[c]
+			z[g][k] += s * l.sqf[p] * vecs.At(p, c)
 		}
 	}
 	var zinv mat.Dense // rates has checked the condition of Z
@@ -236,19 +233,28 @@ func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int,
 			return fmt.Errorf("network: T = %g K: source %q: the k(E) of exit %q is zero wherever well %q holds population (KInf = %v s-1): no chemical-activation distribution",
 				res.T, src.name(), src.Exit, n.Wells[w].Name, kinf)
 		}
-		// c'_m = Σ_i (a_i/sqrt(f_i))·v_im = c_m·sqrt(x_w).
-		c := make([]float64, size)
+		// a'_p = a_p/sqrt(f_p), and c'_k = Σ_p a'_p·v_pm = c_m·sqrt(x_w)
+		// for the chemical modes m = cols[k].
+		ap := make([]float64, size)
 		for a, i := range l.local[w] {
 			if kwr[a] > 0 {
 				p := l.pos[w][i]
-				floats.AddScaled(c, kwr[a]*l.sqf[p]/kinf, vecs.RawRowView(p))
+				ap[p] = kwr[a] * l.sqf[p] / kinf
+			}
+		}
+		c := make([]float64, len(cols))
+		for k, m := range cols {
+			for p, v := range ap {
+				if v != 0 {
+					c[k] += v * vecs.At(p, m)
+				}
 			}
 		}
 		sr := SourceResult{Name: src.name(), KInf: kinf, Wells: make([]float64, ng), Exits: make([]float64, len(res.Exits))}
 		for v := range ng {
 			y := 0.0
-			for k, m := range cols {
-				y += z[v][k] * c[m]
+			for k := range cols {
+				y += z[v][k] * c[k]
 			}
 			sr.Wells[v] = math.Exp((gr.logx[v]-l.logx[w])/2) * y
 		}
@@ -264,8 +270,8 @@ func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int,
 			}
 			for v := range db {
 				kc := 0.0
-				for k, m := range cols {
-					kc += b[e][m] * zinv.At(k, v)
+				for k := range cols {
+					kc += b[e][k] * zinv.At(k, v)
 				}
 				db[v] += kc * math.Exp((gr.logx[v]-l.logx[w])/2) / kinf
 			}
@@ -276,14 +282,17 @@ func sources(n *Network, l *layout, vals []float64, vecs *mat.Dense, cols []int,
 		for v, y := range sr.Wells {
 			sr.Balance = math.Max(sr.Balance, math.Abs(y-db[v])/sum)
 		}
-		for e, ex := range n.Exits {
-			y := 0.0
-			for m, bm := range b[e] {
-				if !chem[m] && bm != 0 {
-					y -= bm * c[m] / vals[m]
+		// The products' yields: Y_x = Σ_{exits e to x} Σ_i k_e(E_i)·sqrt(f_i)·y_i
+		// with y = Σ_{m relax} v_m·c'_m/|λ_m| (sp.relax).
+		y := sp.relax(ap)
+		for _, ex := range n.Exits {
+			t := 0.0
+			for i, k := range ex.K {
+				if p := l.pos[ex.Well][i]; p >= 0 && k != 0 {
+					t += k * l.sqf[p] * y[p]
 				}
 			}
-			sr.Exits[row[ex.Name]] += math.Exp((l.logx[ex.Well]-l.logx[w])/2) * y
+			sr.Exits[row[ex.Name]] += math.Exp((l.logx[ex.Well]-l.logx[w])/2) * t
 		}
 		for _, y := range append(append([]float64{sr.Balance}, sr.Wells...), sr.Exits...) {
 			if math.IsNaN(y) || math.IsInf(y, 0) {
