@@ -173,7 +173,8 @@ func orthonormalise(xs, ys [][]float64) error {
 }
 
 // blockResult is what the block iteration gives: the first nw Ritz vectors
-// (the chemical subspace, in descending order), the Ritz values θ
+// (the chemical subspace, in descending order; with merging, keep < nw
+// of them converged, the slowest modes that stand apart), the Ritz values θ
 // ascending (θ[nw], of the first guard, an upper bound on the smallest
 // relaxation eigenvalue of A by Courant–Fischer), the last change of the
 // chemical subspace, and separated = false where the iteration stopped
@@ -181,6 +182,7 @@ func orthonormalise(xs, ys [][]float64) error {
 // relaxation (the subspace then has not converged, and only θ is of use).
 type blockResult struct {
 	chem      [][]float64
+	keep      int
 	theta     []float64
 	change    float64
 	separated bool
@@ -193,8 +195,11 @@ type blockResult struct {
 const notSeparatedAfter = 20
 
 // subspace runs the block iteration; maxSep is the separation threshold
-// (Options.MaxSeparation).
-func (s *bandedSystem) subspace(n *Network, l *layout, maxSep float64) (*blockResult, error) {
+// (Options.MaxSeparation). With merge, where the chemical modes are not
+// separated, it goes on to converge the slowest modes that stand apart
+// (keptModes over the Ritz values, conserved groups' zeros exact), which
+// merge then groups the wells by.
+func (s *bandedSystem) subspace(n *Network, l *layout, maxSep float64, merge bool, conserved int) (*blockResult, error) {
 	size, nw := l.size(), len(n.Wells)
 	m := min(2*nw, size)
 	xs := make([][]float64, m)
@@ -230,6 +235,7 @@ func (s *bandedSystem) subspace(n *Network, l *layout, maxSep float64) (*blockRe
 	for k := range rot {
 		rot[k] = make([]float64, size)
 	}
+	keep := nw // the modes that must converge
 	change, prevRelax := math.Inf(1), math.Inf(1)
 	for it := 1; it <= maxSubspaceIterations; it++ {
 		// Y = (A + τI)⁻¹·X, and A·Y = X − τ·Y without a product with A.
@@ -267,9 +273,9 @@ func (s *bandedSystem) subspace(n *Network, l *layout, maxSep float64) (*blockRe
 		// The change of the chemical subspace: ‖X − X_old·(X_oldᵀX)‖_F.
 		prev := change
 		change = 0
-		for _, x := range xs[:nw] {
+		for _, x := range xs[:keep] {
 			r := slices.Clone(x)
-			for _, o := range old {
+			for _, o := range old[:keep] {
 				floats.AddScaled(r, -floats.Dot(o, x), o)
 			}
 			change += floats.Dot(r, r)
@@ -280,24 +286,44 @@ func (s *bandedSystem) subspace(n *Network, l *layout, maxSep float64) (*blockRe
 		}
 		// Stop at the tolerance, or where the change has stalled at the
 		// level of rounding.
-		relaxChange := math.Abs(theta[min(nw, m-1)]/prevRelax - 1)
-		prevRelax = theta[min(nw, m-1)]
-		if (change <= subspaceTol || change < 1e-10 && change > 0.5*prev) && relaxChange <= relaxTol {
+		relaxChange := math.Abs(theta[min(keep, m-1)]/prevRelax - 1)
+		prevRelax = theta[min(keep, m-1)]
+		converged := (change <= subspaceTol || change < 1e-10 && change > 0.5*prev) && relaxChange <= relaxTol
+		if converged && merge && keep == nw && nw < m && theta[nw-1] > maxSep*theta[nw] {
+			// Converged, but not separated: go on to the kept modes
+			// below, whose Ritz vectors merge needs.
+			converged = false
+			it = max(it, notSeparatedAfter)
+		}
+		if converged {
 			// A last step on the chemical block alone removes what the
 			// Ritz rotation mixed into it from the guards (its rounding,
 			// ε·‖A‖/gap): that part shrinks by |λ_chem|/|λ_relax| while
 			// the chemical modes keep their shape.
-			chem := xs[:nw]
+			chem := xs[:keep]
 			for _, x := range chem {
 				s.f.Solve(x)
 			}
 			if err := orthonormalise(chem, nil); err != nil {
 				return nil, err
 			}
-			return &blockResult{chem: chem, theta: theta, change: change, separated: true}, nil
+			return &blockResult{chem: xs[:nw], keep: keep, theta: theta, change: change, separated: keep == nw}, nil
 		}
-		if it >= notSeparatedAfter && nw < m && theta[nw-1] > maxSep*theta[nw] {
-			return &blockResult{theta: theta, change: change}, nil
+		if it >= notSeparatedAfter && keep == nw && nw < m && theta[nw-1] > maxSep*theta[nw] {
+			if !merge {
+				return &blockResult{theta: theta, change: change}, nil
+			}
+			eig := make([]float64, nw)
+			for k := range eig {
+				eig[k] = -theta[k]
+			}
+			for k := range conserved {
+				eig[k] = 0
+			}
+			if keep = keptModes(eig, -theta[nw], maxSep); keep == 0 || keep < conserved {
+				return &blockResult{theta: theta, change: change}, nil
+			}
+			change, prevRelax = math.Inf(1), math.Inf(1)
 		}
 	}
 	return nil, fmt.Errorf("%w after %d block iterations (subspace change %.3g)", ErrNoConvergence, maxSubspaceIterations, change)
@@ -309,12 +335,12 @@ func (s *bandedSystem) subspace(n *Network, l *layout, maxSep float64) (*blockRe
 // significant modes as the columns of vecs (layout order), each an
 // approximate eigenvector, smallest |λ| first; the reactive fluxes; and
 // the solve of the relaxation part for the sources.
-func solveBanded(n *Network, l *layout, tK, omega float64, maxSep float64, res *Result) (*spectrum, []flux, error) {
+func solveBanded(n *Network, l *layout, tK, omega float64, maxSep float64, merge bool, res *Result) (*spectrum, []flux, error) {
 	s, fl, err := buildBanded(n, l, tK, omega)
 	if err != nil {
 		return nil, nil, err
 	}
-	br, err := s.subspace(n, l, maxSep)
+	br, err := s.subspace(n, l, maxSep, merge, conservedGroups(n))
 	if err != nil {
 		return nil, nil, fmt.Errorf("network: T = %g K, ω = %.4g s-1: %w", tK, omega, err)
 	}
@@ -323,7 +349,8 @@ func solveBanded(n *Network, l *layout, tK, omega float64, maxSep float64, res *
 	relax := br.theta[nw]
 	res.Relaxation = -relax
 	if !br.separated {
-		// Not separated: the Ritz values, for the SeparationError.
+		// Not separated: the Ritz values, for the SeparationError and
+		// for merge.
 		for k := range nw {
 			res.Eigenvalues = append(res.Eigenvalues, -br.theta[k])
 		}
@@ -331,7 +358,37 @@ func solveBanded(n *Network, l *layout, tK, omega float64, maxSep float64, res *
 			res.Eigenvalues[k] = 0
 		}
 		res.Separation = br.theta[nw-1] / relax
-		return nil, fl, nil
+		if br.chem == nil {
+			return nil, fl, nil
+		}
+		// The Ritz vectors, of which merge keeps the first br.keep (those
+		// that converged): their Ritz values are the eigenvalues to the
+		// square of the subspace change, and at such points (high
+		// temperature, low pressure) the eigenvalues lie far above
+		// rounding.
+		vecs := mat.NewDense(size, nw, nil)
+		for k, x := range br.chem {
+			for q, v := range x {
+				vecs.Set(size-1-q, k, v)
+			}
+		}
+		sp := &spectrum{vecs: vecs, cols: make([]int, nw)}
+		for k := range sp.cols {
+			sp.cols[k] = k
+		}
+		sp.relax = func(a []float64) []float64 { return s.relaxSolve(br.chem[:len(sp.cols)], a) }
+		// A Ritz value is accurate to ε·‖A‖ absolutely (as a dense
+		// eigenvalue), ‖A‖ ≤ 2·max A_ii by Gershgorin's theorem (A's rows
+		// sum to non-negative values: an M-matrix).
+		norm := 0.0
+		for q := range size {
+			norm = math.Max(norm, 2**s.a.At(q, 0))
+		}
+		res.Roundoff = br.change
+		if res.Conserved < br.keep {
+			res.Roundoff += 0x1p-52 * norm / br.theta[res.Conserved]
+		}
+		return sp, fl, nil
 	}
 	xs, change := br.chem, br.change
 	vecs := mat.NewDense(size, nw, nil)
@@ -388,7 +445,14 @@ func solveBanded(n *Network, l *layout, tK, omega float64, maxSep float64, res *
 	// well projections adds ε·cond(Z).
 	res.Roundoff = change + 0x1p-52*mat.Cond(z, 2)
 	sp := &spectrum{vecs: vecs, cols: cols}
-	sp.relax = func(a []float64) []float64 { return s.relaxSolve(xs, a) }
+	rx := make([][]float64, nw) // the rotated modes, descending order
+	for k := range rx {
+		rx[k] = make([]float64, size)
+		for q := range rx[k] {
+			rx[k][q] = vecs.At(size-1-q, k)
+		}
+	}
+	sp.relax = func(a []float64) []float64 { return s.relaxSolve(rx[:len(sp.cols)], a) }
 	return sp, fl, nil
 }
 

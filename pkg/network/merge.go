@@ -235,6 +235,9 @@ func merge(n *Network, l *layout, vecs *mat.Dense, cols []int, res *Result, maxS
 	if m < res.Conserved { // keptModes keeps every exact zero; a guard
 		return nil, nil, fmt.Errorf("%d modes kept, fewer than the %d conserved ones", m, res.Conserved)
 	}
+	if vecs == nil { // the banded solver found no kept set either
+		return nil, nil, errors.New("no converged set of slowest modes to keep")
+	}
 	cols = cols[:m]
 	gr, dep, err := groupWells(n, l, vecs, cols)
 	if err != nil {

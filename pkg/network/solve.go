@@ -207,24 +207,11 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 		return nil, err
 	}
 	if banded {
-		if sp, fl, err = solveBanded(n, l, tK, omega, opt.MaxSeparation, res); err != nil {
+		if sp, fl, err = solveBanded(n, l, tK, omega, opt.MaxSeparation, opt.Merge, res); err != nil {
 			return nil, err
 		}
-		// Merging wells needs the chemical modes that are not separated,
-		// which the block iteration does not resolve: the dense solver
-		// redoes such a point where it can.
-		if !(res.Separation <= opt.MaxSeparation) && opt.Merge && size <= MaxGrains {
-			banded = false
-			res = &Result{T: tK, Omega: omega, Grains: size, Wells: res.Wells}
-		}
-	}
-	if !banded {
-		if err := checkSize(n, l, tK, false); err != nil {
-			return nil, err
-		}
-		if sp, fl, err = solveDense(n, l, tK, omega, res); err != nil {
-			return nil, err
-		}
+	} else if sp, fl, err = solveDense(n, l, tK, omega, res); err != nil {
+		return nil, err
 	}
 	chem := math.Abs(res.Eigenvalues[nw-1])
 	res.Separation = chem / math.Abs(res.Relaxation)
@@ -232,19 +219,22 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 	if !(res.Separation <= opt.MaxSeparation) {
 		se := &SeparationError{T: tK, Omega: omega, Separation: res.Separation, Max: opt.MaxSeparation,
 			Chemical: res.Eigenvalues[nw-1], Relaxation: res.Relaxation}
-		if !opt.Merge || banded || sp == nil {
-			if opt.Merge && banded {
-				se.MergeFailure = fmt.Errorf("%d grains are more than the %d of the dense solver, which merging needs", size, MaxGrains)
-			}
+		if !opt.Merge {
 			return nil, se
 		}
 		// Keep the slowest modes that stand apart and merge the wells in
 		// fast equilibrium in them (merge.go); this updates the
 		// eigenvalues and the separation in res.
-		if gr, sp.cols, err = merge(n, l, sp.vecs, sp.cols, res, opt.MaxSeparation); err != nil {
+		var vecs *mat.Dense
+		var cols []int
+		if sp != nil { // nil: the banded solver found no modes to keep
+			vecs, cols = sp.vecs, sp.cols
+		}
+		if gr, cols, err = merge(n, l, vecs, cols, res, opt.MaxSeparation); err != nil {
 			se.MergeFailure = err
 			return nil, se
 		}
+		sp.cols = cols
 		fl = groupFluxes(fl, l, gr)
 	}
 	res.Banded = banded
