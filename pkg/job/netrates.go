@@ -81,12 +81,8 @@ type NetworkSource struct {
 
 // networkNoteRates says what NetworkRates computes and leaves out.
 const networkNoteRates = "phenomenological rate coefficients from the chemically significant eigenpairs of the " +
-	"network's master equation (banded block inverse iteration; dense for strong-collider wells); the collision frequency is the reference well's with the bath gas; " +
+	"network's master equation (banded block inverse iteration); the collision frequency is the reference well's with the bath gas; " +
 	"every rotation active"
-
-// denseSecondsPerGrain3 is the CPU time of one dense network solve per
-// grain cubed, s (0.9 s for 777 grains on the 2-core CI machine).
-const denseSecondsPerGrain3 = 2e-9
 
 // bandedSecondsFactor and bandedSecondsSolve are the CPU times of the
 // banded network solver per grain × bandwidth² (the factorisation) and per
@@ -138,14 +134,13 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 		}
 		top, lowest = math.Max(top, e), math.Min(lowest, e)
 	}
-	// The work before any, per (T, P): the banded solver (every well
-	// exponential-down) factorises n grains of half-bandwidth b ≈ wells ×
-	// kernel band once and iterates a block of 2·wells vectors, about
+	// The work before any, per (T, P): the banded solver factorises n
+	// grains of half-bandwidth b ≈ wells × kernel band (wells, for a
+	// strong collider, whose rank-one terms cost a few solves more) once
+	// and iterates a block of 2·wells vectors, about
 	// bandedSecondsFactor·n·b² + bandedSecondsSolve·n·b·60·wells (fitted
 	// to pkg/network BenchmarkSolvePoint: 777 grains, b = 78 and 222, in
-	// 10 and 18 ms, with up to 30 iterations allowed for); the dense
-	// solver (a strong collider) about denseSecondsPerGrain3·n³
-	// (BenchmarkSolvePoint: 777 grains in 0.9 s).
+	// 10 and 18 ms, with up to 30 iterations allowed for).
 	if workLimit <= 0 {
 		workLimit = DefaultWorkLimit
 	}
@@ -155,10 +150,6 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 		g, entries := collision.MatrixSize(tr, tK, grain, top+networkCeilingKT*units.KT(tK), lowest)
 		nw := float64(len(net.Wells))
 		n := nw * float64(g.N)
-		if tr.Strong {
-			est += float64(len(m.Pressures)) * denseSecondsPerGrain3 * n * n * n
-			continue
-		}
 		b := nw * entries / float64(g.N)
 		est += float64(len(m.Pressures)) * (bandedSecondsFactor*n*b*b + bandedSecondsSolve*n*b*60*nw)
 	}

@@ -15,9 +15,23 @@ import (
 
 // The banded solver. The grains of all wells are interleaved by energy
 // (layout), so S is a band matrix of half-bandwidth about (number of wells)
-// × (collision band) when every well has an exponential-down kernel; a
-// strong collider couples all of a well's grains and leaves the dense
-// solver (solveDense) as the only one.
+// × (collision band) for exponential-down kernels. A strong collider
+// couples all of a well's grains, but only through a rank-one term:
+// its block is ω(s·sᵀ − I), s = sqrt(f), so A = B − U·Uᵀ with B banded
+// (ω on its diagonal) and one column sqrt(ω)·s of U per strong-collider
+// well, and (A + τI)⁻¹ follows from B's factors by the Sherman–Morrison–
+// Woodbury formula (Golub & Van Loan 2013, §2.1.4):
+//
+//	(B' − U·Uᵀ)⁻¹ = B'⁻¹ + G·C⁻¹·Gᵀ,  B' = B + τI,  G = B'⁻¹·U,  C = I − Uᵀ·G.
+//
+// C is small (one row per strong-collider well) and positive definite
+// exactly when A + τI is (Sylvester: the Schur complement). For the slow
+// modes C is close to singular (1 − ω·sᵀB'⁻¹s ≈ (τ + λ)/ω), so its
+// rounding changes the amplification of the slow directions, not the
+// directions themselves: the operator applied is that of a collision
+// efficiency off by about ε, whose eigenvectors differ by O(ε); the rate
+// coefficients come from the vectors (TestLowTemperature checks this
+// against 256-bit arithmetic for strong colliders too).
 //
 // Method: block inverse iteration (subspace iteration on A⁻¹) with A = −S,
 // positive semidefinite, factorised once per (T, ω) as the banded LDLᵀ of
@@ -72,23 +86,44 @@ const MaxBandedEntries = 25_000_000
 // ErrNoConvergence reports a block iteration that did not settle.
 var ErrNoConvergence = errors.New("network: banded solver: no convergence")
 
-// bandable reports whether the banded solver can take the network: every
-// well has an exponential-down kernel.
-func bandable(n *Network) bool {
-	for _, w := range n.Wells {
-		if w.Transfer.Strong {
-			return false
-		}
-	}
-	return true
+// bandedSystem is A = −S = B − U·Uᵀ in descending-energy order (row q ↔
+// layout position size−1−q): B banded, with the LDLᵀ factors of B + τI,
+// and for the strong-collider wells the columns u of U, G = (B + τI)⁻¹·U
+// and C⁻¹ (see above).
+type bandedSystem struct {
+	a    *band.Sym
+	f    *band.LDL
+	tau  float64
+	u, g [][]float64
+	cinv *mat.Dense
 }
 
-// bandedSystem is A = −S in descending-energy order (row q ↔ layout
-// position size−1−q) and the LDLᵀ factors of A + τI.
-type bandedSystem struct {
-	a   *band.Sym
-	f   *band.LDL
-	tau float64
+// solve overwrites x with (A + τI)⁻¹·x.
+func (s *bandedSystem) solve(x []float64) {
+	s.f.Solve(x)
+	if len(s.u) == 0 {
+		return
+	}
+	k := len(s.u)
+	t := make([]float64, k)
+	for i, u := range s.u {
+		t[i] = floats.Dot(u, x)
+	}
+	for i := range k {
+		c := 0.0
+		for j := range k {
+			c += s.cinv.At(i, j) * t[j]
+		}
+		floats.AddScaled(x, c, s.g[i])
+	}
+}
+
+// mul sets dst = A·x.
+func (s *bandedSystem) mul(dst, x []float64) {
+	s.a.MulVec(dst, x)
+	for _, u := range s.u {
+		floats.AddScaled(dst, -floats.Dot(u, x), u)
+	}
 }
 
 // bandBound returns an upper bound on the half-bandwidth of S at tK without
@@ -114,7 +149,7 @@ func buildBanded(n *Network, l *layout, tK, omega float64) (*bandedSystem, []flu
 	bb := min(bandBound(n, tK), max(size-1, 0))
 	a := band.NewSym(size, bb)
 	b := 0
-	fl, err := assemble(n, l, tK, omega, func(p, q int, v float64) {
+	fl, err := assemble(n, l, tK, omega, true, func(p, q int, v float64) {
 		p, q = size-1-p, size-1-q
 		if p < q {
 			p, q = q, p
@@ -139,7 +174,45 @@ func buildBanded(n *Network, l *layout, tK, omega float64) (*bandedSystem, []flu
 	if !ok {
 		return nil, nil, fmt.Errorf("network: T = %g K, ω = %.4g s-1: a pivot of the banded factorisation is not positive: rounding has made the master-equation matrix indefinite (hint: a coarser grain)", tK, omega)
 	}
-	return &bandedSystem{a: a, f: f, tau: tau}, fl, nil
+	sys := &bandedSystem{a: a, f: f, tau: tau}
+	for w, well := range n.Wells {
+		if !well.Transfer.Strong {
+			continue
+		}
+		u := make([]float64, size)
+		r := math.Sqrt(efficiency(well.Transfer) * omega)
+		for p, pw := range l.well {
+			if pw == w {
+				u[size-1-p] = r * l.sqf[p]
+			}
+		}
+		g := slices.Clone(u)
+		f.Solve(g)
+		sys.u, sys.g = append(sys.u, u), append(sys.g, g)
+	}
+	if k := len(sys.u); k > 0 {
+		c := mat.NewSymDense(k, nil)
+		for i := range k {
+			for j := i; j < k; j++ {
+				v := -floats.Dot(sys.u[i], sys.g[j])
+				if i == j {
+					v++
+				}
+				c.SetSym(i, j, v)
+			}
+		}
+		var ch mat.Cholesky
+		if !ch.Factorize(c) {
+			return nil, nil, fmt.Errorf("network: T = %g K, ω = %.4g s-1: the strong-collider correction of the banded factorisation is not positive definite: rounding has made the master-equation matrix indefinite", tK, omega)
+		}
+		sys.cinv = mat.NewDense(k, k, nil)
+		var inv mat.SymDense
+		if err := ch.InverseTo(&inv); err != nil {
+			return nil, nil, fmt.Errorf("network: T = %g K, ω = %.4g s-1: strong-collider correction: %v", tK, omega, err)
+		}
+		sys.cinv.Copy(&inv)
+	}
+	return sys, fl, nil
 }
 
 // orthonormalise makes the columns xs orthonormal in order (modified
@@ -241,7 +314,7 @@ func (s *bandedSystem) subspace(n *Network, l *layout, maxSep float64, merge boo
 		// Y = (A + τI)⁻¹·X, and A·Y = X − τ·Y without a product with A.
 		for k, x := range xs {
 			copy(ax[k], x)
-			s.f.Solve(x)
+			s.solve(x)
 			floats.AddScaled(ax[k], -s.tau, x)
 		}
 		if err := orthonormalise(xs, ax); err != nil {
@@ -302,7 +375,7 @@ func (s *bandedSystem) subspace(n *Network, l *layout, maxSep float64, merge boo
 			// the chemical modes keep their shape.
 			chem := xs[:keep]
 			for _, x := range chem {
-				s.f.Solve(x)
+				s.solve(x)
 			}
 			if err := orthonormalise(chem, nil); err != nil {
 				return nil, err
@@ -478,16 +551,16 @@ func (s *bandedSystem) relaxSolve(xs [][]float64, a []float64) []float64 {
 	}
 	project(g)
 	y := slices.Clone(g)
-	s.f.Solve(y)
+	s.solve(y)
 	project(y)
 	r := make([]float64, size)
 	for range 2 {
-		s.a.MulVec(r, y)
+		s.mul(r, y)
 		for q := range r {
 			r[q] = g[q] - r[q]
 		}
 		project(r)
-		s.f.Solve(r)
+		s.solve(r)
 		floats.Add(y, r)
 		project(y)
 	}

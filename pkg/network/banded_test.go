@@ -6,13 +6,15 @@ import (
 	"math/big"
 	"testing"
 
+	"github.com/falloff-kinetics/falloff/pkg/collision"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 )
 
-// truncated returns the three-well network on the first grains of the test
-// grid, to top cm⁻¹: a matrix small enough for 256-bit arithmetic.
-func truncated(t *testing.T, top float64) *Network {
-	net := threeWells(t, expDown)
+// truncated returns the three-well network with transfer tr on the first
+// grains of the test grid, to top cm⁻¹: a matrix small enough for 256-bit
+// arithmetic.
+func truncated(t *testing.T, tr collision.Transfer, top float64) *Network {
+	net := threeWells(t, tr)
 	g := rrkm.GrainsTo(testGrid.Width, top)
 	net.Grains = g
 	for w := range net.Wells {
@@ -207,11 +209,13 @@ func bigRates(t *testing.T, net *Network, tK, omega float64) (k, kx [][]float64)
 }
 
 // TestLowTemperature: at 350 K the three-well network's chemically
-// significant eigenvalues are about 1e-16 of ω = 1e10 s⁻¹ and far below the
+// significant eigenvalues are about 1e-20 of ω = 1e10 s⁻¹ and far below the
 // rounding of a dense solve (which refuses them: TestPrecisionRefused), yet
 // the banded solver's rate coefficients agree with the same matrix solved
 // in 256-bit arithmetic (bigRates, an independent algorithm) to 1e-11
-// relative, every entry, uphill ones included (measured 7e-15). The
+// relative, every entry, uphill ones included (measured 7e-15), for
+// exponential-down wells and for strong colliders (βc = 0.3; the
+// Sherman–Morrison–Woodbury path of the banded solver). The
 // tolerance: the banded solves keep the relative precision of each
 // component (positive pivots, no cancellation), so what remains is the
 // rounding of the sums over ~300 grains and of Z⁻¹ (ε·cond(Z), cond(Z) ≈
@@ -221,39 +225,45 @@ func TestLowTemperature(t *testing.T) {
 	if testing.Short() {
 		t.Skip("256-bit reference takes seconds")
 	}
-	net := truncated(t, 20000)
-	for _, p := range []point{{350, 1e10}, {550, 1e10}} {
-		res, err := Solve(net, p.tK, p.omega, Options{})
-		if err != nil {
-			t.Fatalf("%v: %v", p, err)
+	for _, tr := range []collision.Transfer{expDown, {Strong: true, Efficiency: 0.3}} {
+		net := truncated(t, tr, 20000)
+		for _, p := range []point{{350, 1e10}, {550, 1e10}} {
+			lowTemperature(t, net, tr, p)
 		}
-		if _, err := Solve(net, p.tK, p.omega, Options{Dense: true}); p.tK == 350 && err == nil {
-			t.Errorf("%v: the dense solver did not refuse; the case does not test precision", p)
+	}
+}
+
+func lowTemperature(t *testing.T, net *Network, tr collision.Transfer, p point) {
+	res, err := Solve(net, p.tK, p.omega, Options{})
+	if err != nil {
+		t.Fatalf("%v: %v", p, err)
+	}
+	if _, err := Solve(net, p.tK, p.omega, Options{Dense: true}); p.tK == 350 && err == nil {
+		t.Errorf("%v: the dense solver did not refuse; the case does not test precision", p)
+	}
+	k, kx := bigRates(t, net, p.tK, p.omega)
+	worst := 0.0
+	check := func(what string, got, want float64) {
+		d := math.Abs(got/want - 1)
+		worst = math.Max(worst, d)
+		if !(d <= 1e-11) {
+			t.Errorf("%v: %s = %.12g, 256-bit %.12g (relative %.2g)", p, what, got, want, d)
 		}
-		k, kx := bigRates(t, net, p.tK, p.omega)
-		worst := 0.0
-		check := func(what string, got, want float64) {
-			d := math.Abs(got/want - 1)
-			worst = math.Max(worst, d)
-			if !(d <= 1e-11) {
-				t.Errorf("%v: %s = %.12g, 256-bit %.12g (relative %.2g)", p, what, got, want, d)
-			}
+	}
+	for j := range k {
+		for i := range k[j] {
+			check(res.GroupNames[i]+"→"+res.GroupNames[j], res.K[j][i], k[j][i])
 		}
-		for j := range k {
-			for i := range k[j] {
-				check(res.GroupNames[i]+"→"+res.GroupNames[j], res.K[j][i], k[j][i])
-			}
+	}
+	for x := range kx {
+		for i := range kx[x] {
+			check(res.GroupNames[i]+"→"+res.Exits[x], res.KExit[x][i], kx[x][i])
 		}
-		for x := range kx {
-			for i := range kx[x] {
-				check(res.GroupNames[i]+"→"+res.Exits[x], res.KExit[x][i], kx[x][i])
-			}
-		}
-		slow := math.Abs(res.Eigenvalues[0]) / p.omega
-		t.Logf("%v: %d grains, |λ_slowest|/ω = %.2g, largest relative deviation from 256-bit: %.2g", p, res.Grains, slow, worst)
-		if p.tK == 350 && !(slow < 1e-15) {
-			t.Errorf("%v: |λ|/ω = %.2g, not the 1e-15 case", p, slow)
-		}
+	}
+	slow := math.Abs(res.Eigenvalues[0]) / p.omega
+	t.Logf("%v, %v: %d grains, |λ_slowest|/ω = %.2g, largest relative deviation from 256-bit: %.2g", tr, p, res.Grains, slow, worst)
+	if p.tK == 350 && !(slow < 1e-15) {
+		t.Errorf("%v: |λ|/ω = %.2g, not the 1e-15 case", p, slow)
 	}
 }
 
@@ -270,9 +280,11 @@ func TestLowTemperature(t *testing.T) {
 // that the dense solve gives only to its absolute accuracy.
 func TestBandedAgainstDense(t *testing.T) {
 	nets := map[string]*Network{
-		"three wells":         threeWells(t, expDown),
-		"three wells, source": threeWellSource(t, expDown),
-		"two wells, source":   twoWellSource(t, expDown),
+		"three wells":                           threeWells(t, expDown),
+		"three wells, source":                   threeWellSource(t, expDown),
+		"two wells, source":                     twoWellSource(t, expDown),
+		"three wells, strong collider βc = 0.3": threeWells(t, collision.Transfer{Strong: true, Efficiency: 0.3}),
+		"two wells, source, strong collider":    twoWellSource(t, collision.Transfer{Strong: true}),
 	}
 	for name, net := range nets {
 		for _, p := range []point{{800, 1e7}, {1000, 1e9}, {1300, 1e8}, {1300, 1e11}} {
@@ -318,8 +330,15 @@ func TestBandedAgainstDense(t *testing.T) {
 			// vectors, which the iteration does not converge further than
 			// the chemical subspace needs: an upper bound on |λ_relax|
 			// (Courant–Fischer), within 1e-3 (relaxTol), plenty for the
-			// separation it serves.
-			if d := bd.Relaxation/db.Relaxation - 1; !(d >= -1e-12 && d <= 1e-3) {
+			// separation it serves. A strong collider's relaxation
+			// eigenvalues cluster at ω_eff + k(E) (they interlace with
+			// the diagonal: Golub & Van Loan 2013, §8.1.2), so the Ritz
+			// value settles slowly there; 5e-3 (measured 1.3e-3).
+			rtol := 1e-3
+			if net.Wells[0].Transfer.Strong {
+				rtol = 5e-3
+			}
+			if d := bd.Relaxation/db.Relaxation - 1; !(d >= -1e-12 && d <= rtol) {
 				t.Errorf("%s %v: relaxation eigenvalue banded %.8g, dense %.8g (relative %.2g)", name, p, bd.Relaxation, db.Relaxation, d)
 			}
 			for s := range db.Sources {

@@ -126,7 +126,7 @@ func (l *layout) size() int { return len(l.well) }
 // energy). It returns S and the reactive fluxes of M (see flux).
 func build(n *Network, l *layout, tK, omega float64) (*mat.SymDense, []flux, error) {
 	s := mat.NewSymDense(l.size(), nil)
-	fl, err := assemble(n, l, tK, omega, func(p, q int, v float64) {
+	fl, err := assemble(n, l, tK, omega, false, func(p, q int, v float64) {
 		if p > q {
 			p, q = q, p
 		}
@@ -141,12 +141,23 @@ func build(n *Network, l *layout, tK, omega float64) (*mat.SymDense, []flux, err
 // assemble adds the entries of S (build) one by one through add(p, q, v),
 // S(p, q) += v, each off-diagonal pair once, so that the dense and the
 // banded solvers assemble the same numbers in the same order.
-func assemble(n *Network, l *layout, tK, omega float64, add func(p, q int, v float64)) ([]flux, error) {
+//
+// With lowRank, a strong-collider well's collision block ω(s·sᵀ − I),
+// s = sqrt(f) on its grains, contributes only −ω to each diagonal entry:
+// the rank-one part ω·s·sᵀ is the caller's (strongTerms).
+func assemble(n *Network, l *layout, tK, omega float64, lowRank bool, add func(p, q int, v float64)) ([]flux, error) {
 	for w, well := range n.Wells {
 		loc := l.local[w]
 		nl := len(loc)
 		f := l.f[w]
 		p := func(a int) int { return l.pos[w][loc[a]] }
+		if well.Transfer.Strong && lowRank {
+			om := efficiency(well.Transfer) * omega
+			for b := range nl {
+				add(p(b), p(b), -om)
+			}
+			continue
+		}
 		if well.Transfer.Strong {
 			om := efficiency(well.Transfer) * omega
 			// P(a←b) = f_a: S(a,b) = ω·sqrt(f_a·f_b).

@@ -24,13 +24,12 @@
 // symmetrised with sqrt(F), and the grains of all wells are interleaved by
 // energy so that it is banded (Gilbert & Smith, Theory of Unimolecular and
 // Recombination Reactions, 1990, ch. 5; Miller & Klippenstein, J. Phys.
-// Chem. A 110, 10528, 2006). Where every well is exponential-down, Solve
-// finds the chemically significant modes by block inverse iteration on the
-// banded LDLᵀ factors (banded.go), which keeps full relative precision
-// where they are 1e-15 of ω and less (low temperature); a strong collider
-// fills its well's block, and the network is then diagonalised densely
-// (gonum mat.EigenSym), as is any point whose wells must be merged, and any
-// point with Options.Dense (the reference in the tests).
+// Chem. A 110, 10528, 2006). Solve finds the chemically significant modes
+// by block inverse iteration on the banded LDLᵀ factors (banded.go), a
+// strong collider's rank-one block through the Sherman–Morrison–Woodbury
+// formula, which keeps full relative precision where they are 1e-15 of ω
+// and less (low temperature); with Options.Dense it diagonalises the
+// matrix densely (gonum mat.EigenSym), the reference in the tests.
 //
 // Rate coefficients. With n wells, the n eigenvalues of smallest magnitude
 // are chemically significant (Bartis & Widom, J. Chem. Phys. 60, 3474,

@@ -87,9 +87,8 @@ type Options struct {
 	// merge.go), instead of refusing the point. Where the test passes it
 	// changes nothing.
 	Merge bool
-	// Dense solves with the dense reference solver (solveDense) even where
-	// the banded one applies (every well exponential-down): for tests and
-	// benchmarks.
+	// Dense solves with the dense reference solver (solveDense) in place
+	// of the banded one: for tests and benchmarks.
 	Dense bool
 }
 

@@ -152,11 +152,13 @@ func TestInvalidNetwork(t *testing.T) {
 	}
 }
 
-// TestTooLarge: more grains than the dense solver takes (strong collider),
-// or a band matrix beyond MaxBandedEntries (exponential-down: 45 000
-// grains of 10 cm⁻¹ with a kernel reaching 16.1·α ≈ 11 000 cm⁻¹, over
-// 1e8 entries), give ErrTooLarge before any matrix is formed, from Solve
-// and from CheckSize alike.
+// TestTooLarge: more grains than the dense solver takes (with
+// Options.Dense), or a band matrix beyond MaxBandedEntries
+// (exponential-down: 45 000 grains of 10 cm⁻¹ with a kernel reaching
+// 16.1·α ≈ 11 000 cm⁻¹, over 1e8 entries), give ErrTooLarge before any
+// matrix is formed, from Solve and CheckSize alike. The same 4500
+// strong-collider grains are a band matrix of half-bandwidth 3 plus three
+// rank-one terms for the banded solver, which takes them.
 func TestTooLarge(t *testing.T) {
 	g := rrkm.Grains{Width: 10, N: 1500}
 	ones := make([]float64, g.N)
@@ -167,11 +169,14 @@ func TestTooLarge(t *testing.T) {
 	for _, name := range []string{"A", "B", "C"} {
 		net.Wells = append(net.Wells, Well{Name: name, Counts: ones, Transfer: collision.Transfer{Strong: true}})
 	}
-	if _, err := Solve(net, 1000, 1e9, Options{}); !errors.Is(err, ErrTooLarge) {
-		t.Errorf("4500 grains: error %v, want ErrTooLarge", err)
+	if _, err := Solve(net, 1000, 1e9, Options{Dense: true}); !errors.Is(err, ErrTooLarge) {
+		t.Errorf("4500 grains, dense: error %v, want ErrTooLarge", err)
 	}
-	if err := CheckSize(net, 1000); !errors.Is(err, ErrTooLarge) {
-		t.Errorf("4500 grains: CheckSize: %v, want ErrTooLarge", err)
+	if err := CheckSize(net, 1000); err != nil {
+		t.Errorf("4500 strong-collider grains: CheckSize: %v", err)
+	}
+	if _, err := Solve(net, 1000, 1e9, Options{}); err != nil {
+		t.Errorf("4500 strong-collider grains, banded: %v", err)
 	}
 	big := &Network{Grains: rrkm.Grains{Width: 10, N: 15000}}
 	many := make([]float64, big.Grains.N)

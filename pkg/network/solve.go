@@ -154,10 +154,9 @@ func (e *PrecisionError) Unwrap() error { return ErrRoundoff }
 // Solve solves the master equation of network n at tK with collision
 // frequency omega (s⁻¹, the same for every well; a strong collider's
 // efficiency multiplies it) and returns the phenomenological rate
-// coefficients: by block inverse iteration on the banded matrix where
-// every well is exponential-down (banded.go), else, or with opt.Dense, or
-// where wells must be merged (opt.Merge), by diagonalising the symmetrised
-// matrix densely (gonum mat.EigenSym, O(N³) in the number N of grains).
+// coefficients: by block inverse iteration on the banded matrix
+// (banded.go), or, with opt.Dense, by diagonalising the symmetrised matrix
+// densely (gonum mat.EigenSym, O(N³) in the number N of grains).
 //
 // Failures: an invalid network (a plain error), ErrTooLarge, a
 // *SeparationError when the chemically significant eigenvalues are not
@@ -202,7 +201,7 @@ func Solve(n *Network, tK, omega float64, opt Options) (*Result, error) {
 		fl  []flux
 		err error
 	)
-	banded := !opt.Dense && bandable(n)
+	banded := !opt.Dense
 	if err := checkSize(n, l, tK, banded); err != nil {
 		return nil, err
 	}
@@ -274,8 +273,8 @@ type spectrum struct {
 }
 
 // solveDense diagonalises S densely (gonum mat.EigenSym, O(N³) in the
-// number N of grains): the reference for the banded solver, and the
-// solver for strong-collider wells, whose kernel fills a well's block.
+// number N of grains): the reference for the banded solver
+// (Options.Dense).
 // It fills res's spectrum fields as solveBanded does, but Roundoff, which
 // Solve sets after any merging.
 func solveDense(n *Network, l *layout, tK, omega float64, res *Result) (*spectrum, []flux, error) {
@@ -384,21 +383,21 @@ func positive(xs []float64) bool {
 
 // CheckSize reports, without solving, whether Solve can take n at tK: an
 // error wrapping ErrTooLarge names the size and the limit of the solver
-// that would run (dense where a well is a strong collider, MaxGrains;
-// banded otherwise, MaxBandedEntries, on a bound of the bandwidth). The
-// collision frequency does not change the size.
+// that Solve runs without Options.Dense (the banded one: MaxBandedEntries,
+// on a bound of the bandwidth). The collision frequency does not change
+// the size.
 func CheckSize(n *Network, tK float64) error {
 	if err := n.validate(); err != nil {
 		return err
 	}
-	return checkSize(n, newLayout(n, tK), tK, bandable(n))
+	return checkSize(n, newLayout(n, tK), tK, true)
 }
 
 func checkSize(n *Network, l *layout, tK float64, banded bool) error {
 	size, nw := l.size(), len(n.Wells)
 	if !banded {
 		if size > MaxGrains {
-			return fmt.Errorf("%w: %d grains over %d wells, at most %d for the dense solver (strong-collider wells, or merging) (hint: a larger grain, a lower ceiling, or exponential-down)", ErrTooLarge, size, nw, MaxGrains)
+			return fmt.Errorf("%w: %d grains over %d wells, at most %d for the dense solver (hint: a larger grain, a lower ceiling, or the banded solver)", ErrTooLarge, size, nw, MaxGrains)
 		}
 		return nil
 	}
