@@ -68,6 +68,7 @@ func verbs() []verb {
 		{"compare", "the grid under strong-collider and exponential-down models side by side", runCompareCmd, true},
 		{"fit", "fit Arrhenius, falloff, PLOG and Chebyshev forms to a k(T,P) table (CSV)", runFitCmd, true},
 		{"thermo", "species thermochemistry (Cp, S, H) and NASA polynomials from the partition functions", runThermoCmd, false},
+		{"batch", "many reactions from a manifest: worker pool, resume, slices for a cluster scheduler, merged mechanism", runBatchCmd, true},
 		{"import", "read frequency calculations (Molden, QCSchema, xtb, Psi4, NWChem) into the molecules of an input file", runImportCmd, true},
 		{"example", "print the built-in demo input (edit it to make your own)", runExampleCmd, false},
 	}
