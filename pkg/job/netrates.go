@@ -5,6 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -185,79 +187,54 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 	if err != nil {
 		return nil, err
 	}
-	for _, tK := range m.Temperatures {
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
-		// A grain edge on the lowest threshold, as the one-well master
-		// equation puts one on its E0, so that no grain straddles it.
-		grain := collision.GrainFor(tr, tK)
-		if k := math.Round(lowest/grain - 0.5); k >= 1 {
-			grain = lowest / (k + 0.5)
-		}
-		g := rrkm.GrainsTo(grain, top+networkCeilingKT*units.KT(tK))
-		nw, err := buildNetwork(m, g, zero, tr, counts)
-		if err != nil {
-			return nil, err
-		}
-		if err := network.CheckSize(nw, tK); err != nil {
-			return nil, m.FieldError("network", fmt.Errorf("%d wells on %d grains of %.3g cm-1 at %g K: %w", len(net.Wells), g.N, g.Width, tK, err),
-				"fewer wells or a narrower temperature range")
-		}
-		var kT, kP [][][]float64
-		var sep, bal, eq []float64
-		var stab, act [][]float64
-		var kd, kc []float64
-		for _, pPa := range m.Pressures {
-			omega := col.Z(tK) * collision.Concentration(pPa, tK)
-			r, err := network.Solve(nw, tK, omega, network.Options{Merge: true})
-			var pe *network.PrecisionError
-			switch {
-			case err == nil && r.Merge != nil:
-				res.Merged[fmt.Sprintf("%g K, %g Pa", tK, pPa)] = &MergedPoint{Species: r.GroupNames, K: r.K, KProducts: r.KExit, Departure: r.Merge.Departure}
-				if res.Products == nil {
-					res.Products = r.Exits
+	// The temperatures run on a worker pool (the network's k(E) and master
+	// equation at one temperature are independent of the others'); rows are
+	// assembled in temperature order, so the result and the first error
+	// reported do not depend on the number of workers.
+	rows := make([]*networkRow, len(m.Temperatures))
+	errs := make([]error, len(m.Temperatures))
+	jobs := make(chan int)
+	var mu sync.Mutex
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), len(m.Temperatures)) {
+		wg.Go(func() {
+			for i := range jobs {
+				if errs[i] = ctx.Err(); errs[i] != nil {
+					continue
 				}
-				kT, kP = append(kT, nil), append(kP, nil)
-				sep, bal = append(sep, r.Separation), append(bal, r.Balance)
-				stab, act, kd, kc = append(stab, nil), append(act, nil), append(kd, math.NaN()), append(kc, math.NaN())
-				continue
-			case errors.Is(err, network.ErrNotSeparated), errors.As(err, &pe):
-				res.Refused[fmt.Sprintf("%g K, %g Pa", tK, pPa)] = err.Error()
-				kT, kP = append(kT, nil), append(kP, nil)
-				sep, bal = append(sep, math.NaN()), append(bal, math.NaN())
-				stab, act, kd, kc = append(stab, nil), append(act, nil), append(kd, math.NaN()), append(kc, math.NaN())
-				continue
-			case err != nil:
-				return nil, &NumericalError{Err: fmt.Errorf("network at %g K, %g Pa: %w", tK, pPa, err)}
-			}
-			if res.Products == nil {
-				res.Products = r.Exits
-			}
-			symmetrise(r.K, r.KExit, r.Equilibrium)
-			kT, kP = append(kT, r.K), append(kP, r.KExit)
-			sep, bal, eq = append(sep, r.Separation), append(bal, r.Balance), r.Equilibrium
-			if len(r.Sources) > 0 {
-				sr := r.Sources[0]
-				stab, act, kd = append(stab, sr.Wells), append(act, sr.Exits), append(kd, sr.KInf)
-				capture := math.NaN()
-				if fragSpecies != nil {
-					into := net.Well(net.Source.Into)
-					kcEq := rrkm.EquilibriumConstant(&m.Molecule(into.Name).Species, fragSpecies, net.FragmentSet(net.Source.Fragments).Energy-into.Energy, tK)
-					capture = sr.KInf / kcEq
+				rows[i], errs[i] = networkTemperature(m, m.Temperatures[i], networkGrid{zero: zero, top: top, lowest: lowest, tr: tr, col: col, counts: counts, fragments: fragSpecies})
+				if errs[i] == nil && progress != nil {
+					mu.Lock()
+					progress()
+					mu.Unlock()
 				}
-				kc = append(kc, capture)
 			}
+		})
+	}
+	for i := range m.Temperatures {
+		jobs <- i
+	}
+	close(jobs)
+	wg.Wait()
+	for i, row := range rows {
+		if errs[i] != nil {
+			return nil, errs[i]
 		}
-		res.K, res.KProducts = append(res.K, kT), append(res.KProducts, kP)
-		res.Separation, res.Balance, res.Equilibrium = append(res.Separation, sep), append(res.Balance, bal), append(res.Equilibrium, eq)
-		res.Grain, res.Ceiling = append(res.Grain, g.Width), append(res.Ceiling, g.Top()+zero)
+		for k, v := range row.merged {
+			res.Merged[k] = v
+		}
+		for k, v := range row.refused {
+			res.Refused[k] = v
+		}
+		if res.Products == nil {
+			res.Products = row.products
+		}
+		res.K, res.KProducts = append(res.K, row.k), append(res.KProducts, row.kProducts)
+		res.Separation, res.Balance, res.Equilibrium = append(res.Separation, row.sep), append(res.Balance, row.bal), append(res.Equilibrium, row.eq)
+		res.Grain, res.Ceiling = append(res.Grain, row.grain), append(res.Ceiling, row.ceiling)
 		if res.Source != nil {
-			res.Source.Stabilised, res.Source.Activated = append(res.Source.Stabilised, stab), append(res.Source.Activated, act)
-			res.Source.KDissociation, res.Source.KCapture = append(res.Source.KDissociation, kd), append(res.Source.KCapture, kc)
-		}
-		if progress != nil {
-			progress()
+			res.Source.Stabilised, res.Source.Activated = append(res.Source.Stabilised, row.stab), append(res.Source.Activated, row.act)
+			res.Source.KDissociation, res.Source.KCapture = append(res.Source.KDissociation, row.kd), append(res.Source.KCapture, row.kc)
 		}
 	}
 	// JSON has no NaN: a refused point's separation and balance are -1, as
@@ -501,4 +478,89 @@ func (res *NetworkRatesResult) Populations(it, ip int) (names []string, times []
 		}
 	}
 	return names, times, frac, nil
+}
+
+// networkGrid holds what every temperature of NetworkRates shares.
+type networkGrid struct {
+	zero, top, lowest float64 // cm⁻¹: the grid's zero; the highest and lowest threshold above it
+	tr                collision.Transfer
+	col               collision.Collider
+	counts            map[string]*rrkm.Counter
+	fragments         []*rrkm.Species // the source's fragments, all described, or nil
+}
+
+// networkRow is one temperature's part of a NetworkRatesResult.
+type networkRow struct {
+	k, kProducts   [][][]float64
+	sep, bal, eq   []float64
+	stab, act      [][]float64
+	kd, kc         []float64
+	merged         map[string]*MergedPoint
+	refused        map[string]string
+	products       []string
+	grain, ceiling float64
+}
+
+// networkTemperature solves the network of m at tK and every pressure.
+func networkTemperature(m *input.Model, tK float64, ng networkGrid) (*networkRow, error) {
+	net := m.Network
+	row := &networkRow{merged: map[string]*MergedPoint{}, refused: map[string]string{}}
+	// A grain edge on the lowest threshold, as the one-well master
+	// equation puts one on its E0, so that no grain straddles it.
+	grain := collision.GrainFor(ng.tr, tK)
+	if k := math.Round(ng.lowest/grain - 0.5); k >= 1 {
+		grain = ng.lowest / (k + 0.5)
+	}
+	g := rrkm.GrainsTo(grain, ng.top+networkCeilingKT*units.KT(tK))
+	nw, err := buildNetwork(m, g, ng.zero, ng.tr, ng.counts)
+	if err != nil {
+		return nil, err
+	}
+	if err := network.CheckSize(nw, tK); err != nil {
+		return nil, m.FieldError("network", fmt.Errorf("%d wells on %d grains of %.3g cm-1 at %g K: %w", len(net.Wells), g.N, g.Width, tK, err),
+			"fewer wells or a narrower temperature range")
+	}
+	row.grain, row.ceiling = g.Width, g.Top()+ng.zero
+	for _, pPa := range m.Pressures {
+		omega := ng.col.Z(tK) * collision.Concentration(pPa, tK)
+		r, err := network.Solve(nw, tK, omega, network.Options{Merge: true})
+		var pe *network.PrecisionError
+		switch {
+		case err == nil && r.Merge != nil:
+			row.merged[fmt.Sprintf("%g K, %g Pa", tK, pPa)] = &MergedPoint{Species: r.GroupNames, K: r.K, KProducts: r.KExit, Departure: r.Merge.Departure}
+			if row.products == nil {
+				row.products = r.Exits
+			}
+			row.k, row.kProducts = append(row.k, nil), append(row.kProducts, nil)
+			row.sep, row.bal = append(row.sep, r.Separation), append(row.bal, r.Balance)
+			row.stab, row.act, row.kd, row.kc = append(row.stab, nil), append(row.act, nil), append(row.kd, math.NaN()), append(row.kc, math.NaN())
+			continue
+		case errors.Is(err, network.ErrNotSeparated), errors.As(err, &pe):
+			row.refused[fmt.Sprintf("%g K, %g Pa", tK, pPa)] = err.Error()
+			row.k, row.kProducts = append(row.k, nil), append(row.kProducts, nil)
+			row.sep, row.bal = append(row.sep, math.NaN()), append(row.bal, math.NaN())
+			row.stab, row.act, row.kd, row.kc = append(row.stab, nil), append(row.act, nil), append(row.kd, math.NaN()), append(row.kc, math.NaN())
+			continue
+		case err != nil:
+			return nil, &NumericalError{Err: fmt.Errorf("network at %g K, %g Pa: %w", tK, pPa, err)}
+		}
+		if row.products == nil {
+			row.products = r.Exits
+		}
+		symmetrise(r.K, r.KExit, r.Equilibrium)
+		row.k, row.kProducts = append(row.k, r.K), append(row.kProducts, r.KExit)
+		row.sep, row.bal, row.eq = append(row.sep, r.Separation), append(row.bal, r.Balance), r.Equilibrium
+		if len(r.Sources) > 0 {
+			sr := r.Sources[0]
+			row.stab, row.act, row.kd = append(row.stab, sr.Wells), append(row.act, sr.Exits), append(row.kd, sr.KInf)
+			capture := math.NaN()
+			if ng.fragments != nil {
+				into := net.Well(net.Source.Into)
+				kcEq := rrkm.EquilibriumConstant(&m.Molecule(into.Name).Species, ng.fragments, net.FragmentSet(net.Source.Fragments).Energy-into.Energy, tK)
+				capture = sr.KInf / kcEq
+			}
+			row.kc = append(row.kc, capture)
+		}
+	}
+	return row, nil
 }

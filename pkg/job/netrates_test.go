@@ -1,8 +1,11 @@
 package job
 
 import (
+	"bytes"
 	"context"
+	"encoding/json"
 	"math"
+	"runtime"
 	"strings"
 	"testing"
 
@@ -17,8 +20,8 @@ import (
 // problem: its phenomenological k(well → fragments) equals the one-well
 // master equation's k(T,P) of the same molecules (the CH3NC validation
 // data, exponential-down in Ar), at 800 and 1200 K, 0.01–100 bar, to
-// 1e-10 (issue 18), the two solvers' rounding (dense eigenpairs against
-// banded inverse iteration): both put a grain edge on the threshold, and
+// 1e-10 (issue 18), the two solvers' rounding (the network's block
+// iteration against the one-well inverse iteration): both put a grain edge on the threshold, and
 // for a species with a classical rotor the plain counts the network
 // weights grains by equal the one-well path's in-grain Boltzmann sums
 // (NewWell). Measured 5.3e-12.
@@ -94,7 +97,7 @@ grid:
 // name the reason; the merged ones are checked below.
 func TestNetworkDemoRates(t *testing.T) {
 	if testing.Short() {
-		t.Skip("16 dense network solves")
+		t.Skip("16 network solves")
 	}
 	m, err := input.Parse(demo.NetworkName, demo.NetworkText)
 	if err != nil {
@@ -380,5 +383,33 @@ func TestPopulationsConserve(t *testing.T) {
 	}
 	if last := len(times) - 1; frac[2][last] < 0.99 {
 		t.Errorf("at the last time P = %g, want nearly all", frac[2][last])
+	}
+}
+
+// TestNetworkWorkers: the temperatures of a network run on a worker pool;
+// the result is the same, bit for bit (compared as JSON, which keeps every
+// float64 digit), with one worker and with four (common practice, no
+// source: results must not depend on scheduling).
+func TestNetworkWorkers(t *testing.T) {
+	m, err := input.Parse(demo.NetworkName, demo.NetworkText)
+	if err != nil {
+		t.Fatal(err)
+	}
+	run := func(procs int) []byte {
+		old := runtime.GOMAXPROCS(procs)
+		defer runtime.GOMAXPROCS(old)
+		res, err := NetworkRates(context.Background(), m, nil, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		out, err := json.Marshal(res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return out
+	}
+	one, four := run(1), run(4)
+	if !bytes.Equal(one, four) {
+		t.Errorf("network rates differ between 1 and 4 workers (%d and %d bytes of JSON)", len(one), len(four))
 	}
 }
