@@ -45,6 +45,12 @@ type Step struct {
 	ToFragments bool // To names a fragment set
 	Via         string
 	Barrierless *Barrierless
+	// PathDegeneracy is the step's reaction-path degeneracy L; 0 means
+	// auto, L = σ_R·m‡/(σ‡·m_R) from the from-well and the transition state.
+	PathDegeneracy float64
+	// Tunnelling is the correction to the step's k(E): none, wigner, or
+	// eckart (the barrier's two sides from the energies of its two ends).
+	Tunnelling Tunnelling
 }
 
 // Source is a bimolecular source: a fragment set that associates into a
@@ -103,10 +109,12 @@ type rawFragments struct {
 }
 
 type rawStep struct {
-	From        yaml.Node       `yaml:"from"`
-	To          yaml.Node       `yaml:"to"`
-	Via         yaml.Node       `yaml:"via"`
-	Barrierless *rawBarrierless `yaml:"barrierless"`
+	From           yaml.Node       `yaml:"from"`
+	To             yaml.Node       `yaml:"to"`
+	Via            yaml.Node       `yaml:"via"`
+	Barrierless    *rawBarrierless `yaml:"barrierless"`
+	PathDegeneracy yaml.Node       `yaml:"path-degeneracy"`
+	Tunnelling     yaml.Node       `yaml:"tunnelling"`
 }
 
 type rawSource struct {
@@ -263,6 +271,17 @@ func (p *parser) network(r *rawNetwork, mols []*Molecule) (*Network, error) {
 			if st.Barrierless, err = p.barrierless(path+".barrierless", rs.Barrierless); err != nil {
 				return nil, err
 			}
+			// k∞ is given whole: its degeneracy is in its A factor, and
+			// there is no barrier to tunnel through.
+			for _, k := range []struct {
+				key  string
+				node *yaml.Node
+			}{{"path-degeneracy", &rs.PathDegeneracy}, {"tunnelling", &rs.Tunnelling}} {
+				if given(k.node) {
+					return nil, p.errAt(path+"."+k.key, k.node, problemf("a barrierless step has no transition state"),
+						"the given k∞ already holds the path degeneracy and has no barrier to tunnel through: delete "+k.key)
+				}
+			}
 			// k∞'s energy is measured from the well; it cannot lie below
 			// the fragments, the threshold of the dissociation.
 			if need := net.EnergyOf(st.To) - net.EnergyOf(st.From); st.Barrierless.Energy < need-1e-9*math.Abs(need) {
@@ -289,6 +308,14 @@ func (p *parser) network(r *rawNetwork, mols []*Molecule) (*Network, error) {
 				return nil, p.errAt(path+".via", &rs.Via, problemf("the transition state lies %.2f kcal/mol below %s",
 					(top-ts.E0)/units.Cm1PerKcalPerMol, map[bool]string{true: st.From, false: st.To}[net.EnergyOf(st.From) >= net.EnergyOf(st.To)]),
 					fmt.Sprintf("energies are zero-point corrected and measured from %s's zero-point level; a barrier cannot lie below either end of its step", net.Reference))
+			}
+			if st.PathDegeneracy, err = p.pathDegeneracy(path+".path-degeneracy", &rs.PathDegeneracy); err != nil {
+				return nil, err
+			}
+			// The Eckart barrier's reverse side is known from the step's
+			// two ends.
+			if st.Tunnelling, err = p.tunnelling(path+".tunnelling", &rs.Tunnelling, true, ts); err != nil {
+				return nil, err
 			}
 			key += "\x00" + st.Via
 		}

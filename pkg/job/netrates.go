@@ -95,10 +95,30 @@ const (
 	bandedSecondsSolve  = 1.2e-9
 )
 
-// networkCeilingKT is how far above the highest threshold of the network
-// the energy grid reaches, in kT: the single-well default (common practice,
-// no source).
-const networkCeilingKT = 40
+// networkCeiling returns the top of the network's grid at tK, cm⁻¹ above
+// the grid's zero: for every step, the one-well bound of its well and
+// transition state (collision.CeilingBound: 60 kT above the threshold, or
+// higher where a species' thermal distribution reaches further), so that
+// the network's grains hold every population the one-well master equation
+// holds.
+func networkCeiling(m *input.Model, zero, tK float64) float64 {
+	net := m.Network
+	top := 0.0
+	for _, st := range net.Steps {
+		off := net.EnergyOf(st.From) - zero
+		from := &m.Molecule(st.From).Species
+		var ts *rrkm.Species
+		var e0 float64 // above the from-well
+		if st.Barrierless != nil {
+			e0 = st.Barrierless.Energy
+		} else {
+			ts = &m.Molecule(st.Via).Species
+			e0 = ts.E0 - net.EnergyOf(st.From)
+		}
+		top = math.Max(top, off+collision.CeilingBound(from, ts, e0, tK))
+	}
+	return top
+}
 
 // NetworkRates solves the master equation of the network of m at every
 // (T, P) of its grid. Every rotation is active, one grid (the single-well
@@ -149,7 +169,7 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 	est := 0.0
 	for _, tK := range m.Temperatures {
 		grain := collision.GrainFor(tr, tK)
-		g, entries := collision.MatrixSize(tr, tK, grain, top+networkCeilingKT*units.KT(tK), lowest)
+		g, entries := collision.MatrixSize(tr, tK, grain, networkCeiling(m, zero, tK), lowest)
 		nw := float64(len(net.Wells))
 		n := nw * float64(g.N)
 		b := nw * entries / float64(g.N)
@@ -181,7 +201,7 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 	// grid reaches, and reused at every temperature.
 	maxTop := 0.0
 	for _, tK := range m.Temperatures {
-		maxTop = math.Max(maxTop, rrkm.GrainsTo(collision.GrainFor(tr, tK), top+networkCeilingKT*units.KT(tK)).Top()+collision.GrainFor(tr, tK))
+		maxTop = math.Max(maxTop, rrkm.GrainsTo(collision.GrainFor(tr, tK), networkCeiling(m, zero, tK)).Top()+collision.GrainFor(tr, tK))
 	}
 	counts, err := countNetwork(m, zero, maxTop)
 	if err != nil {
@@ -259,7 +279,7 @@ func NetworkRates(ctx context.Context, m *input.Model, progress func(), workLimi
 
 // buildNetwork counts the wells' states and every step's k(E) on the
 // common grains g (energies from zero, the lowest well).
-func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Transfer, counters map[string]*rrkm.Counter) (*network.Network, error) {
+func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Transfer, counters map[string]*rrkm.Counter, tK float64) (*network.Network, error) {
 	net := m.Network
 	nw := &network.Network{Grains: g}
 	index := map[string]int{}
@@ -267,7 +287,10 @@ func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Tran
 	for i, w := range net.Wells {
 		c := counters[w.Name]
 		index[w.Name] = i
-		nw.Wells = append(nw.Wells, network.Well{Name: w.Name, Counts: c.ScaledCounts(g, offset(w.Name)), CountScale: c.Scale(), Transfer: tr})
+		// The grains' Boltzmann weights from the exact in-grain sums, as the
+		// one-well master equation takes them (collision.NewWell).
+		nw.Wells = append(nw.Wells, network.Well{Name: w.Name, Counts: c.ScaledCounts(g, offset(w.Name)), CountScale: c.Scale(), Transfer: tr,
+			Weights: c.ScaledBoltzmannCountsFrom(g, tK, offset(w.Name))})
 	}
 	for _, st := range net.Steps {
 		from := counters[st.From]
@@ -285,11 +308,34 @@ func buildNetwork(m *input.Model, g rrkm.Grains, zero float64, tr collision.Tran
 			ts := m.Molecule(st.Via)
 			e0 := ts.E0 - zero
 			tc := counters[st.Via]
-			l := rrkm.PathDegeneracy(&m.Molecule(st.From).Species, &ts.Species)
-			sums := tc.AveragedSums(g, e0)
+			l := st.PathDegeneracy
+			if l == 0 {
+				l = rrkm.PathDegeneracy(&m.Molecule(st.From).Species, &ts.Species)
+			}
+			var sums []float64
+			if st.Tunnelling == input.Eckart {
+				// The barrier's sides from the step's two ends (RRKM with
+				// tunnelling through an Eckart barrier, as for one well,
+				// on the grid of the network).
+				rel := ts.Species
+				rel.E0 = ts.E0 - net.EnergyOf(st.From)
+				eck, err := rrkm.NewEckart(&rel, ts.E0-net.EnergyOf(st.To))
+				if err != nil {
+					return nil, fmt.Errorf("%s: step %s → %s: %w", m.File, st.From, st.To, err)
+				}
+				sums = tc.AveragedTunnelSumsFrom(g, *eck, offset(st.From))
+			} else {
+				sums = tc.AveragedSums(g, e0)
+			}
+			kw := 1.0
+			if st.Tunnelling == input.Wigner {
+				// Wigner's correction is thermal: k(E) scaled by κ(T), as
+				// for one well.
+				kw = rrkm.Wigner(ts.Imaginary, tK)
+			}
 			for i, n := range counts {
 				if n > 0 && sums[i] > 0 {
-					k[i] = l * units.LightCm * sums[i] * g.Width / n
+					k[i] = kw * l * units.LightCm * sums[i] * g.Width / n
 				}
 			}
 		}
@@ -328,11 +374,29 @@ func countNetwork(m *input.Model, zero, top float64) (map[string]*rrkm.Counter, 
 			return nil, err
 		}
 	}
+	// A transition state is counted from its zero-point level, or, with
+	// Eckart tunnelling, from the higher end of its step, the lowest
+	// energy at which the tunnelling sum is not zero.
+	from := map[string]float64{}
+	var order []string
 	for _, st := range net.Steps {
-		if st.Via != "" {
-			if err := count(st.Via, m.Molecule(st.Via).E0); err != nil {
-				return nil, err
+		if st.Via == "" {
+			continue
+		}
+		e := m.Molecule(st.Via).E0
+		if st.Tunnelling == input.Eckart {
+			e = math.Max(net.EnergyOf(st.From), net.EnergyOf(st.To))
+		}
+		if prev, ok := from[st.Via]; !ok || e < prev {
+			if !ok {
+				order = append(order, st.Via)
 			}
+			from[st.Via] = e
+		}
+	}
+	for _, name := range order {
+		if err := count(name, from[name]); err != nil {
+			return nil, err
 		}
 	}
 	return out, nil
@@ -352,26 +416,15 @@ func productName(net *input.Network, set string) string {
 }
 
 // iltOnGrid fills k with the barrierless k(E) of the well counted by c, by
-// the inverse Laplace transform of its k∞ (rrkm.ILTMicro) on the well's own
-// grains of width g.Width/4, interpolated linearly in energy onto the
-// common grains g, on which the well's zero lies at off.
+// the inverse Laplace transform of its k∞ with the grain-averaged sums of
+// the one-well path (rrkm.ILTMicroFrom), on the common grains g, on which
+// the well's zero lies at off.
 func iltOnGrid(k []float64, c *rrkm.Counter, b *input.Barrierless, g rrkm.Grains, off float64) error {
-	// The well's own grains reach just past the common grid's top (the
-	// counter may be counted higher, for the hottest temperature's grid).
-	own := rrkm.GrainsTo(g.Width/4, math.Max(math.Min(c.Ceiling()-g.Width, g.Top()-off+g.Width), g.Width))
-	mi, err := rrkm.ILTMicro(c, rrkm.ILT{A: b.A, T0: b.T0, N: b.N, EInf: b.Energy}, own)
+	mi, err := rrkm.ILTMicroFrom(c, rrkm.ILT{A: b.A, T0: b.T0, N: b.N, EInf: b.Energy}, g, off)
 	if err != nil {
 		return err
 	}
-	for i := range k {
-		x := (g.Energy(i) - off) / own.Width
-		j := int(math.Floor(x))
-		if j < 0 || j+1 >= len(mi.K) {
-			continue
-		}
-		f := x - float64(j)
-		k[i] = mi.K[j]*(1-f) + mi.K[j+1]*f
-	}
+	copy(k, mi.K)
 	return nil
 }
 
@@ -511,8 +564,8 @@ func networkTemperature(m *input.Model, tK float64, ng networkGrid) (*networkRow
 	if k := math.Round(ng.lowest/grain - 0.5); k >= 1 {
 		grain = ng.lowest / (k + 0.5)
 	}
-	g := rrkm.GrainsTo(grain, ng.top+networkCeilingKT*units.KT(tK))
-	nw, err := buildNetwork(m, g, ng.zero, ng.tr, ng.counts)
+	g := rrkm.GrainsTo(grain, networkCeiling(m, ng.zero, tK))
+	nw, err := buildNetwork(m, g, ng.zero, ng.tr, ng.counts, tK)
 	if err != nil {
 		return nil, err
 	}
@@ -523,7 +576,14 @@ func networkTemperature(m *input.Model, tK float64, ng networkGrid) (*networkRow
 	row.grain, row.ceiling = g.Width, g.Top()+ng.zero
 	for _, pPa := range m.Pressures {
 		omega := ng.col.Z(tK) * collision.Concentration(pPa, tK)
-		r, err := network.Solve(nw, tK, omega, network.Options{Merge: true})
+		opt := network.Options{Merge: true}
+		if len(nw.Wells) == 1 {
+			// One well's rate coefficient is its slowest eigenvalue however
+			// poorly separated, as the one-well master equation reports it
+			// (with the separation beside it): nothing could be merged.
+			opt.MaxSeparation = 1
+		}
+		r, err := network.Solve(nw, tK, omega, opt)
 		var pe *network.PrecisionError
 		switch {
 		case err == nil && r.Merge != nil:

@@ -4,10 +4,15 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"runtime"
 	"strings"
 	"testing"
+
+	"go.yaml.in/yaml/v3"
 
 	"github.com/falloff-kinetics/falloff/internal/demo"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
@@ -411,5 +416,127 @@ func TestNetworkWorkers(t *testing.T) {
 	one, four := run(1), run(4)
 	if !bytes.Equal(one, four) {
 		t.Errorf("network rates differ between 1 and 4 workers (%d and %d bytes of JSON)", len(one), len(four))
+	}
+}
+
+// TestNetworkOneWellTestdata: every single-well input of testdata with a
+// pressure grid, rewritten as a network of one well whose steps are the
+// reaction's channels (transition states with their tunnelling and path
+// degeneracy, barrierless channels) into fragment sets, gives each
+// channel's k(T,P) of the one-well master equation to 1e-10 (issue 18):
+// two independent solvers (the network's block iteration on its own
+// grid against the one-well inverse iteration) on the same states. The
+// fragment sets sit at the reaction energy where the file gives it (the
+// Eckart barrier's far side) and at the well's level otherwise (an exit's
+// k(E) does not depend on it).
+func TestNetworkOneWellTestdata(t *testing.T) {
+	if testing.Short() {
+		t.Skip("every testdata input twice")
+	}
+	files, err := filepath.Glob("../../testdata/*.yaml")
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no testdata: %v", err)
+	}
+	compared := 0
+	for _, file := range files {
+		t.Run(filepath.Base(file), func(t *testing.T) {
+			text, err := os.ReadFile(file)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var doc map[string]any
+			if err := yaml.Unmarshal(text, &doc); err != nil {
+				t.Fatal(err)
+			}
+			grid, _ := doc["grid"].(map[string]any)
+			rx, _ := doc["reaction"].(map[string]any)
+			if grid["pressures"] == nil || rx == nil {
+				t.Skip("no pressure grid or no reaction: no master equation to compare")
+			}
+			if r, _ := rx["rotation"].(string); r != "" && r != "all-active" {
+				t.Skip("a network's rotations are all active")
+			}
+			channels := []map[string]any{rx}
+			if cs, ok := rx["competing"].([]any); ok {
+				for _, c := range cs {
+					channels = append(channels, c.(map[string]any))
+				}
+			}
+			frags := map[string]any{}
+			var steps []any
+			reactant := rx["reactant"].(string)
+			for i, c := range channels {
+				name := fmt.Sprintf("out%d", i)
+				energy := any("0 kcal/mol")
+				if e, ok := c["reaction-energy"]; ok {
+					energy = e
+				}
+				frags[name] = map[string]any{"species": c["products"], "energy": energy}
+				st := map[string]any{"from": reactant, "to": name}
+				for _, k := range []string{"via", "barrierless", "tunnelling", "path-degeneracy"} {
+					if v, ok := c[k]; ok {
+						st[k] = v
+					}
+				}
+				steps = append(steps, st)
+			}
+			delete(doc, "reaction")
+			doc["network"] = map[string]any{"reference": reactant, "wells": map[string]any{reactant: map[string]any{}}, "fragments": frags, "steps": steps}
+			netText, err := yaml.Marshal(doc)
+			if err != nil {
+				t.Fatal(err)
+			}
+			mn, err := input.Parse("net-"+filepath.Base(file), netText)
+			if err != nil {
+				t.Fatalf("the network form: %v\n%s", err, netText)
+			}
+			net, err := NetworkRates(context.Background(), mn, nil, 0)
+			if err != nil {
+				t.Fatal(err)
+			}
+			mo, err := input.ReadFile(file)
+			if err != nil {
+				t.Fatal(err)
+			}
+			n, err := New(mo)
+			if err != nil {
+				t.Fatal(err)
+			}
+			one, err := n.Rates(context.Background(), Options{SkipCheck: true, SkipHeldOut: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			ks := [][][]float64{one.K}
+			if len(one.Channels) > 0 {
+				ks = ks[:0]
+				for _, c := range one.Channels {
+					ks = append(ks, c.K)
+				}
+			}
+			if len(ks) != len(channels) || len(net.Products) != len(channels) {
+				t.Fatalf("%d channels one-well, %d products in the network, %d in the file", len(ks), len(net.Products), len(channels))
+			}
+			worst := 0.0
+			for c := range ks {
+				for i := range one.Temperatures {
+					for j := range one.Pressures {
+						if net.KProducts[i][j] == nil {
+							t.Fatalf("%g K, %g Pa refused: %v", one.Temperatures[i], one.Pressures[j], net.Refused)
+						}
+						got, want := net.KProducts[i][j][c][0], ks[c][i][j]
+						d := math.Abs(got/want - 1)
+						worst = math.Max(worst, d)
+						if !(d <= 1e-10) {
+							t.Errorf("channel %d (%s), %g K, %g Pa: network k = %.12g, one well %.12g (relative %.2g)", c, net.Products[c], one.Temperatures[i], one.Pressures[j], got, want, d)
+						}
+					}
+				}
+			}
+			compared++
+			t.Logf("%d channels, %d × %d points: worst relative difference %.2g", len(ks), len(one.Temperatures), len(one.Pressures), worst)
+		})
+	}
+	if compared < 5 {
+		t.Errorf("only %d testdata inputs compared", compared)
 	}
 }

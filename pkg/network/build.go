@@ -50,7 +50,8 @@ func newLayout(n *Network, tK float64) *layout {
 	for w, well := range n.Wells {
 		lw := make([]float64, g.N)
 		top := math.Inf(-1)
-		for i, c := range well.Counts {
+		for i := range well.Counts {
+			c := well.weight(i)
 			lw[i] = math.Inf(-1)
 			if c > 0 {
 				lw[i] = math.Log(c) + float64(well.CountScale)*math.Ln2 - beta*g.Energy(i)
@@ -207,7 +208,7 @@ func assemble(n *Network, l *layout, tK, omega float64, lowRank bool, add func(p
 			pa, pb := l.pos[iso.From][i], l.pos[iso.To][i]
 			kr := 0.0
 			if kf > 0 {
-				kr = kf * countRatio(a, b, i)
+				kr = kf * weightRatio(a, b, i)
 			}
 			if iso.Reverse != nil {
 				kr = iso.Reverse[i]

@@ -30,6 +30,14 @@ type Well struct {
 	// is its offset on the common scale (rrkm.Counter.ScaledCounts(g, offset)).
 	// The grains' Boltzmann weights are Counts[i]·exp(−E_i/kT).
 	Counts []float64
+	// Weights, if set, are the grains' in-grain Boltzmann sums at the
+	// temperature solved, Σ exp(−(E − E_i)/kT) over the states of grain i,
+	// in the unit of Counts (rrkm.Counter.ScaledBoltzmannCountsFrom): the
+	// grains' Boltzmann weights are then Weights[i]·exp(−E_i/kT), exact for
+	// the sparse levels of a small molecule at low temperature, as the
+	// one-well master equation weighs them (collision.NewWell). Zero
+	// exactly where Counts is; nil means Counts.
+	Weights []float64
 	// CountScale is the binary exponent of Counts (rrkm.Counter.Scale): 0
 	// unless the numbers of states outgrow float64.
 	CountScale int
@@ -48,7 +56,11 @@ type Isomerisation struct {
 	K []float64
 	// Reverse, if set, is the reverse k(E) in s⁻¹. It must equal the one
 	// detailed balance gives, K·N_From/N_To (both are L·W‡/(hρ) of their
-	// wells), to 1e-9 relative (ReverseTolerance); nil means that one.
+	// wells), to 1e-9 relative (ReverseTolerance); nil means that one, or,
+	// where the wells carry Weights, K·F_From/F_To with the grains' exact
+	// Boltzmann sums (which differs from the counts' ratio by the grains'
+	// inner distribution, O((Δ/kT)²)), so that the grained master equation
+	// is in detailed balance exactly.
 	Reverse []float64
 }
 
@@ -132,6 +144,16 @@ func (n *Network) validate() error {
 		if err := checkSlice(well.Counts, g.N, "counts"); err != nil {
 			return fmt.Errorf("network: well %q: %w", well.Name, err)
 		}
+		if well.Weights != nil {
+			if err := checkSlice(well.Weights, g.N, "weights"); err != nil {
+				return fmt.Errorf("network: well %q: %w", well.Name, err)
+			}
+			for i, c := range well.Counts {
+				if (c > 0) != (well.Weights[i] > 0) {
+					return fmt.Errorf("network: well %q: grain %d has count %v but Boltzmann weight %v", well.Name, i, c, well.Weights[i])
+				}
+			}
+		}
 		if err := checkTransfer(well.Transfer); err != nil {
 			return fmt.Errorf("network: well %q: %w", well.Name, err)
 		}
@@ -208,6 +230,23 @@ func (n *Network) validate() error {
 // countRatio returns N_a/N_b on grain i, both nonzero.
 func countRatio(a, b Well, i int) float64 {
 	return math.Ldexp(a.Counts[i]/b.Counts[i], a.CountScale-b.CountScale)
+}
+
+// weight returns the Boltzmann sum of grain i (Weights, else Counts) in the
+// unit of Counts.
+func (w Well) weight(i int) float64 {
+	if w.Weights != nil {
+		return w.Weights[i]
+	}
+	return w.Counts[i]
+}
+
+// weightRatio returns the ratio of the grains' Boltzmann weights of a and b
+// on grain i, F_a,i/F_b,i up to the wells' common normalisation: what
+// detailed balance between them at that grain needs, k_ba = k_ab·F_a/F_b;
+// N_a/N_b (countRatio) without Weights.
+func weightRatio(a, b Well, i int) float64 {
+	return math.Ldexp(a.weight(i)/b.weight(i), a.CountScale-b.CountScale)
 }
 
 // checkSlice reports a slice of the wrong length or with an entry that is

@@ -77,12 +77,21 @@ func (p ILT) Validate() error {
 // the reactant counter's ceiling are a programming error and panic, as in
 // RRKM.
 func ILTMicro(reactant *Counter, p ILT, g Grains) (*Micro, error) {
+	return ILTMicroFrom(reactant, p, g, 0)
+}
+
+// ILTMicroFrom is ILTMicro on grains g whose zero lies offset cm⁻¹ below the
+// reactant's zero-point level (a well of a network on the common grid):
+// the same grain-averaged sums, of the reactant's states and of ρ ⊗ the
+// ILT kernel from E∞ above the reactant, taken over g's grains. E0 of the
+// result is E∞ + offset, on g's scale.
+func ILTMicroFrom(reactant *Counter, p ILT, g Grains, offset float64) (*Micro, error) {
 	if err := p.Validate(); err != nil {
 		return nil, err
 	}
-	m := &Micro{Grains: g, E0: p.EInf, L: 1, Scale: reactant.scale,
-		Counts: reactant.ScaledCounts(g, 0),
-		SumTS:  reactant.fracCounts(g, p.EInf, p.N),
+	m := &Micro{Grains: g, E0: p.EInf + offset, L: 1, Scale: reactant.scale,
+		Counts: reactant.ScaledCounts(g, offset),
+		SumTS:  reactant.fracCounts(g, p.EInf+offset, p.N),
 		K:      make([]float64, g.N)}
 	// A′/(c·Δ), A′ = A/(kT0)^n, turns the grain integral of ρ ⊗ x^(n−1)/Γ(n)
 	// into SumTS; in log space because (kT0)^n alone may overflow.

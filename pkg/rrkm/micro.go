@@ -51,7 +51,7 @@ func RRKMTunnel(reactant, ts *Counter, l float64, g Grains, e *Eckart) *Micro {
 	checkTop("RRKMTunnel", ts.species, e)
 	m := &Micro{Grains: g, E0: ts.species.E0, L: l, Scale: reactant.scale,
 		Counts: reactant.ScaledCounts(g, 0),
-		SumTS:  ts.averagedTunnelSums(g, *e),
+		SumTS:  ts.averagedTunnelSums(g, *e, 0),
 		K:      make([]float64, g.N),
 		Tunnel: e}
 	m.rates(ts.scale)

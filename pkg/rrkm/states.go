@@ -145,14 +145,24 @@ func (c *Counter) LogBoltzmannCounts(g Grains, tK float64) []float64 {
 
 // scaledBoltzmannCounts is BoltzmannCounts times 2^−scale.
 func (c *Counter) scaledBoltzmannCounts(g Grains, tK float64) []float64 {
+	return c.ScaledBoltzmannCountsFrom(g, tK, 0)
+}
+
+// ScaledBoltzmannCountsFrom returns BoltzmannCounts times 2^−Scale (the unit
+// of ScaledCounts) on grains g whose zero lies offset cm⁻¹ below the
+// species' zero-point level (a well of a network on the common grid):
+// per grain i, Σ exp(−(E − E_i)/kT) over the states in it, E and E_i on
+// g's scale; the plain ScaledCounts(g, offset) for a species with
+// classical rotors.
+func (c *Counter) ScaledBoltzmannCountsFrom(g Grains, tK, offset float64) []float64 {
 	if c.rot != nil {
-		return c.ScaledCounts(g, 0)
+		return c.ScaledCounts(g, offset)
 	}
-	c.need(g, 0)
+	c.need(g, offset)
 	beta := 1 / kT(tK)
 	out := make([]float64, g.N)
 	for j, n := range c.comb {
-		e := float64(j) * c.fine
+		e := float64(j)*c.fine + offset
 		i := int(math.Floor(e/g.Width + 0.5))
 		if i >= g.N {
 			break

@@ -372,14 +372,24 @@ func (q *scaledGL) adapt(lnf func(float64) float64, a, b, whole, tol float64, de
 // does not, or if e is invalid. Sums beyond the floating-point range are
 // +Inf.
 func (c *Counter) AveragedTunnelSums(g Grains, e Eckart) []float64 {
-	return unscale(c.averagedTunnelSums(g, e), c.scale)
+	return unscale(c.averagedTunnelSums(g, e, 0), c.scale)
 }
 
-// averagedTunnelSums is AveragedTunnelSums times 2^−scale.
-func (c *Counter) averagedTunnelSums(g Grains, e Eckart) []float64 {
+// AveragedTunnelSumsFrom is AveragedTunnelSums on a grid whose zero lies
+// offset cm⁻¹ below the reactant's zero-point level (the common grid of a
+// network of wells, the reactant a well at offset): grain i averages the
+// tunnelling sum over [E_i − Δ/2 − offset, E_i + Δ/2 − offset] of the
+// reactant's energy scale, 0 below its zero. The counter must cover
+// g.Top() − offset − max(0, V1 − V2).
+func (c *Counter) AveragedTunnelSumsFrom(g Grains, e Eckart, offset float64) []float64 {
+	return unscale(c.averagedTunnelSums(g, e, offset), c.scale)
+}
+
+// averagedTunnelSums is AveragedTunnelSumsFrom times 2^−scale.
+func (c *Counter) averagedTunnelSums(g Grains, e Eckart, offset float64) []float64 {
 	p := e.mustParams("rrkm: AveragedTunnelSums")
 	out := make([]float64, g.N)
-	top := g.Top()
+	top := g.Top() - offset
 	if top <= p.emin {
 		return out
 	}
@@ -398,9 +408,9 @@ func (c *Counter) averagedTunnelSums(g Grains, e Eckart) []float64 {
 	}
 	k := newTunnelKernel(&p, d, top)
 	w := g.Width
-	lo := k.cum(n, s0, s1, -w/2)
+	lo := k.cum(n, s0, s1, -w/2-offset)
 	for i := range out {
-		hi := k.cum(n, s0, s1, (float64(i)+0.5)*w)
+		hi := k.cum(n, s0, s1, (float64(i)+0.5)*w-offset)
 		out[i] = max(0, (hi-lo)/w)
 		lo = hi
 	}

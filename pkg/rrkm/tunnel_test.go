@@ -598,3 +598,39 @@ func ExampleRRKMTunnel() {
 	// k(12000 cm-1) = 2.03e+03 s-1 (below E0)
 	// <k(E)>/(k∞κ) at 300 K = 1.0000
 }
+
+// TestTunnelSumsFrom: on a grid whose zero lies an offset below the
+// reactant's (a well of a network), the grain sums are those of the
+// reactant's own grid moved by the offset: exactly the same numbers for an
+// offset of whole grains (the same edges, an exact identity; 1e-12 for
+// rounding), zero on the grains below the reactant's zero. For an offset
+// half a grain larger each grain's window lies half a grain lower on the
+// reactant's scale, so, the tunnelling sum being non-decreasing in energy,
+// its average lies between those of the two grains it straddles: a check
+// of the offset's direction.
+func TestTunnelSumsFrom(t *testing.T) {
+	ts := &Species{Name: "two-mode TS", E0: 3000, Vibrations: []float64{400, 1000}}
+	e := Eckart{ImagFreq: 1000, V1: 3000, V2: 5000}
+	c, err := NewCounter(ts, 1, 9000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	g := GrainsTo(10, 7000)
+	own := c.AveragedTunnelSums(g, e)
+	shifted := GrainsTo(10, 7300)
+	got := c.AveragedTunnelSumsFrom(shifted, e, 300)
+	for i, v := range got {
+		switch j := i - 30; {
+		case j < 0 && v != 0:
+			t.Fatalf("grain %d below the reactant's zero: %g", i, v)
+		case j >= 0 && j < g.N && math.Abs(v-own[j]) > 1e-12*math.Abs(own[j]):
+			t.Fatalf("grain %d: %.15g, own grid %.15g", i, v, own[j])
+		}
+	}
+	half := c.AveragedTunnelSumsFrom(shifted, e, 305)
+	for k := 31; k < shifted.N; k++ {
+		if lo, hi := got[k-1], got[k]; half[k] < lo*(1-1e-12) || half[k] > hi*(1+1e-12) {
+			t.Fatalf("grain %d, offset half a grain larger: %.15g, not between %.15g and %.15g", k, half[k], lo, hi)
+		}
+	}
+}
