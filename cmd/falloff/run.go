@@ -66,6 +66,7 @@ func verbs() []verb {
 		{"micro", "RRKM k(E) and its thermal average beside canonical k∞(T)", runMicroCmd, false},
 		{"rates", "master-equation k(T,P) on the temperature and pressure grid", runRatesCmd, true},
 		{"compare", "the grid under strong-collider and exponential-down models side by side", runCompareCmd, true},
+		{"uncertainty", "Monte Carlo bands, uncertainty factors f(T) and sensitivities of k(T,P)", runUncertaintyCmd, true},
 		{"fit", "fit Arrhenius, falloff, PLOG and Chebyshev forms to a k(T,P) table (CSV)", runFitCmd, true},
 		{"thermo", "species thermochemistry (Cp, S, H) and NASA polynomials from the partition functions", runThermoCmd, false},
 		{"batch", "many reactions from a manifest: worker pool, resume, slices for a cluster scheduler, merged mechanism", runBatchCmd, true},
@@ -170,7 +171,7 @@ Usage: falloff <command> [flags] [FILE]
 Commands:
 `, job.Version)
 	for _, v := range verbs() {
-		fmt.Fprintf(w, "  %-9s %s\n", v.name, v.summary)
+		fmt.Fprintf(w, "  %-12s %s\n", v.name, v.summary)
 	}
 	fmt.Fprint(w, `
 With no FILE, states, micro, thermo, rates and compare run the built-in demo (an invented molecule).

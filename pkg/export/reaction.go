@@ -24,6 +24,8 @@ type Reaction struct {
 	Form fit.Form
 	// Note is a one-line comment written above the entry (the fit error).
 	Note string
+	// UserFields are extra keys of the Cantera YAML entry (userfield.go).
+	UserFields []UserField
 }
 
 // Header is the provenance written at the top of every file.

@@ -110,6 +110,9 @@ func YAML(h Header, u Units, rs []Reaction) ([]byte, error) {
 				b.WriteString("]\n")
 			}
 		}
+		if err := writeUserFields(&b, r.UserFields); err != nil {
+			return nil, err
+		}
 	}
 	return b.Bytes(), nil
 }

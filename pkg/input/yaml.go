@@ -29,6 +29,8 @@ type rawFile struct {
 	Fits           yaml.Node               `yaml:"fits"`
 	EnergyGrid     *rawEnergyGrid          `yaml:"energy-grid"`
 	Thermo         *rawThermo              `yaml:"thermo"` // read by Model.Thermo (thermo.go)
+	// Uncertainty is read by Model.Uncertainty (uncertainty.go).
+	Uncertainty rawUncertainty `yaml:"uncertainty"`
 }
 
 type rawMolecule struct {

@@ -45,6 +45,7 @@ func (r *RatesResult) Header() export.Header {
 		}
 		h.Lines = append(h.Lines, fitLines(prefix, e.Fits)...)
 	}
+	h.Lines = append(h.Lines, r.Notes...)
 	return h
 }
 
@@ -146,7 +147,10 @@ func reaction(e Entry, n fit.FormName) (export.Reaction, bool) {
 	if rep.Failed {
 		note = "FAILED " + note + ": " + rep.FailReason
 	}
-	return export.Reaction{Reactants: e.Reactants, Products: e.Products, Order: e.Order, Form: e.Fits.Form(n), Note: note}, true
+	if e.Note != "" {
+		note += "; " + e.Note
+	}
+	return export.Reaction{Reactants: e.Reactants, Products: e.Products, Order: e.Order, Form: e.Fits.Form(n), Note: note, UserFields: e.Fields}, true
 }
 
 // best returns the recommended form of fits, or with failed the form with

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"github.com/falloff-kinetics/falloff/pkg/collision"
+	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/units"
@@ -97,6 +98,9 @@ type RatesResult struct {
 	// HeldOut is k computed by the master equation between the grid
 	// points (nil with Options.SkipHeldOut): the fits are measured on it.
 	HeldOut *Grid `json:"held_out,omitempty"`
+	// Notes are further header lines of the mechanism files, such as an
+	// uncertainty run's factor f(T).
+	Notes []string `json:"-"`
 
 	model      *input.Model
 	fileWarned int // how many of Warnings are the input file's
@@ -147,6 +151,10 @@ type Entry struct {
 	Reactants, Products []string
 	Order               int
 	Fits                *fit.Results
+	// Note is added to the entry's comment in the mechanism files, and
+	// Fields are extra keys of its Cantera YAML entry.
+	Note   string
+	Fields []export.UserField
 }
 
 // NewWarnings returns the warnings of the run itself, after the input
