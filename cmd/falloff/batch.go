@@ -14,6 +14,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"github.com/falloff-kinetics/falloff/internal/report"
 	"github.com/falloff-kinetics/falloff/pkg/batch"
 	"github.com/falloff-kinetics/falloff/pkg/collision"
 	"github.com/falloff-kinetics/falloff/pkg/export"
@@ -272,6 +273,11 @@ func finishBatch(s streams, m *batch.Manifest, o ratesOptions, out string, rs []
 		return err
 	}
 	set.Add(filepath.Join(dir, "summary.csv"), c)
+	idx, err := batchIndex(m, out, rows)
+	if err != nil {
+		return err
+	}
+	set.Add(filepath.Join(dir, report.IndexFileName), idx)
 	written, err := set.Commit(context.WithoutCancel(s.ctx))
 	if err != nil {
 		return err

@@ -62,7 +62,7 @@ func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.plogOneTerm, "plog-one-term", false, "one Arrhenius term at every PLOG pressure, never two")
 	fs.Float64Var(&o.groupTolPct, "group-tolerance", 100*fit.DefaultGroupTol, "pressures within this many per cent are one PLOG entry (measured data); also groups rows and columns for the held-out error")
 	fs.BoolVar(&o.writeFailed, "write-failed", false, "with --out, write failed fits too (marked FAILED), and reactions.yaml with the best form when none meets the tolerance")
-	fs.StringVarP(&o.out, "out", "o", "", "write reactions.yaml and .txt (recommended form) and reactions-FORM.yaml and .txt (each fitted form) to this directory")
+	fs.StringVarP(&o.out, "out", "o", "", "write reactions.yaml and .txt (recommended form) and reactions-FORM.yaml and .txt (each fitted form), and report.html, to this directory")
 	fs.StringSliceVar(&o.reactants, "reactants", nil, "species names for the equation of the files, comma-separated (default R, or R1,R2 for a second-order k)")
 	fs.StringSliceVar(&o.products, "products", nil, "product names for the equation of the files (default P)")
 	fs.IntVar(&o.molecularity, "order", 0, "molecularity of the reaction as written, 1 or 2 (default: from the table's k units)")
@@ -455,6 +455,11 @@ func writeFitFiles(set *export.FileSet, o fitOptions, path string, src []byte, t
 	if !o.quiet && !slices.ContainsFunc(files, func(f job.File) bool { return f.Name == "reactions.yaml" }) {
 		fmt.Fprintln(s.err, "warning: no reactions.yaml written: no fitted form meets the tolerance (hint: see the fit table; --write-failed writes the best form marked FAILED, or raise --tolerance)")
 	}
+	page, err := fitReport(o, src, t, res, files, set.Paths())
+	if err != nil {
+		return nil, err
+	}
+	set.Add(filepath.Join(o.out, htmlReportName), page)
 	return set.Commit(s.ctx)
 }
 

@@ -100,8 +100,8 @@ func TestLibraryEqualsCommandLine(t *testing.T) {
 					shown++
 				}
 			}
-			if shown != len(want)+1 { // + summary.json
-				t.Errorf("rates --out wrote %d files, the library renders %d and summary.json", shown, len(want))
+			if shown != len(want)+2 { // + report.html and summary.json
+				t.Errorf("rates --out wrote %d files, the library renders %d, report.html and summary.json", shown, len(want))
 			}
 		})
 	}

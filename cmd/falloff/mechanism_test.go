@@ -175,8 +175,8 @@ func TestRecombinationErrors(t *testing.T) {
 }
 
 // A failed fit is not a mechanism unless asked for: on CH3NC's small grid
-// every form fails its tolerance, so rates --out writes only grid.csv and
-// summary.json and says why; on the demo Chebyshev meets it (on the grid
+// every form fails its tolerance, so rates --out writes only grid.csv,
+// report.html and summary.json and says why; on the demo Chebyshev meets it (on the grid
 // and between its points) and is written as reactions.yaml and
 // reactions-chebyshev, while the failed Troe and PLOG fits are not.
 func TestFailedFitsNotWritten(t *testing.T) {
@@ -192,7 +192,7 @@ func TestFailedFitsNotWritten(t *testing.T) {
 			got = append(got, e.Name())
 		}
 	}
-	if strings.Join(got, " ") != "grid.csv summary.json" {
+	if strings.Join(got, " ") != "grid.csv report.html summary.json" {
 		t.Errorf("all fits failed, yet the folder holds %v", got)
 	}
 	dir = t.TempDir()

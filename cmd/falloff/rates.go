@@ -48,7 +48,7 @@ func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.directionText, "direction", string(job.Forward), "write the reaction forward (as computed) or as the reverse recombination")
 	fs.BoolVar(&o.freeLimits, "free-limits", false, "let the falloff fits move k0 and k∞ from the computed limits when the broadening alone misses the tolerance (the report shows how far)")
 	fs.Float64Var(&o.tolerancePct, "tolerance", 1, "largest acceptable fit error in per cent: decides extra fit terms and the recommended form")
-	fs.StringVarP(&o.out, "out", "o", "", "write reactions.yaml, reactions.txt, a file per fitted form, grid.csv and summary.json to this directory")
+	fs.StringVarP(&o.out, "out", "o", "", "write reactions.yaml, reactions.txt, a file per fitted form, grid.csv, summary.json and report.html to this directory")
 	fs.StringVar(&o.energyUnit, "energy-unit", "cal/mol", "activation-energy unit of the mechanism files: cal/mol, kcal/mol, J/mol, kJ/mol or K")
 	o.disp.addFlags(fs)
 	fs.BoolVar(&o.writeFailed, "write-failed", false, "with --out, write failed fits too (marked FAILED), and reactions.yaml with the best form when none meets the tolerance")
@@ -194,22 +194,28 @@ func runRatesCmd(args []string, s streams) error {
 // asked for and writes them together (export.FileSet); it returns the
 // paths written.
 func writeRatesFiles(set *export.FileSet, o ratesOptions, n *job.Network, res *job.RatesResult, s streams) ([]string, error) {
+	var mech []job.File
 	if o.out != "" {
 		files, err := res.MechanismFiles(job.FileOptions{Units: o.units, PressureUnit: o.disp.Pressure, Skeleton: o.skeleton, WriteFailed: o.writeFailed})
 		if err != nil {
 			return nil, err
 		}
 		if !o.quiet && !slices.ContainsFunc(files, func(f job.File) bool { return f.Name == "reactions.yaml" }) {
-			fmt.Fprintln(s.err, "warning: no reactions.yaml written: no fitted form meets the tolerance for every reaction (hint: see the fit table; --write-failed writes the best form marked FAILED, or raise --tolerance)")
+			fmt.Fprintln(s.err, "warning: "+noReactionsWarning)
 		}
 		for _, f := range files {
 			set.Add(filepath.Join(o.out, f.Name), f.Data)
 		}
+		mech = files
+	}
+	var figs []job.File
+	var figErr error
+	if o.plots != "" || o.out != "" { // report.html shows them too
+		figs, figErr = figures.Rates(n, res, o.disp.Units, o.plotTemps)
 	}
 	if o.plots != "" {
-		figs, err := figures.Rates(n, res, o.disp.Units, o.plotTemps)
-		if err != nil {
-			return nil, err
+		if figErr != nil {
+			return nil, figErr
 		}
 		for _, f := range figs {
 			set.Add(filepath.Join(o.plots, f.Name), f.Data)
@@ -217,6 +223,11 @@ func writeRatesFiles(set *export.FileSet, o ratesOptions, n *job.Network, res *j
 	}
 	if o.out != "" {
 		summary := filepath.Join(o.out, "summary.json")
+		page, err := ratesReport(o, n, res, mech, figs, figErr, append(set.Paths(), filepath.Join(o.out, htmlReportName), summary))
+		if err != nil {
+			return nil, err
+		}
+		set.Add(filepath.Join(o.out, htmlReportName), page)
 		sums := map[string]string{}
 		for i, p := range set.Paths() {
 			sums[p] = fmt.Sprintf("sha256:%x", sha256.Sum256(set.Data(i)))
