@@ -137,3 +137,28 @@ grid:
 		}
 	}
 }
+
+// TestNetworkYieldsPlot: with a bimolecular source, --plots draws the
+// yields against pressure beside the populations and the rate
+// coefficients, one curve per well (stabilised) and per product
+// (chemically activated), from the yields the tables show.
+func TestNetworkYieldsPlot(t *testing.T) {
+	dir := t.TempDir()
+	file := filepath.Join(dir, "net.yaml")
+	if err := os.WriteFile(file, demo.NetworkText, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	plotsDir := filepath.Join(dir, "plots")
+	if code, _, errs := runCLI(t, "rates", "-q", "--plots", plotsDir, file); code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	svg, err := os.ReadFile(filepath.Join(plotsDir, "yields.svg"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"stabilised in chain", "stabilised in ring", "per captured molecule"} {
+		if !strings.Contains(string(svg), want) {
+			t.Errorf("yields.svg has no %q", want)
+		}
+	}
+}

@@ -13,12 +13,16 @@ import (
 const (
 	PopulationsPlot = "populations.svg"
 	NetworkKvsPPlot = "k-vs-P.svg"
+	YieldsPlot      = "yields.svg"
 )
 
 // Network renders the figures of a network's rates run: populations.svg
 // (Populations at the middle temperature and pressure, or the nearest
 // point not refused) and k-vs-P.svg (every rate coefficient from the
-// reference well against pressure at that temperature).
+// reference well against pressure at that temperature) and, with a
+// bimolecular source, yields.svg (the yields per captured molecule,
+// stabilised in each well and carried to each product, against pressure at
+// that temperature; the tables and --json give every temperature).
 func Network(res *job.NetworkRatesResult, d Units) ([]job.File, error) {
 	it, ip := -1, -1
 	best := math.Inf(1)
@@ -90,5 +94,46 @@ func Network(res *job.NetworkRatesResult, d Units) ([]job.File, error) {
 	if err != nil {
 		return nil, &job.NumericalError{Err: fmt.Errorf("%s: %w", NetworkKvsPPlot, err)}
 	}
-	return append(files, job.File{Name: NetworkKvsPPlot, Data: b}), nil
+	files = append(files, job.File{Name: NetworkKvsPPlot, Data: b})
+	if res.Source == nil {
+		return files, nil
+	}
+	src := res.Source
+	yf := plots.Figure{Title: fmt.Sprintf("Yields of %s → %s per captured molecule at %s K", src.Fragments, src.Into, num(res.Temperatures[it])),
+		XLabel: "P / " + d.Pressure, YLabel: "yield", LogX: true}
+	g = 1
+	series := func(name string, y func(i, j int) (float64, bool)) {
+		var xs, ys []float64
+		for j, p := range res.Pressures {
+			if v, ok := y(it, j); ok && v >= 0 {
+				xs, ys = append(xs, d.P(p)), append(ys, v)
+			}
+		}
+		if len(xs) > 0 {
+			yf.Series = append(yf.Series, plots.Series{Name: name, X: xs, Y: ys, Points: true, Group: g})
+			yf.Series = append(yf.Series, plots.Series{Name: name, X: xs, Y: ys, Group: g})
+		}
+		g++
+	}
+	for w, name := range res.Wells {
+		series("stabilised in "+name, func(i, j int) (float64, bool) {
+			if src.Stabilised[i][j] == nil {
+				return 0, false
+			}
+			return src.Stabilised[i][j][w], true
+		})
+	}
+	for x, name := range res.Products {
+		series("to "+name, func(i, j int) (float64, bool) {
+			if src.Activated[i][j] == nil {
+				return 0, false
+			}
+			return src.Activated[i][j][x], true
+		})
+	}
+	b, err = yf.SVG()
+	if err != nil {
+		return nil, &job.NumericalError{Err: fmt.Errorf("%s: %w", YieldsPlot, err)}
+	}
+	return append(files, job.File{Name: YieldsPlot, Data: b}), nil
 }
