@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/falloff-kinetics/falloff/internal/figures"
+	"github.com/falloff-kinetics/falloff/internal/report"
 	"github.com/falloff-kinetics/falloff/pkg/export"
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 
@@ -118,6 +119,7 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 	}
 	chs := res.FitNetwork(m, o.tolerancePct/100)
 	var written []string
+	var mech []job.File
 	if o.out != "" {
 		u, err := export.ParseUnits(o.energyUnit, string(o.disp.Quantity.Quantity))
 		if err != nil {
@@ -127,17 +129,36 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 		if err != nil {
 			return err
 		}
-		set.Add(filepath.Join(o.out, "reactions.yaml"), y)
-		set.Add(filepath.Join(o.out, "reactions.txt"), txt)
+		mech = []job.File{{Name: "reactions.yaml", Data: y}, {Name: "reactions.txt", Data: txt}}
+		for _, f := range mech {
+			set.Add(filepath.Join(o.out, f.Name), f.Data)
+		}
+	}
+	var figs []job.File
+	var figErr error
+	if o.plots != "" || o.out != "" { // report.html shows them too
+		figs, figErr = figures.Network(res, o.disp.Units)
 	}
 	if o.plots != "" {
-		figs, err := figures.Network(res, o.disp.Units)
-		if err != nil {
-			return err
+		if figErr != nil {
+			return figErr
 		}
 		for _, f := range figs {
 			set.Add(filepath.Join(o.plots, f.Name), f.Data)
 		}
+	}
+	if o.out != "" {
+		var warnings []string
+		if figErr != nil {
+			warnings = append(warnings, fmt.Sprintf("the figures could not be drawn: %v", figErr))
+			figs = nil
+		}
+		page, err := report.NetworkHTML(report.Network{Result: res, Channels: chs, Title: m.Title, Input: m.Source, Units: o.disp.Units,
+			Figures: figs, Mechanism: mech, Files: relative(o.out, append(set.Paths(), filepath.Join(o.out, htmlReportName))), Warnings: warnings})
+		if err != nil {
+			return err
+		}
+		set.Add(filepath.Join(o.out, htmlReportName), page)
 	}
 	if o.out != "" || o.plots != "" {
 		if written, err = set.Commit(s.ctx); err != nil {

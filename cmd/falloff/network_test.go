@@ -141,7 +141,9 @@ grid:
 // TestNetworkYieldsPlot: with a bimolecular source, --plots draws the
 // yields against pressure beside the populations and the rate
 // coefficients, one curve per well (stabilised) and per product
-// (chemically activated), from the yields the tables show.
+// (chemically activated), from the yields the tables show; --out writes
+// report.html with the mechanism files (internal/report checks its
+// content).
 func TestNetworkYieldsPlot(t *testing.T) {
 	dir := t.TempDir()
 	file := filepath.Join(dir, "net.yaml")
@@ -149,8 +151,14 @@ func TestNetworkYieldsPlot(t *testing.T) {
 		t.Fatal(err)
 	}
 	plotsDir := filepath.Join(dir, "plots")
-	if code, _, errs := runCLI(t, "rates", "-q", "--plots", plotsDir, file); code != exitOK {
+	out := filepath.Join(dir, "out")
+	if code, _, errs := runCLI(t, "rates", "-q", "--plots", plotsDir, "--out", out, "--write-failed", file); code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, f := range []string{"reactions.yaml", "reactions.txt", htmlReportName} {
+		if _, err := os.Stat(filepath.Join(out, f)); err != nil {
+			t.Error(err)
+		}
 	}
 	svg, err := os.ReadFile(filepath.Join(plotsDir, "yields.svg"))
 	if err != nil {
