@@ -174,50 +174,7 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 	}
 	d := o.disp
 	fmt.Fprintf(s.out, "%s: %s\nnetwork of %d wells; %s.\n", res.File, m.Title, len(res.Wells), res.Note)
-	header := []string{"T / K", "P / " + d.Pressure}
-	for _, from := range res.Wells {
-		for _, to := range res.Wells {
-			if to != from {
-				header = append(header, fmt.Sprintf("%s→%s", from, to))
-			}
-		}
-		for _, p := range res.Products {
-			header = append(header, fmt.Sprintf("%s→%s", from, p))
-		}
-	}
-	header = append(header, "separation")
-	var rows [][]string
-	for i, t := range res.Temperatures {
-		for j, p := range res.Pressures {
-			row := []string{num(t), num(d.P(p))}
-			k, kx := res.K[i][j], res.KProducts[i][j]
-			for a := range res.Wells {
-				for b := range res.Wells {
-					if a == b {
-						continue
-					}
-					if k == nil {
-						row = append(row, "-")
-					} else {
-						row = append(row, num(k[b][a]))
-					}
-				}
-				for x := range res.Products {
-					if kx == nil {
-						row = append(row, "-")
-					} else {
-						row = append(row, num(kx[x][a]))
-					}
-				}
-			}
-			if k == nil {
-				row = append(row, "refused")
-			} else {
-				row = append(row, num(res.Separation[i][j]))
-			}
-			rows = append(rows, row)
-		}
-	}
+	header, rows := res.RateTable(d.P, d.Pressure)
 	fmt.Fprintln(s.out, "\nrate coefficients / s-1 (a well's own loss is the sum of its columns):")
 	if err := renderTable(s.out, header, rows); err != nil {
 		return err
@@ -242,38 +199,7 @@ func runNetworkRates(o ratesOptions, m *input.Model, s streams) error {
 	}
 	if src := res.Source; src != nil {
 		fmt.Fprintf(s.out, "\nsource %s -> %s: yields per captured molecule (stabilised in each well; carried to each product, back to %s included):\n", src.Fragments, src.Into, src.Fragments)
-		yh := []string{"T / K", "P / " + d.Pressure}
-		for _, w := range res.Wells {
-			yh = append(yh, "into "+w)
-		}
-		for _, p := range res.Products {
-			yh = append(yh, "to "+p)
-		}
-		if src.KCapture != nil {
-			yh = append(yh, "k_capture / cm3 molecule-1 s-1")
-		}
-		var yr [][]string
-		for i, t := range res.Temperatures {
-			for j, p := range res.Pressures {
-				row := []string{num(t), num(d.P(p))}
-				if src.Stabilised[i][j] == nil {
-					for range len(res.Wells) + len(res.Products) {
-						row = append(row, "-")
-					}
-				} else {
-					for _, y := range src.Stabilised[i][j] {
-						row = append(row, num(y))
-					}
-					for _, y := range src.Activated[i][j] {
-						row = append(row, num(y))
-					}
-				}
-				if src.KCapture != nil {
-					row = append(row, num(src.KCapture[i][j]))
-				}
-				yr = append(yr, row)
-			}
-		}
+		yh, yr := res.YieldTable(d.P, d.Pressure)
 		if err := renderTable(s.out, yh, yr); err != nil {
 			return err
 		}

@@ -82,49 +82,11 @@ func NetworkHTML(r Network) ([]byte, error) {
 	}
 
 	// The rate coefficients, as the terminal table.
-	t := &table{Caption: "Rate coefficients / s-1 from each well (a well's own loss is the sum of its columns), and the eigenvalue separation |λ_chem|/|λ_relax|", Class: "wide",
-		Header: []string{"T / K", "P / " + pu}}
-	for _, from := range res.Wells {
-		for _, to := range res.Wells {
-			if to != from {
-				t.Header = append(t.Header, clean(from+"→"+to))
-			}
-		}
-		for _, pr := range res.Products {
-			t.Header = append(t.Header, clean(from+"→"+pr))
-		}
-	}
-	t.Header = append(t.Header, "separation")
-	for i, T := range res.Temperatures {
-		for j, P := range res.Pressures {
-			row := []string{num(T), num(u.P(P))}
-			k, kx := res.K[i][j], res.KProducts[i][j]
-			for a := range res.Wells {
-				for b := range res.Wells {
-					if a == b {
-						continue
-					}
-					if k == nil {
-						row = append(row, "-")
-					} else {
-						row = append(row, num(k[b][a]))
-					}
-				}
-				for x := range res.Products {
-					if kx == nil {
-						row = append(row, "-")
-					} else {
-						row = append(row, num(kx[x][a]))
-					}
-				}
-			}
-			if k == nil {
-				row = append(row, "refused")
-			} else {
-				row = append(row, num(res.Separation[i][j]))
-			}
-			t.Rows = append(t.Rows, numRow(row...))
-		}
+	t := &table{Caption: "Rate coefficients / s-1 from each well (a well's own loss is the sum of its columns), and the eigenvalue separation |λ_chem|/|λ_relax|", Class: "wide"}
+	header, rows := res.RateTable(u.P, pu)
+	t.Header = cleaned(header)
+	for _, row := range rows {
+		t.Rows = append(t.Rows, numRow(cleaned(row)...))
 	}
 	p.Sections = append(p.Sections, section{ID: "rates", Heading: "Rate coefficients", Blocks: []block{{Kind: "table", Table: t}}})
 
@@ -153,36 +115,11 @@ func NetworkHTML(r Network) ([]byte, error) {
 
 	if src := res.Source; src != nil {
 		yt := &table{Caption: fmt.Sprintf("Source %s → %s: yields per captured molecule, stabilised in each well and carried to each product (back to %s included)",
-			clean(src.Fragments), clean(src.Into), clean(src.Fragments)), Header: []string{"T / K", "P / " + pu}}
-		for _, w := range res.Wells {
-			yt.Header = append(yt.Header, clean("into "+w))
-		}
-		for _, pr := range res.Products {
-			yt.Header = append(yt.Header, clean("to "+pr))
-		}
-		if src.KCapture != nil {
-			yt.Header = append(yt.Header, "k_capture / cm3 molecule-1 s-1")
-		}
-		for i, T := range res.Temperatures {
-			for j, P := range res.Pressures {
-				row := []string{num(T), num(u.P(P))}
-				if src.Stabilised[i][j] == nil {
-					for range len(res.Wells) + len(res.Products) {
-						row = append(row, "-")
-					}
-				} else {
-					for _, y := range src.Stabilised[i][j] {
-						row = append(row, num(y))
-					}
-					for _, y := range src.Activated[i][j] {
-						row = append(row, num(y))
-					}
-				}
-				if src.KCapture != nil {
-					row = append(row, num(src.KCapture[i][j]))
-				}
-				yt.Rows = append(yt.Rows, numRow(row...))
-			}
+			clean(src.Fragments), clean(src.Into), clean(src.Fragments))}
+		header, rows := res.YieldTable(u.P, pu)
+		yt.Header = cleaned(header)
+		for _, row := range rows {
+			yt.Rows = append(yt.Rows, numRow(cleaned(row)...))
 		}
 		blocks := []block{{Kind: "table", Table: yt}}
 		if src.KCapture == nil {
@@ -249,4 +186,13 @@ func sortedKeys[V any](m map[string]V) []string {
 	}
 	slices.Sort(keys)
 	return keys
+}
+
+// cleaned applies clean to every string.
+func cleaned(xs []string) []string {
+	out := make([]string, len(xs))
+	for i, x := range xs {
+		out[i] = clean(x)
+	}
+	return out
 }
