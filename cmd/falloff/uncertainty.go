@@ -12,7 +12,9 @@ import (
 	"github.com/spf13/pflag"
 
 	"github.com/falloff-kinetics/falloff/internal/figures"
+	"github.com/falloff-kinetics/falloff/internal/report"
 	"github.com/falloff-kinetics/falloff/pkg/export"
+	"github.com/falloff-kinetics/falloff/pkg/input"
 	"github.com/falloff-kinetics/falloff/pkg/job"
 	"github.com/falloff-kinetics/falloff/pkg/uncertainty"
 )
@@ -45,7 +47,7 @@ func (o *uncertaintyOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.skipSens, "skip-sensitivities", false, "skip the sensitivity coefficients and the ranking")
 	fs.BoolVar(&o.json, "json", false, "print one JSON object instead of tables")
 	fs.BoolVar(&o.csv, "csv", false, "print one CSV row per grid point: the nominal k, the band, f, the spreads and the sensitivities")
-	fs.StringVarP(&o.out, "out", "o", "", "write uncertainty.json, uncertainty.csv, the figures and the mechanism files (with f(T)) to this directory")
+	fs.StringVarP(&o.out, "out", "o", "", "write uncertainty.json, uncertainty.csv, the figures, the mechanism files (with f(T)) and report.html to this directory")
 	o.grain.add(fs, "grain", `master-equation grain with its unit, e.g. "50 cm-1" (default: automatic, min(α, kT)/5)`)
 	o.ceiling.add(fs, "ceiling", `top of the master-equation grid with its unit (default: automatic per temperature)`)
 	fs.BoolVar(&o.writeFailed, "write-failed", false, "with --out, write failed fits too (marked FAILED), and reactions.yaml with the best form when none meets the tolerance")
@@ -172,7 +174,7 @@ func runUncertaintyCmd(args []string, s streams) error {
 	var files []string
 	var writeErr error
 	if o.out != "" {
-		files, writeErr = writeUncertaintyFiles(&set, o, res, rates, s)
+		files, writeErr = writeUncertaintyFiles(&set, o, m, res, rates, s)
 	}
 	if !quiet {
 		for _, w := range res.Warnings {
@@ -204,16 +206,22 @@ func workersText(w int) string {
 	return fmt.Sprintf("%d workers", w)
 }
 
-// writeUncertaintyFiles renders the JSON, the CSV, the figures and the
-// annotated mechanism files into the folder and writes them together.
-func writeUncertaintyFiles(set *export.FileSet, o uncertaintyOptions, res *uncertainty.Result, rates *job.RatesResult, s streams) ([]string, error) {
+// writeUncertaintyFiles renders the JSON, the CSV, the figures, the
+// annotated mechanism files and report.html (of the run on model m) into
+// the folder and writes them together.
+func writeUncertaintyFiles(set *export.FileSet, o uncertaintyOptions, m *input.Model, res *uncertainty.Result, rates *job.RatesResult, s streams) ([]string, error) {
 	res.Annotate(rates)
 	mech, err := rates.MechanismFiles(job.FileOptions{Units: o.units, PressureUnit: o.disp.Pressure, WriteFailed: o.writeFailed})
 	if err != nil {
 		return nil, err
 	}
-	if !o.quiet && !slices.ContainsFunc(mech, func(f job.File) bool { return f.Name == "reactions.yaml" }) {
-		fmt.Fprintln(s.err, "warning: no reactions.yaml written: no fitted form meets the tolerance for every reaction (hint: `falloff rates` shows the fits; --write-failed writes the best form marked FAILED)")
+	var warnings []string // the command's, for report.html
+	if !slices.ContainsFunc(mech, func(f job.File) bool { return f.Name == "reactions.yaml" }) {
+		const w = "no reactions.yaml written: no fitted form meets the tolerance for every reaction (hint: `falloff rates` shows the fits; --write-failed writes the best form marked FAILED)"
+		warnings = append(warnings, w)
+		if !o.quiet {
+			fmt.Fprintln(s.err, "warning: "+w)
+		}
 	}
 	for _, f := range mech {
 		set.Add(filepath.Join(o.out, f.Name), f.Data)
@@ -231,7 +239,14 @@ func writeUncertaintyFiles(set *export.FileSet, o uncertaintyOptions, res *uncer
 	}
 	set.Add(filepath.Join(o.out, uncertaintyCSVFile), []byte(c.String()))
 	path := filepath.Join(o.out, uncertaintyJSONFile)
-	b, err := json.MarshalIndent(uncertaintyJSON{Result: res, Files: append(set.Paths(), path)}, "", "  ")
+	page := filepath.Join(o.out, htmlReportName)
+	b, err := report.UncertaintyHTML(report.Uncertainty{Result: res, Rates: rates, Title: m.Title, Input: m.Source,
+		Units: o.disp.Units, Figures: figs, Mechanism: mech, Files: relative(o.out, append(set.Paths(), page, path)), Warnings: warnings})
+	if err != nil {
+		return nil, err
+	}
+	set.Add(page, b)
+	b, err = json.MarshalIndent(uncertaintyJSON{Result: res, Files: append(set.Paths(), path)}, "", "  ")
 	if err != nil {
 		return nil, &job.NumericalError{Err: err}
 	}
