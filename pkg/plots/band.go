@@ -7,7 +7,6 @@ import (
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
-	"gonum.org/v1/plot/plotutil"
 	"gonum.org/v1/plot/vg/draw"
 )
 
@@ -101,7 +100,7 @@ func (f BandFigure) polygon(b Band) (*plotter.Polygon, error) {
 	if err != nil {
 		return nil, err
 	}
-	c := color.RGBAModel.Convert(plotutil.Color(b.Group)).(color.RGBA)
+	c := seriesColor(b.Group)
 	// Premultiplied alpha: scale the colour with its opacity.
 	poly.Color = color.RGBA{R: uint8(uint16(c.R) * bandAlpha / 0xff), G: uint8(uint16(c.G) * bandAlpha / 0xff),
 		B: uint8(uint16(c.B) * bandAlpha / 0xff), A: bandAlpha}

@@ -2,6 +2,7 @@ package plots
 
 import (
 	"bytes"
+	"fmt"
 	"math"
 	"testing"
 )
@@ -34,5 +35,27 @@ func TestBand(t *testing.T) {
 	svg, err := f.SVG()
 	if err != nil || !bytes.Contains(svg, []byte("<svg")) {
 		t.Errorf("SVG: %v", err)
+	}
+}
+
+// TestPalette: the series colours are the Okabe–Ito set (Okabe & Ito 2008;
+// Wong 2011: #0072B2, #E69F00, #009E73, #D55E00, #CC79A7, #56B4E9, black,
+// #F0E442) in that order and repeat after eight; neighbouring series
+// differ in dash pattern or colour, and the first eight pairs of
+// (colour, pattern) are all different.
+func TestPalette(t *testing.T) {
+	want := []string{"#0072b2", "#e69f00", "#009e73", "#d55e00", "#cc79a7", "#56b4e9", "#000000", "#f0e442"}
+	seen := map[string]bool{}
+	for i := range 16 {
+		c := seriesColor(i)
+		hex := fmt.Sprintf("#%02x%02x%02x", c.R, c.G, c.B)
+		if hex != want[i%8] {
+			t.Errorf("series %d: colour %s, want %s", i, hex, want[i%8])
+		}
+		key := fmt.Sprint(hex, seriesDashes(i))
+		if i < 8 && seen[key] {
+			t.Errorf("series %d repeats colour and pattern %s", i, key)
+		}
+		seen[key] = true
 	}
 }

@@ -127,15 +127,18 @@ func (f Figure) plot() (*plot.Plot, error) {
 		if len(xy) == 0 {
 			return nil, fmt.Errorf("plots: series %q has no plottable point", s.Name)
 		}
-		c := plotutil.Color(s.Group)
+		k := s.Group
 		if s.Group == 0 {
-			c = plotutil.Color(i)
+			k = i
 		}
 		th, err := s.plotter(xy)
 		if err != nil {
 			return nil, err
 		}
-		th.setColor(c)
+		th.setColor(seriesColor(k))
+		if l, ok := th.(line); ok {
+			l.LineStyle.Dashes = seriesDashes(k)
+		}
 		p.Add(th)
 		if s.Name == "" {
 			continue
