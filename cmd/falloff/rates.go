@@ -39,7 +39,7 @@ type ratesOptions struct {
 func (o *ratesOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.json, "json", false, "print one JSON object instead of tables")
 	fs.BoolVar(&o.csv, "csv", false, "print the k(T,P) grid as CSV (T/K,P/<pressure unit>,k/<unit>), a table fit reads")
-	fs.IntVarP(&o.jobs, "jobs", "j", 0, "worker goroutines over temperatures (default: GOMAXPROCS)")
+	fs.IntVarP(&o.jobs, "jobs", "j", 0, "worker goroutines over temperatures and concurrent fits (default: GOMAXPROCS)")
 	o.grain.add(fs, "grain", `master-equation grain with its unit, e.g. "50 cm-1", at every temperature (default: automatic, min(α, kT)/5)`)
 	o.ceiling.add(fs, "ceiling", `top of the master-equation grid with its unit (default: automatic per temperature)`)
 	fs.BoolVar(&o.skipCheck, "skip-check", false, "skip the grain and ceiling convergence check")

@@ -61,8 +61,10 @@ const (
 //     there is one;
 //   - micro.svg and density.svg: k(E) of the main channel (from the
 //     threshold, or below it with tunnelling, to E0 + MicroAboveKT·kT at
-//     the highest temperature) and the reactant's ρ(E), when the channel
-//     has a transition state.
+//     the highest temperature, or the master equation's ceiling if lower)
+//     and the reactant's ρ(E), when the channel has a transition state;
+//     on the grains the master equation used (res.Spectrum), else, with
+//     an adiabatic J treatment, counted on the reporting grains.
 //
 // A temperature outside the grid is an error (a *job.OptionError on
 // --plot-temperatures).
@@ -131,16 +133,26 @@ func Rates(n *job.Network, res *job.RatesResult, d Units, temps []float64) ([]jo
 	if n.Main().TS == nil {
 		return files, nil // k(E) and ρ(E) plots need a transition state (see micro)
 	}
-	counts, err := n.Count(job.ReportGrid{})
-	if err != nil {
-		return nil, err
+	var mc job.MicroChannel
+	var name string
+	var energies, density []float64
+	if sp := res.Spectrum; sp != nil {
+		// The master equation's own grains: no state is counted again.
+		mc = job.MicroChannel{Name: sp.Channel, E0: sp.E0, Grain: sp.Grain, Energies: sp.Energies, K: sp.K}
+		name, energies, density = sp.Species, sp.Energies, sp.Density
+	} else {
+		counts, err := n.Count(job.ReportGrid{})
+		if err != nil {
+			return nil, err
+		}
+		mi, err := counts.Micro()
+		if err != nil {
+			return nil, err
+		}
+		mc = mi.Channels[0]
+		name, energies, density = counts.ReactantDensity()
 	}
-	mi, err := counts.Micro()
-	if err != nil {
-		return nil, err
-	}
-	name, energies, density := counts.ReactantDensity()
-	if err := save(MicroPlot, microFigure(mi.Channels[0], energies, density, res.Temperatures).SVG); err != nil {
+	if err := save(MicroPlot, microFigure(mc, energies, density, res.Temperatures).SVG); err != nil {
 		return nil, err
 	}
 	err = save(DensityPlot, plots.Figure{Title: "Density of states", XLabel: "E / cm-1", YLabel: "ρ(E) / states per cm-1", LogY: true,

@@ -1,7 +1,9 @@
 package collision
 
 import (
+	"fmt"
 	"math"
+	"syscall"
 	"testing"
 
 	"github.com/falloff-kinetics/falloff/internal/band"
@@ -30,23 +32,54 @@ func benchGrid(b testing.TB) (Channel, Collider, Transfer, []float64, []float64)
 	return ch, col, Transfer{Alpha300: 250, Exponent: 0.85}, temps, ps
 }
 
-// BenchmarkGrid times the whole 30 × 20 grid on GOMAXPROCS workers (target
-// ≤ 1 s on 2 cores), with and without the convergence check.
+// BenchmarkGrid times the whole 30 × 20 grid with its limits (k0, p½,
+// the falloff centre), without and with the convergence check, on one
+// worker and on two, reporting the CPU time per grid (cpu-s/op) and, on
+// two workers, the speed-up in wall time over one worker measured in the
+// same run (speedup-vs-1); previous-half-pressure runs the grid with the
+// previous root search for p½ (halfPressureSearch), so the gain of the
+// interpolation from the grid is measured in the same run.
 func BenchmarkGrid(b *testing.B) {
 	ch, col, tr, temps, ps := benchGrid(b)
-	for _, skip := range []bool{true, false} {
-		name := "with-convergence-check"
-		if skip {
-			name = "grid-only"
-		}
-		b.Run(name, func(b *testing.B) {
-			for b.Loop() {
-				if _, err := Run(ch, col, tr, temps, ps, Options{SkipConvergence: skip}); err != nil {
-					b.Fatal(err)
-				}
+	for _, v := range []struct {
+		name     string
+		skip     bool
+		previous bool
+	}{{"grid-only", true, false}, {"with-convergence-check", false, false}, {"previous-half-pressure", true, true}} {
+		var one float64
+		for _, jobs := range []int{1, 2} {
+			if v.previous && jobs == 2 {
+				continue
 			}
-		})
+			b.Run(fmt.Sprintf("%s/jobs=%d", v.name, jobs), func(b *testing.B) {
+				halfFromGrid = !v.previous
+				defer func() { halfFromGrid = true }()
+				cpu0 := cpuSeconds()
+				for b.Loop() {
+					if _, err := Run(ch, col, tr, temps, ps, Options{SkipConvergence: v.skip, Jobs: jobs}); err != nil {
+						b.Fatal(err)
+					}
+				}
+				wall := b.Elapsed().Seconds() / float64(b.N)
+				b.ReportMetric((cpuSeconds()-cpu0)/float64(b.N), "cpu-s/op")
+				if jobs == 1 {
+					one = wall
+				} else if one > 0 {
+					b.ReportMetric(one/wall, "speedup-vs-1")
+				}
+			})
+		}
 	}
+}
+
+// cpuSeconds returns the CPU time (user + system) the process has used.
+func cpuSeconds() float64 {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	tv := func(t syscall.Timeval) float64 { return float64(t.Sec) + float64(t.Usec)/1e6 }
+	return tv(ru.Utime) + tv(ru.Stime)
 }
 
 // BenchmarkSolvePoint compares one (T, P) point by the banded solver with the

@@ -9,6 +9,7 @@ import (
 	"slices"
 	"sync"
 
+	"github.com/falloff-kinetics/falloff/internal/band"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
@@ -87,13 +88,37 @@ type Options struct {
 	Jobs    int     // worker goroutines over temperatures; 0 = GOMAXPROCS
 	// SkipConvergence turns off the grain and ceiling convergence check.
 	SkipConvergence bool
+	// KOnly computes k(T,P) alone: no k0, half-pressure or falloff centre
+	// (their fields stay zero), for points that only check fits.
+	KOnly bool
 	// Progress, if set, is called (from worker goroutines) after each
 	// temperature is done.
 	Progress func()
 }
 
-// MaxMatrixEntries bounds the banded matrix (8 bytes an entry, 400 MB).
+// MaxMatrixEntries bounds the banded matrix of one temperature (8 bytes
+// an entry, 400 MB a matrix). A worker holds several such matrices at its
+// peak (PeakBytes): at this limit about 4.8 GB per worker.
 const MaxMatrixEntries = 50_000_000
+
+// PeakBands is the most band matrices of a temperature's size one worker
+// holds at once: the kernel's downward probabilities and the collision
+// operator (both kept for the whole temperature), the assembled matrix
+// (reused from pressure to pressure) and its LDLᵀ factors, the
+// low-pressure operator and, while a shift is tried, a second
+// factorisation; the eigenvectors and k(E) are single columns beside them.
+const PeakBands = 6
+
+// GCHeadroom is the factor by which Go's collector lets the heap grow
+// past the live data before it collects (GOGC = 100: twice; the runtime
+// package documentation, "Environment Variables").
+const GCHeadroom = 2
+
+// PeakBytes returns the peak memory in bytes one worker needs for a
+// master equation of the given number of matrix entries (MatrixSize):
+// PeakBands matrices of 8-byte entries, with the collector's headroom. N
+// workers need N times the largest of their temperatures'.
+func PeakBytes(entries float64) float64 { return entries * 8 * PeakBands * GCHeadroom }
 
 // ErrTooLarge reports a master-equation grid that would not fit in memory.
 var ErrTooLarge = errors.New("collision: master-equation grid too large for memory")
@@ -222,6 +247,22 @@ type TemperatureResult struct {
 	KC    [][]float64
 	KInfC []float64
 	K0C   []float64
+	// Spectrum is the well's grains as the master equation used them, for
+	// figures drawn without counting states again; nil for a well resolved
+	// in J.
+	Spectrum *Spectrum
+}
+
+// Spectrum is one temperature's grains of the well, in ascending energy:
+// the grain energies in cm⁻¹, the first channel's k(E) in s⁻¹ (as the
+// master equation used it, with any tunnelling or thermal correction), and
+// the reactant's states per grain times 2^−Scale (rrkm.Micro.Scale), so the
+// density of states is Counts·2^Scale/Width per cm⁻¹. Grains that hold no
+// state are left out (see NewWell).
+type Spectrum struct {
+	E, K, Counts []float64
+	Width        float64
+	Scale        int
 }
 
 // Result is a k(T,P) grid.
@@ -265,26 +306,20 @@ func RunContext(ctx context.Context, ch Channel, col Collider, tr Transfer, temp
 		jobs = runtime.GOMAXPROCS(0)
 	}
 	errs := make([]error, len(temps))
-	var wg sync.WaitGroup
-	next := make(chan int)
-	for range min(jobs, len(temps)) {
-		wg.Go(func() {
-			for i := range next {
-				if errs[i] = ctx.Err(); errs[i] != nil {
-					continue
-				}
-				res.Rows[i], errs[i] = solveGuarded(ctx, ch, col, tr, temps[i], pressures, opt.Grain, opt.Ceiling)
-				if opt.Progress != nil {
-					opt.Progress()
-				}
-			}
-		})
-	}
-	for i := range temps {
-		next <- i
-	}
-	close(next)
-	wg.Wait()
+	// The temperatures go to the workers in falling order of their cost,
+	// the largest grids first (longest-processing-time order, Graham 1969,
+	// SIAM J. Appl. Math. 17, 416), so that no worker is left alone with the
+	// largest grid at the end; each result lands in its own row, so the
+	// order does not change the results.
+	pool(jobs, len(temps), costOrder(ch, tr, temps, opt.Grain, opt.Ceiling), func(i int) {
+		if errs[i] = ctx.Err(); errs[i] != nil {
+			return
+		}
+		res.Rows[i], errs[i] = solveGuarded(ctx, ch, col, tr, temps[i], pressures, opt.Grain, opt.Ceiling, !opt.KOnly)
+		if opt.Progress != nil {
+			opt.Progress()
+		}
+	})
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -294,11 +329,72 @@ func RunContext(ctx context.Context, ch Channel, col Collider, tr Transfer, temp
 		}
 	}
 	if !opt.SkipConvergence && len(pressures) > 0 {
-		if err := convergence(ctx, ch, col, tr, res, opt); err != nil {
+		if err := convergence(ctx, ch, col, tr, res, jobs); err != nil {
 			return nil, err
 		}
 	}
 	return res, nil
+}
+
+// pool runs do(i) for every i of order (a permutation of 0..n−1, or nil
+// for 0..n−1 in turn) on min(jobs, n) goroutines, handing out the indices
+// in that order, and returns when all are done.
+func pool(jobs, n int, order []int, do func(i int)) {
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for range max(1, min(jobs, n)) {
+		wg.Go(func() {
+			for i := range next {
+				do(i)
+			}
+		})
+	}
+	for k := range n {
+		i := k
+		if order != nil {
+			i = order[k]
+		}
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+}
+
+// costOrder returns the indices of temps from the costliest master
+// equation to the cheapest. The cost of a temperature is the factorisation
+// of its band matrix, about grains × band² = (ceiling/grain)·(16α/grain)²
+// (the band reaches KernelReach), estimated with the ceiling E0 + 40 kT
+// (within the automatic ceiling's range, CeilingFor) or the one given, and
+// the grain GrainFor or the one given; the strong collider costs one grain
+// each. It orders the temperatures without building their grids.
+func costOrder(ch Channel, tr Transfer, temps []float64, grain, ceiling float64) []int {
+	cost := make([]float64, len(temps))
+	order := make([]int, len(temps))
+	for i, tK := range temps {
+		g, c := grain, ceiling
+		if g == 0 {
+			g = GrainFor(tr, tK)
+		}
+		if c == 0 {
+			c = ch.lowestE0() + 40*units.KT(tK)
+		}
+		cost[i] = c / g
+		if !tr.Strong {
+			b := KernelReach(tr.Alpha(tK)) / g
+			cost[i] *= b * b
+		}
+		order[i] = i
+	}
+	slices.SortStableFunc(order, func(a, b int) int {
+		switch {
+		case cost[a] > cost[b]:
+			return -1
+		case cost[a] < cost[b]:
+			return 1
+		}
+		return 0
+	})
+	return order
 }
 
 // ErrInternal marks a defect of the program found at run time (a panic in
@@ -308,22 +404,30 @@ var ErrInternal = errors.New("collision: internal error")
 // solveGuarded is solveTemperature with limits, turning a panic in the
 // worker goroutine (which would end the process with no message) into an
 // error wrapping ErrInternal that names the temperature.
-func solveGuarded(ctx context.Context, ch Channel, col Collider, tr Transfer, tK float64, pressures []float64, grain, ceiling float64) (r TemperatureResult, err error) {
+func solveGuarded(ctx context.Context, ch Channel, col Collider, tr Transfer, tK float64, pressures []float64, grain, ceiling float64, limits bool) (r TemperatureResult, err error) {
 	defer func() {
 		if p := recover(); p != nil {
 			err = fmt.Errorf("%w at T = %g K: %v", ErrInternal, tK, p)
 		}
 	}()
-	return solveTemperature(ctx, ch, col, tr, tK, pressures, grain, ceiling, true)
+	return solveTemperature(ctx, ch, col, tr, tK, pressures, grain, ceiling, limits)
 }
 
 // convergence re-solves the corner points with half the grain and with the
 // ceiling 10 kT higher and records in res the largest relative change of k
-// and where it was found.
-func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res *Result, opt Options) error {
-	worst := 0.0
+// and where it was found. The re-solves run on jobs workers, the costliest
+// (half the grain) first; the changes are then compared in a fixed order,
+// so the result does not depend on jobs.
+func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res *Result, jobs int) error {
 	nT, nP := len(res.Temperatures), len(res.Pressures)
 	ps := []float64{res.Pressures[0], res.Pressures[nP-1]}
+	type check struct {
+		it             int
+		grain, ceiling float64
+		alt            TemperatureResult
+		err            error
+	}
+	var checks []check
 	for _, it := range []int{0, nT - 1} {
 		row := res.Rows[it]
 		t := row.T
@@ -337,22 +441,45 @@ func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res
 			if v.grain < ch.Reactant.Fine() {
 				continue // a grain this close to the fine grain cannot be halved on this count
 			}
-			alt, err := solveTemperature(ctx, ch, col, tr, t, ps, v.grain, v.ceiling, false)
-			if err != nil {
-				var pe *PointError
-				if errors.As(err, &pe) {
-					pe.Stage = "convergence check (" + pe.Stage + ")"
-				}
-				return err
+			checks = append(checks, check{it: it, grain: v.grain, ceiling: v.ceiling})
+		}
+	}
+	order := make([]int, len(checks))
+	for i := range order {
+		order[i] = i
+	}
+	// Half the grain costs about eight times the row (grains × band²).
+	slices.SortStableFunc(order, func(a, b int) int {
+		ha, hb := checks[a].grain < res.Rows[checks[a].it].Grain, checks[b].grain < res.Rows[checks[b].it].Grain
+		switch {
+		case ha && !hb:
+			return -1
+		case hb && !ha:
+			return 1
+		}
+		return 0
+	})
+	pool(jobs, len(checks), order, func(i int) {
+		c := &checks[i]
+		c.alt, c.err = solveTemperature(ctx, ch, col, tr, res.Rows[c.it].T, ps, c.grain, c.ceiling, false)
+	})
+	worst := 0.0
+	for _, c := range checks {
+		if c.err != nil {
+			var pe *PointError
+			if errors.As(c.err, &pe) {
+				pe.Stage = "convergence check (" + pe.Stage + ")"
 			}
-			for j, k := range alt.K {
-				base := row.K[0]
-				if j == 1 {
-					base = row.K[nP-1]
-				}
-				if d := math.Abs(k/base - 1); d > worst || worst == 0 {
-					worst, res.ConvergenceT, res.ConvergenceP = d, t, ps[j]
-				}
+			return c.err
+		}
+		row := res.Rows[c.it]
+		for j, k := range c.alt.K {
+			base := row.K[0]
+			if j == 1 {
+				base = row.K[nP-1]
+			}
+			if d := math.Abs(k/base - 1); d > worst || worst == 0 {
+				worst, res.ConvergenceT, res.ConvergenceP = d, row.T, ps[j]
 			}
 		}
 	}
@@ -370,6 +497,9 @@ type prepared struct {
 	eff    float64
 	weight float64
 	more   []component
+	// bufs holds each component's assembled matrix, reused from pressure
+	// to pressure (buildInto).
+	bufs map[*Well]*band.Sym
 }
 
 // component is one J component of a well.
@@ -586,7 +716,15 @@ func (p *prepared) rates1(w *Well, kernel *Kernel, omega float64) (float64, []fl
 		}
 		return lambda, kc, nil
 	}
-	s, err := w.Solve(kernel, omega)
+	if !(omega > 0) || math.IsInf(omega, 0) {
+		return 0, nil, fmt.Errorf("collision: collision frequency %v s-1 must be positive and finite", omega)
+	}
+	if p.bufs == nil {
+		p.bufs = map[*Well]*band.Sym{}
+	}
+	sys := buildInto(p.bufs[w], w, kernel, omega)
+	p.bufs[w] = sys.a
+	s, err := sys.eigen()
 	if err != nil {
 		return 0, nil, err
 	}
@@ -675,6 +813,9 @@ func solveTemperature(ctx context.Context, ch Channel, col Collider, tr Transfer
 	if p.kernel != nil {
 		r.Band, r.Rescaled = p.kernel.Band, p.kernel.Rescaled
 	}
+	if len(p.more) == 0 && limits {
+		r.Spectrum = &Spectrum{E: w.E, K: w.KC[0], Counts: w.Counts, Width: w.Grain, Scale: w.CountScale}
+	}
 	if !(z > 0) || math.IsInf(z, 0) {
 		return fail(0, "collision rate", fmt.Errorf("collision rate constant %v cm3/molecule/s: %w", z, errNotFinite))
 	}
@@ -710,7 +851,11 @@ func solveTemperature(ctx context.Context, ch Channel, col Collider, tr Transfer
 	for _, x := range k0c {
 		r.K0C = append(r.K0C, x*z)
 	}
-	omegaC, err := p.halfPressure(r.KInfME, k0, omegas, r.K)
+	half := p.halfPressure
+	if !halfFromGrid {
+		half = p.halfPressureSearch
+	}
+	omegaC, err := half(r.KInfME, k0, omegas, r.K)
 	if err != nil {
 		return fail(0, "half-pressure (k = k∞/2)", err)
 	}
@@ -750,23 +895,199 @@ func checkRate(k, kInf float64, prev, ps []float64) error {
 	return nil
 }
 
-// halfPressure returns the collision frequency where k = kInf/2, by false position
-// (Illinois variant) in ln ω. The bracket comes from the grid points when
-// they straddle it, otherwise from the Lindemann estimate
-// ω = k∞/(k0/ω), widened until it holds.
+// halfTol is the |ln(k/(k∞/2))| at which the half-pressure search stops:
+// the slope d ln k/d ln ω is about 0.2 to 0.5 at the half-pressure, so p½
+// is then found to a few parts in 1e8 (far below the grain error of k,
+// ~1e-3, and the 4 digits it is reported with).
+const halfTol = 1e-8
+
+// halfRefineSolves is the most master-equation solves halfPressure spends
+// refining the root interpolated from the grid before it falls back on
+// the root search.
+const halfRefineSolves = 2
+
+// halfFromGrid selects halfPressure; false selects the previous root
+// search (halfPressureSearch), which benchmarks time beside it.
+var halfFromGrid = true
+
+// halfExtendSolves is the most solves halfPressure spends extending the
+// grid toward the half-pressure when the grid's pressures do not straddle
+// it, before it falls back on the root search.
+const halfExtendSolves = 6
+
+// halfOvershoot stretches each secant step of the extension: upward from
+// below the centre g is concave and the secant's root falls short of the
+// half-pressure, so a step a fifth longer crosses it once near instead
+// of creeping up to it.
+const halfOvershoot = 1.2
+
+// halfMaxStep is the longest step in ln ω by which halfPressure extends
+// the grid: three decades of pressure.
+const halfMaxStep = 3 * math.Ln10
+
+// halfPressure returns the collision frequency where k = kInf/2, the root
+// of g(ln ω) = ln(k/k∞) + ln 2, from the grid points (omegas ascending,
+// rates ks). When the grid's pressures do not straddle it, the grid is
+// first extended from its end by secant steps through the two end points,
+// stretched by halfOvershoot (a slope of at least 0.1, steps of at most
+// halfMaxStep, at most halfExtendSolves of them); below the falloff
+// centre the slope of g steepens toward the low-pressure limit, so a step
+// down from the low end overshoots into a bracket. Then the root is
+// interpolated from the points around it — the cubic through up to four
+// of them in ln ω — and refined by at most halfRefineSolves solves (plus
+// halfExtendSolves after an extension, whose points are further apart),
+// each at the interpolant's root and then added to its nodes, so that the
+// next interpolant is exact beside the root; g rises smoothly in ln ω,
+// and ln k is close to a cubic over a decade or so of pressure. If the
+// extension or the refinement misses, the root search continues
+// (halfPressureSearch, or illinois from the tightest bracket).
 func (p *prepared) halfPressure(kInf, k0PerOmega float64, omegas, ks []float64) (float64, error) {
+	g := func(lnw float64) (float64, error) {
+		k, err := p.rate(math.Exp(lnw))
+		return math.Log(k/kInf) + math.Ln2, err
+	}
+	n := len(ks)
+	if n < 2 {
+		return p.halfPressureSearch(kInf, k0PerOmega, omegas, ks)
+	}
+	xs, gs := make([]float64, n, n+halfExtendSolves+halfRefineSolves), make([]float64, n, n+halfExtendSolves+halfRefineSolves)
+	for i := range ks {
+		xs[i], gs[i] = math.Log(omegas[i]), math.Log(ks[i]/kInf)+math.Ln2
+		if i > 0 && !(xs[i] > xs[i-1]) {
+			return p.halfPressureSearch(kInf, k0PerOmega, omegas, ks) // not ascending
+		}
+	}
+	j := halfBracket(gs)
+	extended := j < 0
+	for extend := 0; j < 0; extend++ {
+		if extend == halfExtendSolves {
+			return p.halfPressureSearch(kInf, k0PerOmega, omegas, ks)
+		}
+		m := len(xs)
+		if gs[0] > 0 { // the whole grid above half: p½ below it
+			slope := math.Max((gs[1]-gs[0])/(xs[1]-xs[0]), 0.1)
+			x := xs[0] - math.Min(halfOvershoot*gs[0]/slope, halfMaxStep)
+			gx, err := g(x)
+			if err != nil {
+				return 0, err
+			}
+			if math.Abs(gx) < halfTol {
+				return math.Exp(x), nil
+			}
+			xs, gs = append([]float64{x}, xs...), append([]float64{gx}, gs...)
+		} else { // the whole grid below half: p½ above it
+			slope := math.Max((gs[m-1]-gs[m-2])/(xs[m-1]-xs[m-2]), 0.1)
+			x := xs[m-1] + math.Min(-halfOvershoot*gs[m-1]/slope, halfMaxStep)
+			gx, err := g(x)
+			if err != nil {
+				return 0, err
+			}
+			if math.Abs(gx) < halfTol {
+				return math.Exp(x), nil
+			}
+			xs, gs = append(xs, x), append(gs, gx)
+		}
+		j = halfBracket(gs)
+	}
+	// The interpolation nodes: the bracket's two points and one more on
+	// each side where there are any.
+	lo, hi := max(0, j-2), min(len(xs), j+2)
+	a, b := xs[j-1], xs[j]
+	ga, gb := gs[j-1], gs[j]
+	if ga == 0 {
+		return math.Exp(a), nil
+	}
+	xs, gs = slices.Clone(xs[lo:hi]), slices.Clone(gs[lo:hi])
+	c := lagrangeRoot(xs, gs, a, b)
+	refine := halfRefineSolves
+	if extended {
+		refine += halfExtendSolves // an extended grid: wider spacing, fewer nodes
+	}
+	for range refine {
+		gc, err := g(c)
+		if err != nil {
+			return 0, err
+		}
+		if math.Abs(gc) < halfTol {
+			return math.Exp(c), nil
+		}
+		if gc > 0 {
+			b, gb = c, gc
+		} else {
+			a, ga = c, gc
+		}
+		// The solved point joins the nodes: the interpolant is then
+		// exact where the root is, and its root far closer.
+		xs, gs = append(xs, c), append(gs, gc)
+		c = lagrangeRoot(xs, gs, a, b)
+	}
+	return p.illinois(g, a, b, ga, gb)
+}
+
+// halfBracket returns the first j where g rises through zero from gs[j−1]
+// ≤ 0 to gs[j] ≥ 0, or −1.
+func halfBracket(gs []float64) int {
+	for j := 1; j < len(gs); j++ {
+		if gs[j-1] <= 0 && gs[j] >= 0 {
+			return j
+		}
+	}
+	return -1
+}
+
+// lagrange returns the polynomial through (xs, gs) at x and its slope.
+func lagrange(xs, gs []float64, x float64) (v, slope float64) {
+	for i := range xs {
+		l, dl := 1.0, 0.0
+		for m := range xs {
+			if m == i {
+				continue
+			}
+			d := xs[i] - xs[m]
+			dl = dl*(x-xs[m])/d + l/d
+			l *= (x - xs[m]) / d
+		}
+		v += gs[i] * l
+		slope += gs[i] * dl
+	}
+	return v, slope
+}
+
+// lagrangeRoot returns a root in [a, b] of the polynomial through (xs, gs),
+// which is ≤ 0 at a and ≥ 0 at b: by bisection, 60 halvings (the bracket
+// to 1e-18 of its width; no solve is spent).
+func lagrangeRoot(xs, gs []float64, a, b float64) float64 {
+	for range 60 {
+		m := a + (b-a)/2
+		if v, _ := lagrange(xs, gs, m); v > 0 {
+			b = m
+		} else {
+			a = m
+		}
+	}
+	return a + (b-a)/2
+}
+
+// halfPressureSearch is the root search for the half-pressure used before
+// the interpolation from the grid (and after it, when the grid does not
+// straddle the half-pressure or the refinement misses halfTol): false
+// position (Illinois variant) in ln ω, from the grid points' bracket when
+// they straddle it, otherwise from the Lindemann estimate ω = k∞/(k0/ω),
+// widened until it holds. Tests compare halfPressure with it.
+func (p *prepared) halfPressureSearch(kInf, k0PerOmega float64, omegas, ks []float64) (float64, error) {
 	g := func(lnw float64) (float64, error) {
 		k, err := p.rate(math.Exp(lnw))
 		return math.Log(k/kInf) + math.Ln2, err
 	}
 	var a, b, ga, gb float64
 	found := false
-	for j := 1; j < len(ks); j++ {
-		lo, hi := math.Log(ks[j-1]/kInf)+math.Ln2, math.Log(ks[j]/kInf)+math.Ln2
-		if lo <= 0 && hi >= 0 {
-			a, b, ga, gb, found = math.Log(omegas[j-1]), math.Log(omegas[j]), lo, hi, true
-			break
-		}
+	gs := make([]float64, len(ks))
+	for i, k := range ks {
+		gs[i] = math.Log(k/kInf) + math.Ln2
+	}
+	if j := halfBracket(gs); j > 0 {
+		a, b, found = math.Log(omegas[j-1]), math.Log(omegas[j]), true
+		ga, gb = gs[j-1], gs[j]
 	}
 	if !found {
 		guess := math.Log(kInf / k0PerOmega)
@@ -795,6 +1116,13 @@ func (p *prepared) halfPressure(kInf, k0PerOmega float64, omegas, ks []float64) 
 			}
 		}
 	}
+	return p.illinois(g, a, b, ga, gb)
+}
+
+// illinois finds the root of g in [a, b], g(a) = ga ≤ 0 ≤ gb = g(b), by
+// false position with the Illinois modification (Dowell & Jarratt 1971,
+// BIT 11, 168), to |g| < 1e-9 or a bracket of 1e-9.
+func (p *prepared) illinois(g func(float64) (float64, error), a, b, ga, gb float64) (float64, error) {
 	side := 0
 	for range 100 {
 		if ga == 0 {

@@ -101,9 +101,20 @@ func sqrtF(w *Well, nk int) []float64 {
 
 // build assembles A = ω(I − P_sym) + diag(k) with loss_i = k_i.
 func build(w *Well, k *Kernel, omega float64) *system {
+	return buildInto(nil, w, k, omega)
+}
+
+// buildInto is build writing A into buf when buf has its shape (a new
+// matrix otherwise): one temperature's pressures reuse one matrix, so a
+// worker allocates its band once per temperature and not per pressure.
+func buildInto(buf *band.Sym, w *Well, k *Kernel, omega float64) *system {
 	op := k.operator(w)
 	n := w.N()
-	s := &system{a: band.NewSym(n, op.c.B), loss: w.K, sqf: sqrtF(w, n), tau: tauPerOmega * omega}
+	a := buf
+	if a == nil || a.N != n || a.B != op.c.B {
+		a = band.NewSym(n, op.c.B)
+	}
+	s := &system{a: a, loss: w.K, sqf: sqrtF(w, n), tau: tauPerOmega * omega}
 	for i, v := range op.c.A {
 		s.a.A[i] = omega * v
 	}

@@ -39,10 +39,23 @@ type Well struct {
 // whose weight is then below the smallest normal float64 (2.2e-308 of the
 // population, the far low-energy end of a very large molecule at high
 // temperature) is left out as well, for the same reason as an empty one.
+//
+// For a reactant with classical rotors the Boltzmann counts are the plain
+// counts (rrkm.Counter.ScaledBoltzmannCountsFrom), which m already holds
+// (m.Counts, the reactant's states per grain, as every rrkm constructor
+// of Micro gives them): they are used rather than counted a second time.
 func NewWell(m *rrkm.Micro, reactant *rrkm.Counter, tK float64) *Well {
 	w := &Well{T: tK, E0: m.E0, Grain: m.Grains.Width, CountScale: m.Scale}
 	beta := 1 / units.KT(tK)
-	lbc := reactant.LogBoltzmannCounts(m.Grains, tK)
+	var lbc []float64
+	if len(reactant.Species().Rotors) > 0 && m.Scale == reactant.Scale() && len(m.Counts) == m.Grains.N {
+		lbc = make([]float64, len(m.Counts))
+		for i, x := range m.Counts {
+			lbc[i] = math.Log(x) + float64(m.Scale)*math.Ln2 // as rrkm.Counter.LogBoltzmannCounts
+		}
+	} else {
+		lbc = reactant.LogBoltzmannCounts(m.Grains, tK)
+	}
 	logf := make([]float64, len(lbc))
 	lmax := math.Inf(-1)
 	for i, n := range m.Counts {

@@ -20,10 +20,18 @@ import (
 // held fit fails (see Report.Failed), k0 and k∞ are refitted with the
 // broadening and the result says LimitsRefined. Either way the result
 // reports how far the exported limits depart from the given ones.
+//
+// Fcent, if given (per temperature, as K0), is the broadening at the
+// centre of each falloff curve, F1 = k/(k∞/2) at Pr = 1, as the master
+// equation computes it. With the limits held, the Troe and SRI fits then
+// start from the expression of Fcent(T) fitted to it (starts.go), one or
+// two starts in place of the eight or more spread over the parameters'
+// ranges; without it, or with the limits free, they start from those.
 type Limits struct {
 	K0, KInf  []float64
 	Low, High *Arrhenius
 	Free      bool
+	Fcent     []float64
 }
 
 // Range of Troe's T3 (T***), T1 (T*) and T2 (T**) and of SRI's c: 10 K to
@@ -367,7 +375,7 @@ func (m *falloffModel) form() Falloff {
 func (m *falloffModel) fit(free []int, starts [][]float64) error {
 	m.free = free
 	q := newLSQ(len(m.pts), len(free), m.residuals)
-	x, _, err := q.multiStart(starts)
+	x, _, err := q.screenedStart(starts)
 	if err != nil {
 		return err
 	}
@@ -453,7 +461,11 @@ func FitFalloff(t *Table, kind FormName, opt Options) (*FalloffResult, error) {
 		return nil, err
 	}
 
-	best, tried, err := fitLadder(t, ladder, lim.low, lim.high, lim.given, nil, opt.Tolerance)
+	var centre *fcentTarget
+	if lim.given && opt.Limits != nil && kind != FormLindemann {
+		centre = newFcentTarget(temps, opt.Limits.Fcent, kind == FormTroe)
+	}
+	best, tried, err := fitLadder(t, ladder, lim.low, lim.high, lim.given, nil, centre, opt.Tolerance)
 	if lim.given && opt.Limits.Free && (err != nil || best.Failed) {
 		// Refit the limits with the broadening, starting from the given
 		// ones and from each held broadening.
@@ -461,7 +473,7 @@ func FitFalloff(t *Table, kind FormName, opt Options) (*FalloffResult, error) {
 		for _, r := range tried {
 			seeds[r.kind] = broadCoords(r)
 		}
-		free, _, ferr := fitLadder(t, ladder, lim.low, lim.high, false, seeds, opt.Tolerance)
+		free, _, ferr := fitLadder(t, ladder, lim.low, lim.high, false, seeds, nil, opt.Tolerance)
 		if ferr == nil && (err != nil || !free.Failed || best.MaxError() > opt.Tolerance && free.MaxErrorPct < 0.9*best.MaxErrorPct) {
 			free.LimitsRefined = true
 			best, err = free, nil
@@ -488,8 +500,10 @@ func FitFalloff(t *Table, kind FormName, opt Options) (*FalloffResult, error) {
 // simplest that is within the tolerance (and failed on a bound only) or
 // whose maximum error no later one lowers by a tenth: more parameters
 // must buy that much at least to be worth carrying into a mechanism.
-// seeds are extra starting coordinates per kind.
-func fitLadder(t *Table, kinds []falloffKind, low, high Arrhenius, hold bool, seeds map[falloffKind][]float64, tol float64) (*FalloffResult, []*FalloffResult, error) {
+// seeds are extra starting coordinates per kind. With hold and a centre
+// target the starts are centre's (fcentTarget.centreStarts), else
+// ladderStarts.
+func fitLadder(t *Table, kinds []falloffKind, low, high Arrhenius, hold bool, seeds map[falloffKind][]float64, centre *fcentTarget, tol float64) (*FalloffResult, []*FalloffResult, error) {
 	var tried []*FalloffResult
 	var prev *FalloffResult
 	var lastErr error
@@ -499,6 +513,9 @@ func fitLadder(t *Table, kinds []falloffKind, low, high Arrhenius, hold bool, se
 			continue
 		}
 		starts := ladderStarts(k, prev)
+		if hold && centre != nil {
+			starts = centre.centreStarts(k, prev)
+		}
 		if s, ok := seeds[k]; ok {
 			starts = append(starts, s)
 		}

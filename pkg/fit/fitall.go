@@ -4,8 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"slices"
 	"strings"
+	"sync"
 )
 
 // Forms are the forms FitAll fits, in the order of preference of
@@ -48,6 +50,9 @@ type Options struct {
 	PLOGOneTerm bool
 	// Fix holds parameters the user fixes (fixed.go).
 	Fix Fix
+	// Jobs bounds the forms FitAll fits at once, each on its own
+	// goroutine; 0 means GOMAXPROCS. Results do not depend on it.
+	Jobs int
 }
 
 func (o Options) withDefaults() Options {
@@ -152,27 +157,53 @@ func FitAll(t *Table, forms []FormName, opt Options) (*Results, error) {
 		return nil, err
 	}
 	res := &Results{KUnits: t.KUnits, TolerancePct: 100 * opt.Tolerance, Errors: map[FormName]string{}}
+	var todo []FormName
 	for _, f := range Forms {
-		if !slices.Contains(forms, f) {
-			continue
+		if slices.Contains(forms, f) {
+			todo = append(todo, f)
 		}
-		var err error
-		switch f {
-		case FormArrhenius:
-			res.Arrhenius, err = fitArrheniusTable(t, opt)
-		case FormLindemann:
-			res.Lindemann, err = fitFalloffOpt(t, f, opt)
-		case FormTroe:
-			res.Troe, err = fitFalloffOpt(t, f, opt)
-		case FormSRI:
-			res.SRI, err = fitFalloffOpt(t, f, opt)
-		case FormPLOG:
-			res.PLOG, err = FitPLOG(t, opt)
-		case FormChebyshev:
-			res.Chebyshev, err = FitChebyshev(t, opt)
-		}
+	}
+	// The forms are independent fits of the same table: each runs on its
+	// own goroutine (at most opt.Jobs at once) into its own field, and the
+	// errors are collected in the order of Forms, so the results do not
+	// depend on the number of workers.
+	errs := make([]error, len(todo))
+	jobs := opt.Jobs
+	if jobs <= 0 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for range min(jobs, len(todo)) {
+		wg.Go(func() {
+			for i := range next {
+				var err error
+				switch f := todo[i]; f {
+				case FormArrhenius:
+					res.Arrhenius, err = fitArrheniusTable(t, opt)
+				case FormLindemann:
+					res.Lindemann, err = fitFalloffOpt(t, f, opt)
+				case FormTroe:
+					res.Troe, err = fitFalloffOpt(t, f, opt)
+				case FormSRI:
+					res.SRI, err = fitFalloffOpt(t, f, opt)
+				case FormPLOG:
+					res.PLOG, err = FitPLOG(t, opt)
+				case FormChebyshev:
+					res.Chebyshev, err = FitChebyshev(t, opt)
+				}
+				errs[i] = err
+			}
+		})
+	}
+	for i := range todo {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	for i, err := range errs {
 		if err != nil {
-			res.Errors[f] = err.Error()
+			res.Errors[todo[i]] = err.Error()
 		}
 	}
 	if len(res.Errors) == 0 {

@@ -250,7 +250,10 @@ func (n *Network) meGrids(grain, ceiling float64, refine bool) []meGrid {
 
 // checkMatrixSize refuses a master-equation grid that collision.Run would
 // refuse: a grain below the fine counting grain, or a matrix of more than
-// collision.MaxMatrixEntries entries at some temperature. grain and ceiling
+// collision.MaxMatrixEntries entries at some temperature. Its message gives
+// the memory as a worker's peak (collision.PeakBytes: the band matrices
+// held at once and the collector's headroom), the figure that decides
+// whether a run fits, times the number of workers. grain and ceiling
 // are in cm⁻¹ (0: automatic); grainSet and ceilingSet say whether they came
 // from outside the file. It names the setting that decides the grid: the
 // grain if one is given, else the ceiling if one is given, else the
@@ -308,8 +311,8 @@ func (n *Network) checkMatrixSize(grain, ceiling float64, grainSet, ceilingSet S
 	if band := worst.entries / float64(worst.g.N); band > 1 {
 		shape += fmt.Sprintf(" × a band of %.0f", band)
 	}
-	err := &sizeError{collision.ErrTooLarge, fmt.Sprintf("%s at %s K would need %s entries (%s), %s of memory; the limit is %s",
-		what, num(tK), num(worst.entries), shape, byteSize(worst.entries*bytesPerEntry), byteSize(limit*bytesPerEntry))}
+	err := &sizeError{collision.ErrTooLarge, fmt.Sprintf("%s at %s K would need %s entries (%s), %s of memory per worker at its peak; the limit is %s per worker",
+		what, num(tK), num(worst.entries), shape, byteSize(collision.PeakBytes(worst.entries)), byteSize(collision.PeakBytes(limit)))}
 	// The grain at which the run's own grids fit: entries ≈ (ceiling/w)·
 	// (16.1 α/w), so the grain grows as the square root of the excess (5 %
 	// more for the move onto E0 and the band's rounding). The convergence
@@ -376,7 +379,7 @@ func (n *Network) WorkSeconds(opt Options) float64 {
 		}
 		units += g.entries * (nP + limitSolves)
 		if !opt.SkipHeldOut && g.i > 0 {
-			units += g.entries * (nP - 1 + limitSolves) // the midpoint temperature below
+			units += g.entries * (nP - 1) // the midpoint temperature below: k alone
 		}
 	}
 	return units / entrySolvesPerSecond

@@ -5,7 +5,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"strings"
+	"sync"
 
 	"github.com/falloff-kinetics/falloff/pkg/collision"
 	"github.com/falloff-kinetics/falloff/pkg/export"
@@ -22,7 +24,8 @@ type Options struct {
 	// every temperature (energy-grid.master-equation-grain and
 	// energy-grid.ceiling of the file).
 	Grain, Ceiling Setting
-	// Jobs is the number of worker goroutines over temperatures; 0 means
+	// Jobs is the number of worker goroutines over temperatures (and over
+	// the fits: the reaction and each channel, and their forms); 0 means
 	// GOMAXPROCS. Results do not depend on it.
 	Jobs int
 	// SkipCheck skips the grain and ceiling convergence check.
@@ -101,6 +104,10 @@ type RatesResult struct {
 	// Notes are further header lines of the mechanism files, such as an
 	// uncertainty run's factor f(T).
 	Notes []string `json:"-"`
+	// Spectrum is the main channel's k(E) and the reactant's ρ(E) on the
+	// grains the master equation used, for figures; nil where they are not
+	// the ones Micro and States report (see spectrum).
+	Spectrum *Spectrum `json:"-"`
 
 	model      *input.Model
 	fileWarned int // how many of Warnings are the input file's
@@ -294,6 +301,7 @@ func (n *Network) forward(res *collision.Result) (*RatesResult, error) {
 			out.Channels = append(out.Channels, cr)
 		}
 	}
+	out.Spectrum = n.spectrum(res.Rows)
 	var poor []string
 	worst, worstT := 0.0, 0.0
 	for _, row := range res.Rows {
@@ -342,11 +350,47 @@ func (n *Network) forwardName() string {
 }
 
 // fitAll fits the reaction and, with competing channels, each channel, and
-// sets the mechanism entries.
+// sets the mechanism entries. The reaction and the channels are fitted
+// concurrently (at most opt.Jobs at once), each into its own result.
 func (n *Network) fitAll(out *RatesResult, opt Options) error {
-	var err error
-	if out.Fits, err = n.fit(out.K, out.KInfIntegrated, out.K0, out.KUnits, out.HeldOut.table(-1, out.KUnits), opt); err != nil {
-		return err
+	type fitTask struct {
+		k               [][]float64
+		kInf, k0, fcent []float64
+		kUnits          string
+		held            *fit.Table
+		fits            **fit.Results
+		err             error
+	}
+	// The master equation's broadening at the centre is the total's: the
+	// channels' fits start without it.
+	tables := []fitTask{{k: out.K, kInf: out.KInfIntegrated, k0: out.K0, fcent: out.Fcent, kUnits: out.KUnits, held: out.HeldOut.table(-1, out.KUnits), fits: &out.Fits}}
+	for i := range out.Channels {
+		cr := &out.Channels[i]
+		tables = append(tables, fitTask{k: cr.K, kInf: cr.KInfIntegrated, k0: cr.K0, kUnits: "s-1", held: out.HeldOut.table(i, "s-1"), fits: &cr.Fits})
+	}
+	jobs := opt.Jobs
+	if jobs <= 0 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for range min(jobs, len(tables)) {
+		wg.Go(func() {
+			for i := range next {
+				tb := &tables[i]
+				*tb.fits, tb.err = n.fit(tb.k, tb.kInf, tb.k0, tb.fcent, tb.kUnits, tb.held, opt)
+			}
+		})
+	}
+	for i := range tables {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	for _, tb := range tables {
+		if tb.err != nil {
+			return tb.err
+		}
 	}
 	out.Entries = []Entry{{Label: out.Reaction, Reactants: out.Reactants, Products: out.Products, Order: out.Order, Fits: out.Fits}}
 	if len(out.Channels) > 0 {
@@ -354,9 +398,6 @@ func (n *Network) fitAll(out *RatesResult, opt Options) error {
 		r := n.reactant()
 		for i := range out.Channels {
 			cr := &out.Channels[i]
-			if cr.Fits, err = n.fit(cr.K, cr.KInfIntegrated, cr.K0, "s-1", out.HeldOut.table(i, "s-1"), opt); err != nil {
-				return err
-			}
 			prods := cr.Products
 			if len(prods) == 0 {
 				prods = []string{fmt.Sprintf("%s-products-%d", r.Name, i+1)}
@@ -372,9 +413,10 @@ func (n *Network) fitAll(out *RatesResult, opt Options) error {
 
 // fit fits the file's forms (or defaultFits) to a k(T,P) grid, with the
 // computed limits given to the falloff fits (held unless opt.FreeLimits)
-// and held, k at the held-out points (nil: none), on which the fits'
-// held-out errors are measured.
-func (n *Network) fit(k [][]float64, kInf, k0 []float64, kUnits string, held *fit.Table, opt Options) (*fit.Results, error) {
+// with the broadening at the centre fcent (nil: none; it places the
+// fits' starts, fit.Limits), and held, k at the held-out points (nil:
+// none), on which the fits' held-out errors are measured.
+func (n *Network) fit(k [][]float64, kInf, k0, fcent []float64, kUnits string, held *fit.Table, opt Options) (*fit.Results, error) {
 	m := n.Model
 	forms := defaultFits
 	if len(m.Fits) > 0 {
@@ -388,7 +430,7 @@ func (n *Network) fit(k [][]float64, kInf, k0 []float64, kUnits string, held *fi
 		}
 	}
 	t := fit.FromGrid(m.Temperatures, m.Pressures, k, kUnits)
-	fo := fit.Options{Tolerance: opt.Tolerance, Limits: &fit.Limits{K0: k0, KInf: kInf, Free: opt.FreeLimits}}
+	fo := fit.Options{Tolerance: opt.Tolerance, Limits: &fit.Limits{K0: k0, KInf: kInf, Free: opt.FreeLimits, Fcent: fcent}, Jobs: opt.Jobs}
 	fo.Holdout = held
 	res, err := fit.FitAll(t, forms, fo)
 	if res == nil {
@@ -484,7 +526,7 @@ func (n *Network) heldOut(ctx context.Context, well collision.Channel, grain, ce
 		g.Pressures = append(g.Pressures, math.Sqrt(ps[j-1]*ps[j]))
 	}
 	res, err := collision.RunContext(ctx, well, n.Collider, n.Transfer, g.Temperatures, g.Pressures,
-		collision.Options{Grain: grain, Ceiling: ceiling, Jobs: opt.Jobs, SkipConvergence: true})
+		collision.Options{Grain: grain, Ceiling: ceiling, Jobs: opt.Jobs, SkipConvergence: true, KOnly: true})
 	switch {
 	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
 		return nil, err
