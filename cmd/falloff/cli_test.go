@@ -60,7 +60,7 @@ var fitRow = regexp.MustCompile(`^\|\s*(arrhenius|lindemann|troe|sri|plog|chebys
 // last digits, line by line with runs of spaces collapsed (a table's
 // column widths follow its numbers): every number within 1e-6 relative.
 // The band kernels round differently with and without the processor's
-// fused multiply-add (internal/band), which moves the last digits of k
+// fused multiply-add (pkg/band), which moves the last digits of k
 // (1e-15) and, through ill-conditioned fits, fitted parameters (1e-7) and
 // fit errors that are pure rounding (1e-12 %): in a fit-error row, two
 // percentages both below 1e-9 % (1e-11 relative, below any fit's

@@ -6,7 +6,7 @@ import (
 	"syscall"
 	"testing"
 
-	"github.com/falloff-kinetics/falloff/internal/band"
+	"github.com/falloff-kinetics/falloff/pkg/band"
 
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )

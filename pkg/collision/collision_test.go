@@ -9,7 +9,7 @@ import (
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 
-	"github.com/falloff-kinetics/falloff/internal/band"
+	"github.com/falloff-kinetics/falloff/pkg/band"
 )
 
 // Ω(2,2)* from the Neufeld–Janzen–Aziz fit against the table of Monchick &

@@ -12,7 +12,7 @@ import (
 
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 
-	"github.com/falloff-kinetics/falloff/internal/band"
+	"github.com/falloff-kinetics/falloff/pkg/band"
 )
 
 // A failure inside the master equation comes back as a *PointError naming

@@ -9,7 +9,7 @@ import (
 	"slices"
 	"sync"
 
-	"github.com/falloff-kinetics/falloff/internal/band"
+	"github.com/falloff-kinetics/falloff/pkg/band"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )

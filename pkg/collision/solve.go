@@ -5,7 +5,7 @@ import (
 	"fmt"
 	"math"
 
-	"github.com/falloff-kinetics/falloff/internal/band"
+	"github.com/falloff-kinetics/falloff/pkg/band"
 )
 
 // ErrNoConvergence reports an inverse iteration that did not settle.
