@@ -126,16 +126,6 @@ func CompareHTML(r Compare) ([]byte, error) {
 	if len(figs.Blocks) > 0 {
 		p.Sections = append(p.Sections, figs)
 	}
-	if r.Input != nil {
-		p.Sections = append(p.Sections, section{ID: "input", Heading: "Input", Blocks: []block{
-			pre(fmt.Sprintf("%s, as read (SHA-256 %x)", clean(res.File), sha256.Sum256(r.Input)), clean(string(r.Input)))}})
-	}
-	if len(r.Files) > 0 {
-		var files []string
-		for _, f := range r.Files {
-			files = append(files, clean(f))
-		}
-		p.Sections = append(p.Sections, section{ID: "files", Heading: "Files written with this report", Blocks: []block{list(files)}})
-	}
+	p.Sections = append(p.Sections, tailSections(res.File, r.Input, r.Files)...)
 	return render(p)
 }

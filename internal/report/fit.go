@@ -79,17 +79,7 @@ func FitHTML(r Fit) ([]byte, error) {
 		p.Sections = append(p.Sections, figs)
 	}
 	p.Sections = append(p.Sections, mechanismSection(r.Mechanism))
-	if r.Source != nil {
-		p.Sections = append(p.Sections, section{ID: "input", Heading: "Input", Blocks: []block{
-			pre(fmt.Sprintf("%s, as read (SHA-256 %x)", name, sha256.Sum256(r.Source)), clean(string(r.Source)))}})
-	}
-	if len(r.Files) > 0 {
-		var names []string
-		for _, f := range r.Files {
-			names = append(names, clean(f))
-		}
-		p.Sections = append(p.Sections, section{ID: "files", Heading: "Files written with this report", Blocks: []block{list(names)}})
-	}
+	p.Sections = append(p.Sections, tailSections(name, r.Source, r.Files)...)
 	return render(p)
 }
 

@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"crypto/sha256"
 	"encoding/xml"
 	"errors"
 	"fmt"
@@ -356,3 +357,22 @@ figcaption { max-width: 46rem; font-size: 0.9rem; }
 </body>
 </html>
 `))
+
+// tailSections are the last sections of every page: the input echoed
+// (file as read, with its SHA-256; none without input) and the files
+// written with the page (none without files).
+func tailSections(file string, input []byte, files []string) []section {
+	var out []section
+	if input != nil {
+		out = append(out, section{ID: "input", Heading: "Input", Blocks: []block{
+			pre(fmt.Sprintf("%s, as read (SHA-256 %x)", clean(file), sha256.Sum256(input)), clean(string(input)))}})
+	}
+	if len(files) > 0 {
+		var names []string
+		for _, f := range files {
+			names = append(names, clean(f))
+		}
+		out = append(out, section{ID: "files", Heading: "Files written with this report", Blocks: []block{list(names)}})
+	}
+	return out
+}

@@ -114,17 +114,7 @@ func RatesHTML(r Rates) ([]byte, error) {
 		p.Sections = append(p.Sections, figs)
 	}
 	p.Sections = append(p.Sections, mechanismSection(r.Mechanism))
-	if r.Input != nil {
-		p.Sections = append(p.Sections, section{ID: "input", Heading: "Input", Blocks: []block{
-			pre(fmt.Sprintf("%s, as read (SHA-256 %x)", clean(res.File), sha256.Sum256(r.Input)), clean(string(r.Input)))}})
-	}
-	if len(r.Files) > 0 {
-		var names []string
-		for _, f := range r.Files {
-			names = append(names, clean(f))
-		}
-		p.Sections = append(p.Sections, section{ID: "files", Heading: "Files written with this report", Blocks: []block{list(names)}})
-	}
+	p.Sections = append(p.Sections, tailSections(res.File, r.Input, r.Files)...)
 	return render(p)
 }
 
