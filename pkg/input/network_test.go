@@ -72,6 +72,10 @@ func TestNetworkRefused(t *testing.T) {
 		{"barrierless below the fragments", "energy: 52.0 kcal/mol}", "energy: 50.0 kcal/mol}", "network.steps[2].barrierless.energy", "below the fragments"},
 		{"fragment set named like a molecule", "    scission: {species", "    ring: {species", "network.fragments.ring", "name of a molecule"},
 		{"no steps", "  steps:\n", "  old-steps:\n", "network.old-steps", ""},
+		{"tunnelling on a barrierless step", "energy: 52.0 kcal/mol}}", "energy: 52.0 kcal/mol}, tunnelling: wigner}", "network.steps[2].tunnelling", "no transition state"},
+		{"path degeneracy on a barrierless step", "energy: 52.0 kcal/mol}}", "energy: 52.0 kcal/mol}, path-degeneracy: 2}", "network.steps[2].path-degeneracy", "no transition state"},
+		{"unknown tunnelling", "{from: chain, to: ring, via: closure-TS}", "{from: chain, to: ring, via: closure-TS, tunnelling: quantum}", "network.steps[0].tunnelling", "unknown tunnelling"},
+		{"negative path degeneracy", "{from: chain, to: ring, via: closure-TS}", "{from: chain, to: ring, via: closure-TS, path-degeneracy: -2}", "network.steps[0].path-degeneracy", "positive"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
