@@ -21,14 +21,25 @@ import (
 // blocks are summed exactly. Every term is positive, so the bound holds for
 // the whole sum. The cost per point is O(len(c)/block + block·m) instead of
 // O(len(c)).
+//
+// at uses a hierarchy of blocks instead (see levels): near x blocks of
+// baseBlock bins, doubling in size with the distance from x, so that every
+// block keeps the same separation ratio as above while a point costs
+// O(nearBlocks·log N) series and O(nearBlocks·baseBlock) exact terms.
 type powerSum struct {
 	c     []float64
 	delta float64
-	block int                // fine bins a block
+	block int                // fine bins a block (atHalfNodes)
 	mom   [][moments]float64 // mom[b][k] = Σ_{j in block b} c_j·(jδ − centre_b)^k
+	// levels[l][b] are the moments of block b of baseBlock<<l bins about
+	// its centre, for every whole block of that size.
+	levels [][][moments]float64
 }
 
 const (
+	// baseBlock is the size in fine bins of the smallest blocks of the
+	// hierarchy at uses.
+	baseBlock  = 16
 	nearBlocks = 3
 	moments    = 9
 	// maxSeriesError bounds the relative truncation error of the block
@@ -59,7 +70,68 @@ func newPowerSum(c []float64, delta float64) *powerSum {
 			}
 		}
 	}
+	ps.levels = blockLevels(c, delta)
 	return ps
+}
+
+// blockLevels returns the moments of the comb's blocks of baseBlock,
+// 2·baseBlock, 4·baseBlock … bins, each level's moments made from the level
+// below by moving the two halves' moments to the parent's centre:
+//
+//	Σ c·(d + s)^k = Σ_i C(k,i)·s^(k−i)·M_i,   s = child centre − parent centre.
+func blockLevels(c []float64, delta float64) [][][moments]float64 {
+	var binom [moments][moments]float64
+	for k := range moments {
+		binom[k][0] = 1
+		for i := 1; i <= k; i++ {
+			binom[k][i] = binom[k-1][i-1]
+			if i < k {
+				binom[k][i] += binom[k-1][i]
+			}
+		}
+	}
+	var levels [][][moments]float64
+	n := len(c) / baseBlock
+	if n == 0 {
+		return nil
+	}
+	lv := make([][moments]float64, n)
+	for b := range lv {
+		centre := float64(b*baseBlock) + float64(baseBlock-1)/2
+		for j := b * baseBlock; j < (b+1)*baseBlock; j++ {
+			d := (float64(j) - centre) * delta
+			w := c[j]
+			for k := range moments {
+				lv[b][k] += w
+				w *= d
+			}
+		}
+	}
+	levels = append(levels, lv)
+	for size := 2 * baseBlock; len(c)/size > 0; size *= 2 {
+		below := levels[len(levels)-1]
+		up := make([][moments]float64, len(c)/size)
+		half := float64(size/2) * delta / 2 // |child centre − parent centre|
+		for b := range up {
+			for side, s := range [2]float64{-half, half} {
+				m := &below[2*b+side]
+				var sp [moments]float64 // s^0 … s^(moments−1)
+				sp[0] = 1
+				for k := 1; k < moments; k++ {
+					sp[k] = sp[k-1] * s
+				}
+				for k := range moments {
+					t := 0.0
+					for i := 0; i <= k; i++ {
+						t += binom[k][i] * sp[k-i] * m[i]
+					}
+					up[b][k] += t
+				}
+			}
+		}
+		levels = append(levels, up)
+	}
+	return levels
 }
 
 // at returns S_p(x) for x > 0 and any exponent p > 0. Multiples of ½ (rotor
@@ -74,7 +146,6 @@ func (ps *powerSum) at(x, p float64) float64 {
 	if h := 2 * p; h == math.Trunc(h) && h < 1<<20 {
 		twoP = int(h)
 	}
-	block := ps.block
 	// Binomial coefficients C(p,k)·(−1)^k.
 	var coef [moments + 1]float64
 	coef[0] = 1
@@ -89,39 +160,50 @@ func (ps *powerSum) at(x, p float64) float64 {
 	if last >= len(ps.c) {
 		last = len(ps.c) - 1
 	}
-	farBlocks := last/block - near
-	if farBlocks < 0 {
-		farBlocks = 0
-	}
-	if farBlocks > len(ps.mom) {
-		farBlocks = len(ps.mom)
-	}
-	sum := 0.0
-	for b := range farBlocks {
-		y, t := ps.series(x, b, coef[:])
+	pow := func(y float64) float64 {
 		if twoP > 0 {
-			sum += powHalf(y, twoP) * t
-		} else {
-			sum += math.Pow(y, p) * t
+			return powHalf(y, twoP)
 		}
+		return math.Pow(y, p)
 	}
-	// The near part dominates the cost; its two loops keep powHalf inlined.
-	if twoP > 0 {
-		for j := farBlocks * block; j <= last; j++ {
-			if w := ps.c[j]; w != 0 {
-				if y := x - float64(j)*ps.delta; y > 0 {
-					sum += w * powHalf(y, twoP)
+	// From the top down: a bin at a time until a whole block ending at hi
+	// is far enough from x for its series, then the largest such block.
+	// A block of B bins qualifies when its centre is at least
+	// (near + ½)·B bins below x, so |d/y| ≤ 1/(2·near + 1) as above; the
+	// condition only gets harder for larger blocks, so the sizes grow with
+	// the distance and the block count stays about near per level.
+	sum := 0.0
+	hi := last + 1 // bins [0, hi) are still to add
+	reach := float64(near) + 0.5
+	for hi > 0 {
+		level, size := -1, baseBlock
+		for l := range ps.levels {
+			if hi%size != 0 || x-(float64(hi)-float64(size+1)/2)*ps.delta < reach*float64(size)*ps.delta {
+				break
+			}
+			level = l
+			size *= 2
+		}
+		if level < 0 {
+			hi--
+			if w := ps.c[hi]; w != 0 {
+				if y := x - float64(hi)*ps.delta; y > 0 {
+					sum += w * pow(y)
 				}
 			}
+			continue
 		}
-		return sum
-	}
-	for j := farBlocks * block; j <= last; j++ {
-		if w := ps.c[j]; w != 0 {
-			if y := x - float64(j)*ps.delta; y > 0 {
-				sum += w * math.Pow(y, p)
-			}
+		size = baseBlock << level
+		b := hi/size - 1
+		y := x - (float64(b*size)+float64(size-1)/2)*ps.delta
+		inv, r, t := 1/y, 1.0, 0.0
+		m := &ps.levels[level][b]
+		for k := range moments {
+			t += coef[k] * m[k] * r
+			r *= inv
 		}
+		sum += pow(y) * t
+		hi -= size
 	}
 	return sum
 }
