@@ -14,23 +14,27 @@ import (
 // when jac is not nil, jac (m × len(x)) with their Jacobian.
 type residualFunc func(x, r []float64, jac *mat.Dense)
 
-// lsq is a nonlinear least-squares problem S(x) = ½·Σr²/m, minimised with
-// gonum's modified Newton method on the Gauss–Newton Hessian JᵀJ/m. With
-// that Hessian Newton's method is Gauss–Newton with a line search, and the
-// identity multiple it adds when JᵀJ is singular (a parameter with no
-// effect on the data, such as T3 ≪ T) makes it Levenberg–Marquardt-like.
+// lsq is a nonlinear least-squares problem S(x) = ½·Σr²/m, minimised by
+// Levenberg–Marquardt (lsq.marquardt) on the analytic Jacobian. The
+// previous solver, gonum's modified Newton method on the Gauss–Newton
+// Hessian JᵀJ/m with a backtracking line search (Gauss–Newton with a line
+// search and a ridge where JᵀJ is singular), remains for the PLOG held-out
+// refits (see fitTwoTerms) and as the reference the tests compare with.
 type lsq struct {
 	m, p int
 	// refit marks a refit for cross-validation from a start near its
 	// minimum: it stops at refitSettings, and a run that reaches their
 	// iteration limit with a finite result counts as converged.
 	refit bool
-	f     residualFunc
-	x     []float64
-	r     []float64
-	jac   *mat.Dense
-	haveJ bool
-	valid bool
+	// newton makes solve use gonum's Newton method (the previous solver)
+	// instead of lsq.marquardt; see fitTwoTerms.
+	newton bool
+	f      residualFunc
+	x      []float64
+	r      []float64
+	jac    *mat.Dense
+	haveJ  bool
+	valid  bool
 }
 
 func newLSQ(m, p int, f residualFunc) *lsq {
@@ -42,6 +46,9 @@ func (q *lsq) eval(x []float64, needJ bool) {
 		return
 	}
 	copy(q.x, x)
+	if countEvals {
+		evalCount++
+	}
 	q.valid = true
 	q.haveJ = needJ
 	if needJ {
@@ -134,6 +141,23 @@ func refitSettings() *optimize.Settings {
 // an error wrapping ErrNoConvergence.
 func (q *lsq) solve(x0 []float64) ([]float64, float64, error) {
 	q.valid = false
+	if !newtonSolver && !q.newton {
+		rules := fullRules()
+		if q.refit {
+			rules = refitRules()
+		}
+		x, c, err := q.marquardt(x0, rules)
+		if q.refit && errors.Is(err, errIterationLimit) && finite(x...) {
+			err = nil
+		}
+		if err != nil {
+			return nil, 0, err
+		}
+		if !finite(x...) || math.IsInf(c, 0) {
+			return nil, 0, fmt.Errorf("%w: non-finite result", ErrNoConvergence)
+		}
+		return x, c, nil
+	}
 	if c := q.cost(x0); math.IsInf(c, 0) {
 		return nil, 0, fmt.Errorf("%w: residuals not finite at the start", ErrNoConvergence)
 	}
@@ -182,6 +206,18 @@ func (q *lsq) solve(x0 []float64) ([]float64, float64, error) {
 	}
 	return x, c, nil
 }
+
+// newtonSolver selects the previous solver, gonum's Newton method with a
+// backtracking line search (then BFGS), for the tests and benchmarks that
+// compare it with lsq.marquardt.
+var newtonSolver = false
+
+// countEvals makes eval count the residual evaluations in evalCount (for
+// a test comparing the solvers; not safe with concurrent fits).
+var (
+	countEvals bool
+	evalCount  int
+)
 
 // stallRelTol is the Newton decrement, relative to the cost, below which
 // a run whose line search stalled is at its minimum: 1e-8 of the cost

@@ -251,7 +251,7 @@ func TestMergeTwoWells(t *testing.T) {
 			if !(res.Separation <= DefaultMaxSeparation) || !(res.Merge.WellSeparation > DefaultMaxSeparation) || res.Relaxation != res.Merge.Dropped[0] {
 				t.Errorf("separation %v, of the wells %v, relaxation %v, dropped %v", res.Separation, res.Merge.WellSeparation, res.Relaxation, res.Merge.Dropped)
 			}
-			if math.Abs(res.Equilibrium[0]-1) > 1e-15 {
+			if math.Abs(res.Equilibrium[0]-1) > 1e-14 { // a normalised sum over the grains: a few ulps per term
 				t.Errorf("equilibrium fraction of A+B %v, want 1", res.Equilibrium[0])
 			}
 			worstCons = math.Max(worstCons, checkConservation(t, res))
