@@ -3,8 +3,6 @@ package fit
 import (
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // marquardtRules are the stopping rules of lsq.marquardt, the same as
@@ -59,27 +57,42 @@ func (q *lsq) marquardt(x0 []float64, rules marquardtRules) ([]float64, float64,
 	if math.IsInf(s, 0) || math.IsNaN(s) {
 		return nil, 0, fmt.Errorf("%w: residuals not finite at the start", ErrNoConvergence)
 	}
-	h := mat.NewSymDense(p, nil)
+	// Dense p × p work arrays (p ≤ 8 here): h = JᵀJ/m, a = h + μ·d·I and
+	// its Cholesky factor in place.
+	h := make([]float64, p*p)
+	a := make([]float64, p*p)
 	g := make([]float64, p)
-	diag := make([]float64, p)
 	step := make([]float64, p)
 	trial := make([]float64, p)
-	var chol mat.Cholesky
-	a := mat.NewSymDense(p, nil)
-	// normal fills h = JᵀJ/m and g = Jᵀr/m at the current x (q holds r, J).
+	var d float64 // the largest diagonal entry of h
+	// normal fills h and g = Jᵀr/m at the current x (q holds r and J).
 	normal := func() float64 {
-		h.SymOuterK(1/m, q.jac.T())
-		gv := mat.NewVecDense(p, g)
-		gv.MulVec(q.jac.T(), mat.NewVecDense(q.m, q.r))
-		gv.ScaleVec(1/m, gv)
-		mx, gmax := 0.0, 0.0
+		jr := q.jac.RawMatrix()
+		clear(h)
+		clear(g)
+		for k := range q.m {
+			row := jr.Data[k*jr.Stride : k*jr.Stride+p]
+			rk := q.r[k]
+			for i, ji := range row {
+				g[i] += ji * rk
+				hi := h[i*p : i*p+i+1]
+				for j := range hi {
+					hi[j] += ji * row[j]
+				}
+			}
+		}
+		d = 0
+		gmax := 0.0
 		for i := range p {
-			mx = math.Max(mx, h.At(i, i))
+			g[i] /= m
+			for j := 0; j <= i; j++ {
+				h[i*p+j] /= m
+				h[j*p+i] = h[i*p+j]
+			}
+			d = math.Max(d, h[i*p+i])
 			gmax = math.Max(gmax, math.Abs(g[i]))
 		}
-		for i := range p {
-			diag[i] = mx + 1e-300
-		}
+		d += 1e-300
 		return gmax
 	}
 	gmax := normal()
@@ -95,42 +108,38 @@ func (q *lsq) marquardt(x0 []float64, rules marquardtRules) ([]float64, float64,
 		if steps > rules.maxSteps {
 			return x, s, errIterationLimit
 		}
+		copy(a, h)
 		for i := range p {
-			for j := 0; j <= i; j++ {
-				a.SetSym(i, j, h.At(i, j))
-			}
-			a.SetSym(i, i, h.At(i, i)+mu*diag[i])
+			a[i*p+i] += mu * d
 		}
-		if !chol.Factorize(a) {
-			mu, nu = mu*nu, 2*nu
-			continue
+		for i := range p {
+			step[i] = -g[i]
 		}
-		sv := mat.NewVecDense(p, step)
-		if err := chol.SolveVecTo(sv, mat.NewVecDense(p, g)); err != nil {
+		if !cholSolve(a, p, step) {
 			mu, nu = mu*nu, 2*nu
 			continue
 		}
 		small, model := true, 0.0
 		for i := range p {
-			step[i] = -step[i]
 			trial[i] = x[i] + step[i]
 			if trial[i] != x[i] {
 				small = false
 			}
-			// ½(S(x) − model(x+h)) for S/2 = ½Σr²/m: ½hᵀ(μDh − g).
-			model += 0.5 * step[i] * (mu*diag[i]*step[i] - g[i])
+			// ½(S(x) − model(x+h)) for S/2 = ½Σr²/m: ½hᵀ(μ·d·h − g).
+			model += 0.5 * step[i] * (mu*d*step[i] - g[i])
 		}
 		if small {
-			if q.decrementAt(h, g) <= stallRelTol*s+1e-30 {
+			if q.decrementAt(h, g, a, step) <= stallRelTol*s+1e-30 {
 				return x, s, nil
 			}
 			return x, s, fmt.Errorf("%w: no progress", ErrNoConvergence)
 		}
-		q.eval(trial, false)
+		// The Jacobian comes with the trial's residuals: most steps are
+		// accepted, and an accepted step needs it.
+		q.eval(trial, true)
 		st := sumSq(q.r) / m
 		if rho := 0.5 * (s - st) / model; st < s && !math.IsNaN(rho) && model > 0 && rho > 0 {
 			copy(x, trial)
-			q.eval(x, true)
 			s = st
 			gmax = normal()
 			mu *= math.Max(1.0/3, 1-math.Pow(2*rho-1, 3))
@@ -139,7 +148,7 @@ func (q *lsq) marquardt(x0 []float64, rules marquardtRules) ([]float64, float64,
 			// than the rules' improvement, or when patience steps in a row,
 			// damped no more than a Gauss–Newton step, improved by less
 			// (a flat valley, where the promise is not kept).
-			if q.decrementAt(h, g) <= 0.5*(rules.absolute+rules.relative*s) {
+			if q.decrementAt(h, g, a, step) <= 0.5*(rules.absolute+rules.relative*s) {
 				return x, s, nil
 			}
 			if best-s > rules.absolute+rules.relative*s || mu > 1e-3 {
@@ -149,11 +158,52 @@ func (q *lsq) marquardt(x0 []float64, rules marquardtRules) ([]float64, float64,
 			}
 			continue
 		}
+		q.eval(x, true) // back to x's residuals and Jacobian
 		mu, nu = mu*nu, 2*nu
 		if math.IsInf(mu, 0) {
 			return x, s, fmt.Errorf("%w: damping overflow", ErrNoConvergence)
 		}
 	}
+}
+
+// cholSolve overwrites the symmetric positive definite p × p matrix a
+// (row-major, both triangles) with its Cholesky factor L (lower triangle)
+// and b with the solution of a·x = b. It reports false if a pivot is not
+// positive.
+func cholSolve(a []float64, p int, b []float64) bool {
+	for j := range p {
+		s := a[j*p+j]
+		for k := range j {
+			s -= a[j*p+k] * a[j*p+k]
+		}
+		if !(s > 0) || math.IsInf(s, 0) {
+			return false
+		}
+		ljj := math.Sqrt(s)
+		a[j*p+j] = ljj
+		for i := j + 1; i < p; i++ {
+			t := a[i*p+j]
+			for k := range j {
+				t -= a[i*p+k] * a[j*p+k]
+			}
+			a[i*p+j] = t / ljj
+		}
+	}
+	for i := range p { // L·y = b
+		t := b[i]
+		for k := range i {
+			t -= a[i*p+k] * b[k]
+		}
+		b[i] = t / a[i*p+i]
+	}
+	for i := p - 1; i >= 0; i-- { // Lᵀ·x = y
+		t := b[i]
+		for k := i + 1; k < p; k++ {
+			t -= a[k*p+i] * b[k]
+		}
+		b[i] = t / a[i*p+i]
+	}
+	return true
 }
 
 // sumSq returns Σv², +Inf if it is not finite.
@@ -168,26 +218,26 @@ func sumSq(v []float64) float64 {
 	return s
 }
 
-// decrementAt returns ½·gᵀH⁻¹g for the Gauss–Newton Hessian h (with the
-// Newton method's ridge of 1e-8 of its largest diagonal) and gradient g.
-func (q *lsq) decrementAt(h *mat.SymDense, g []float64) float64 {
-	r := mat.NewSymDense(q.p, nil)
-	r.CopySym(h)
+// decrementAt returns ½·gᵀH⁻¹g for the Gauss–Newton Hessian h (p × p,
+// both triangles) with the Newton method's ridge of 1e-8 of its largest
+// diagonal, and gradient g; work and v are p × p and p scratch arrays.
+func (q *lsq) decrementAt(h, g, work, v []float64) float64 {
+	p := q.p
+	copy(work, h)
 	mx := 0.0
-	for i := range q.p {
-		mx = math.Max(mx, h.At(i, i))
+	for i := range p {
+		mx = math.Max(mx, h[i*p+i])
 	}
-	for i := range q.p {
-		r.SetSym(i, i, h.At(i, i)+1e-8*mx+1e-300)
+	for i := range p {
+		work[i*p+i] += 1e-8*mx + 1e-300
 	}
-	var ch mat.Cholesky
-	if !ch.Factorize(r) {
+	copy(v, g)
+	if !cholSolve(work, p, v) {
 		return math.Inf(1)
 	}
-	gv := mat.NewVecDense(q.p, g)
-	var d mat.VecDense
-	if err := ch.SolveVecTo(&d, gv); err != nil {
-		return math.Inf(1)
+	dec := 0.0
+	for i := range p {
+		dec += g[i] * v[i]
 	}
-	return 0.5 * mat.Dot(gv, &d)
+	return 0.5 * dec
 }
