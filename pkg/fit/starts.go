@@ -131,11 +131,27 @@ func (f *fcentTarget) troe(n int, base *Troe) Troe {
 			best, bestC = tr, c
 		}
 	}
+	// On the trial grid the exponentials come from tables made once
+	// (the same values and arithmetic as troeA, cost and Troe.Fcent, so
+	// the same choice, at a ninth of the cost).
+	var tab *fcentTables
+	tryGrid := func(i, j, k int) {
+		tr := Troe{T3: trials[i], T1: trials[j]}
+		if k >= 0 {
+			tr.T2, tr.HasT2 = trials[k], true
+		}
+		var c float64
+		tr.A, c = tab.fit(f, i, j, k)
+		if c < bestC {
+			best, bestC = tr, c
+		}
+	}
 	switch {
 	case n == 3:
-		for i, t3 := range trials {
-			for _, t1 := range trials[i:] {
-				try(Troe{T3: t3, T1: t1})
+		tab = newFcentTables(f, trials)
+		for i := range trials {
+			for j := i; j < len(trials); j++ {
+				tryGrid(i, j, -1)
 			}
 		}
 	case n == 4 && base != nil:
@@ -143,15 +159,76 @@ func (f *fcentTarget) troe(n int, base *Troe) Troe {
 			try(Troe{T3: base.T3, T1: base.T1, T2: t2, HasT2: true})
 		}
 	case n == 4:
-		for i, t3 := range trials {
+		tab = newFcentTables(f, trials)
+		for i := range trials {
 			for j := i; j < len(trials); j += 2 {
 				for k := 0; k < len(trials); k += 2 {
-					try(Troe{T3: t3, T1: trials[j], T2: trials[k], HasT2: true})
+					tryGrid(i, j, k)
 				}
 			}
 		}
 	}
 	return best
+}
+
+// fcentTables holds exp(−T/t) (down) and exp(−t/T) (up) for every trial t
+// and temperature T of a target, and the target's Fcent.
+type fcentTables struct {
+	down, up [][]float64
+	fc       []float64
+}
+
+func newFcentTables(f *fcentTarget, trials []float64) *fcentTables {
+	temps := f.temps
+	t := &fcentTables{down: make([][]float64, len(trials)), up: make([][]float64, len(trials)), fc: make([]float64, len(temps))}
+	for i, l := range f.lnF {
+		t.fc[i] = math.Exp(l)
+	}
+	for k, tr := range trials {
+		t.down[k], t.up[k] = make([]float64, len(temps)), make([]float64, len(temps))
+		for i, T := range temps {
+			t.down[k][i], t.up[k][i] = math.Exp(-T/tr), math.Exp(-tr/T)
+		}
+	}
+	return t
+}
+
+// fit returns troeA and the cost of the Troe broadening with T3, T1 and
+// (k ≥ 0) T2 the trials i, j and k, computed as troeA and cost compute
+// them.
+func (t *fcentTables) fit(f *fcentTarget, i, j, k int) (a, cost float64) {
+	e3s, e1s := t.down[i], t.down[j]
+	var e2s []float64
+	if k >= 0 {
+		e2s = t.up[k]
+	}
+	num, den := 0.0, 0.0
+	for n := range f.temps {
+		e3, e1 := e3s[n], e1s[n]
+		e2 := 0.0
+		if e2s != nil {
+			e2 = e2s[n]
+		}
+		d := e1 - e3
+		num += d * (t.fc[n] - e3 - e2)
+		den += d * d
+	}
+	a = 0.5
+	if den > 0 {
+		a = math.Max(0, math.Min(1, num/den))
+	}
+	for n := range f.temps {
+		v := (1-a)*e3s[n] + a*e1s[n]
+		if e2s != nil {
+			v += e2s[n]
+		}
+		if !(v > 0) {
+			return a, math.Inf(1)
+		}
+		d := math.Log(v) - f.lnF[n]
+		cost += d * d
+	}
+	return a, cost
 }
 
 // sri returns the three SRI parameters whose W(T) = a·exp(−b/T) +

@@ -93,3 +93,48 @@ func TestCentreStarts(t *testing.T) {
 		}
 	}
 }
+
+// The coarse search's tables give the same broadening, bit for bit, as
+// evaluating troeA, cost and Troe.Fcent at every trial directly (the
+// previous code, an independent evaluation), for the three- and
+// four-parameter searches on the Fcent of GRI-Mech 3.0's H+CH3 and 2CH3
+// (Smith et al. 1999).
+func TestFcentTablesMatchDirect(t *testing.T) {
+	temps := linGrid(300, 2500, 25)
+	for name, f := range map[string]Falloff{"H+CH3": griHCH3(), "2CH3": griCH3CH3()} {
+		f1 := make([]float64, len(temps))
+		for i, T := range temps {
+			f1[i] = centreF1(&f, T)
+		}
+		target := newFcentTarget(temps, f1, true)
+		trials := fcentTrials()
+		direct := func(n int) Troe {
+			best, bestC := Troe{A: 0.5, T3: 100, T1: 1000}, math.Inf(1)
+			try := func(tr Troe) {
+				tr.A = target.troeA(tr.T3, tr.T1, tr.T2)
+				if c := target.cost(tr.Fcent); c < bestC {
+					best, bestC = tr, c
+				}
+			}
+			for i, t3 := range trials {
+				if n == 3 {
+					for _, t1 := range trials[i:] {
+						try(Troe{T3: t3, T1: t1})
+					}
+					continue
+				}
+				for j := i; j < len(trials); j += 2 {
+					for k := 0; k < len(trials); k += 2 {
+						try(Troe{T3: t3, T1: trials[j], T2: trials[k], HasT2: true})
+					}
+				}
+			}
+			return best
+		}
+		for _, n := range []int{3, 4} {
+			if got, want := target.troe(n, nil), direct(n); got != want {
+				t.Errorf("%s, %d parameters: tables %+v, direct %+v", name, n, got, want)
+			}
+		}
+	}
+}
