@@ -94,6 +94,25 @@ type Options struct {
 	// Progress, if set, is called (from worker goroutines) after each
 	// temperature is done.
 	Progress func()
+	// Slots, if not nil, are the worker slots shared with other runs going
+	// on at the same time (a channel with one buffer place per worker,
+	// NewSlots): a temperature starts when it takes a place and gives it
+	// back when done, so runs sharing the slots never have more than its
+	// capacity of temperatures in work together, and one run's last
+	// temperatures overlap with the other's instead of leaving workers
+	// idle. Jobs is then ignored.
+	Slots Slots
+}
+
+// Slots are worker places shared by concurrent runs (Options.Slots).
+type Slots chan struct{}
+
+// NewSlots returns n worker places (n ≤ 0: GOMAXPROCS).
+func NewSlots(n int) Slots {
+	if n <= 0 {
+		n = runtime.GOMAXPROCS(0)
+	}
+	return make(Slots, n)
 }
 
 // MaxMatrixEntries bounds the banded matrix of one temperature (8 bytes
@@ -311,7 +330,11 @@ func RunContext(ctx context.Context, ch Channel, col Collider, tr Transfer, temp
 	// SIAM J. Appl. Math. 17, 416), so that no worker is left alone with the
 	// largest grid at the end; each result lands in its own row, so the
 	// order does not change the results.
-	pool(jobs, len(temps), costOrder(ch, tr, temps, opt.Grain, opt.Ceiling), func(i int) {
+	run := func(n int, order []int, do func(i int)) { pool(jobs, n, order, do) }
+	if opt.Slots != nil {
+		run = func(n int, order []int, do func(i int)) { opt.Slots.run(n, order, do) }
+	}
+	run(len(temps), costOrder(ch, tr, temps, opt.Grain, opt.Ceiling), func(i int) {
 		if errs[i] = ctx.Err(); errs[i] != nil {
 			return
 		}
@@ -329,11 +352,30 @@ func RunContext(ctx context.Context, ch Channel, col Collider, tr Transfer, temp
 		}
 	}
 	if !opt.SkipConvergence && len(pressures) > 0 {
-		if err := convergence(ctx, ch, col, tr, res, jobs); err != nil {
+		if err := convergence(ctx, ch, col, tr, res, run); err != nil {
 			return nil, err
 		}
 	}
 	return res, nil
+}
+
+// run is pool on the shared places: do(i) for every i of order (nil:
+// 0..n−1), each started on its own goroutine once it holds a place, in
+// that order; it returns when all are done.
+func (s Slots) run(n int, order []int, do func(i int)) {
+	var wg sync.WaitGroup
+	for k := range n {
+		i := k
+		if order != nil {
+			i = order[k]
+		}
+		s <- struct{}{}
+		wg.Go(func() {
+			defer func() { <-s }()
+			do(i)
+		})
+	}
+	wg.Wait()
 }
 
 // pool runs do(i) for every i of order (a permutation of 0..n−1, or nil
@@ -415,10 +457,10 @@ func solveGuarded(ctx context.Context, ch Channel, col Collider, tr Transfer, tK
 
 // convergence re-solves the corner points with half the grain and with the
 // ceiling 10 kT higher and records in res the largest relative change of k
-// and where it was found. The re-solves run on jobs workers, the costliest
+// and where it was found. The re-solves run on run's workers, the costliest
 // (half the grain) first; the changes are then compared in a fixed order,
 // so the result does not depend on jobs.
-func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res *Result, jobs int) error {
+func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res *Result, run func(n int, order []int, do func(i int))) error {
 	nT, nP := len(res.Temperatures), len(res.Pressures)
 	ps := []float64{res.Pressures[0], res.Pressures[nP-1]}
 	type check struct {
@@ -459,7 +501,7 @@ func convergence(ctx context.Context, ch Channel, col Collider, tr Transfer, res
 		}
 		return 0
 	})
-	pool(jobs, len(checks), order, func(i int) {
+	run(len(checks), order, func(i int) {
 		c := &checks[i]
 		c.alt, c.err = solveTemperature(ctx, ch, col, tr, res.Rows[c.it].T, ps, c.grain, c.ceiling, false)
 	})

@@ -228,8 +228,30 @@ func (n *Network) Rates(ctx context.Context, opt Options) (*RatesResult, error) 
 	if err != nil {
 		return nil, err
 	}
+	// The points between the grid points are solved at the same time as
+	// the grid, on the same worker places (never more temperatures in work
+	// than workers), so that neither run's last temperatures leave a
+	// worker idle.
+	slots := collision.NewSlots(opt.Jobs)
+	var held *Grid
+	var heldErr error
+	heldDone := make(chan struct{})
+	heldCtx, cancelHeld := context.WithCancel(ctx)
+	defer cancelHeld()
+	if opt.SkipHeldOut {
+		close(heldDone)
+	} else {
+		go func() {
+			defer close(heldDone)
+			held, heldErr = n.heldOut(heldCtx, well, grain, ceiling, slots)
+		}()
+	}
 	res, err := collision.RunContext(ctx, well, n.Collider, n.Transfer, m.Temperatures, m.Pressures,
-		collision.Options{Grain: grain, Ceiling: ceiling, Jobs: opt.Jobs, SkipConvergence: opt.SkipCheck, Progress: opt.Progress})
+		collision.Options{Grain: grain, Ceiling: ceiling, SkipConvergence: opt.SkipCheck, Progress: opt.Progress, Slots: slots})
+	if err != nil {
+		cancelHeld()
+	}
+	<-heldDone
 	switch {
 	case errors.Is(err, collision.ErrTooLarge):
 		return nil, fmt.Errorf("%s: master equation: %w", m.File, err) // a request too large: bad input
@@ -242,11 +264,10 @@ func (n *Network) Rates(ctx context.Context, opt Options) (*RatesResult, error) 
 	if err != nil {
 		return nil, err
 	}
-	if !opt.SkipHeldOut {
-		if out.HeldOut, err = n.heldOut(ctx, well, grain, ceiling, opt); err != nil {
-			return nil, err
-		}
+	if heldErr != nil {
+		return nil, heldErr
 	}
+	out.HeldOut = held
 	if dir == Recombination {
 		if err := n.recombine(out); err != nil {
 			return nil, err
@@ -512,7 +533,7 @@ func (n *Network) lowPressureWarning(out *RatesResult) string {
 // (nT − 1) × (nP − 1) points, with the grid's grain and ceiling rules and
 // without the convergence check. A grid with one temperature or pressure
 // has no midpoints in it: nil.
-func (n *Network) heldOut(ctx context.Context, well collision.Channel, grain, ceiling float64, opt Options) (*Grid, error) {
+func (n *Network) heldOut(ctx context.Context, well collision.Channel, grain, ceiling float64, slots collision.Slots) (*Grid, error) {
 	m := n.Model
 	ts, ps := m.Temperatures, m.Pressures
 	if len(ts) < 2 || len(ps) < 2 {
@@ -526,7 +547,7 @@ func (n *Network) heldOut(ctx context.Context, well collision.Channel, grain, ce
 		g.Pressures = append(g.Pressures, math.Sqrt(ps[j-1]*ps[j]))
 	}
 	res, err := collision.RunContext(ctx, well, n.Collider, n.Transfer, g.Temperatures, g.Pressures,
-		collision.Options{Grain: grain, Ceiling: ceiling, Jobs: opt.Jobs, SkipConvergence: true, KOnly: true})
+		collision.Options{Grain: grain, Ceiling: ceiling, Slots: slots, SkipConvergence: true, KOnly: true})
 	switch {
 	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
 		return nil, err
