@@ -51,7 +51,8 @@ type Options struct {
 	// Fix holds parameters the user fixes (fixed.go).
 	Fix Fix
 	// Jobs bounds the forms FitAll fits at once, each on its own
-	// goroutine; 0 means GOMAXPROCS. Results do not depend on it.
+	// goroutine, and the pressures FitPLOG fits at once; 0 means
+	// GOMAXPROCS. Results do not depend on it.
 	Jobs int
 }
 

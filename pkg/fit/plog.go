@@ -109,10 +109,15 @@ func FitPLOG(t *Table, opt Options) (*PLOGResult, error) {
 		err   error
 	}
 	out := make([]fitted, len(groups))
-	// The pressures are independent fits; run them on all CPUs.
+	// The pressures are independent fits; run them on opt.Jobs workers
+	// (0: all CPUs).
+	jobs := opt.Jobs
+	if jobs <= 0 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
 	var wg sync.WaitGroup
 	next := make(chan int)
-	for range min(runtime.GOMAXPROCS(0), len(groups)) {
+	for range min(jobs, len(groups)) {
 		wg.Go(func() {
 			for i := range next {
 				f := &out[i]
@@ -457,7 +462,7 @@ func fitTwoTerms(ts, ks, sig []float64, starts [][2]Arrhenius, nr nRule, refit b
 	// measures the path, not the form (GRI-Mech 3.0 H+CH3 at 10 bar:
 	// 2.6e4 % against 25 %). So refits keep the Newton method.
 	q.newton = refit
-	x, _, err := q.multiStart(xs)
+	x, _, err := q.screenedStart(xs)
 	if err != nil {
 		return nil, err
 	}
