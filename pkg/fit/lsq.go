@@ -170,7 +170,7 @@ func (q *lsq) solve(x0 []float64) ([]float64, float64, error) {
 	var res *optimize.Result
 	var err error
 	x := x0
-	for _, method := range []func() optimize.Method{
+	for try, method := range []func() optimize.Method{
 		func() optimize.Method { return &optimize.Newton{Linesearcher: &optimize.Backtracking{}} },
 		func() optimize.Method { return &optimize.Newton{Linesearcher: &optimize.Backtracking{}} },
 		func() optimize.Method { return &optimize.BFGS{} },
@@ -179,7 +179,13 @@ func (q *lsq) solve(x0 []float64) ([]float64, float64, error) {
 		if q.refit {
 			settings = refitSettings()
 		}
-		res, err = optimize.Minimize(q.problem(), x, settings, method())
+		if try < 2 && !gonumNewton {
+			// The same Newton run without gonum's machinery (newtonRun).
+			xr, fr, st, e := q.newtonRun(x, settings)
+			res, err = &optimize.Result{Location: optimize.Location{X: xr, F: fr}, Status: st}, e
+		} else {
+			res, err = optimize.Minimize(q.problem(), x, settings, method())
+		}
 		if err == nil && res != nil {
 			err = res.Status.Err()
 		}
@@ -211,6 +217,10 @@ func (q *lsq) solve(x0 []float64) ([]float64, float64, error) {
 // backtracking line search (then BFGS), for the tests and benchmarks that
 // compare it with lsq.marquardt.
 var newtonSolver = false
+
+// gonumNewton makes the Newton runs go through gonum's optimize.Minimize
+// instead of newtonRun, its port (for the test comparing them).
+var gonumNewton = false
 
 // countEvals makes eval count the residual evaluations in evalCount (for
 // a test comparing the solvers; not safe with concurrent fits).
