@@ -418,7 +418,13 @@ func (c Chebyshev) Eval(t, p float64) float64 {
 		return math.NaN()
 	}
 	nP := len(c.Coef[0])
-	ft, fp := make([]float64, nT), make([]float64, nP)
+	var bt, bp [24]float64 // no allocation for the usual orders
+	ft, fp := bt[:0], bp[:0]
+	if nT <= len(bt) && nP <= len(bp) {
+		ft, fp = bt[:nT], bp[:nP]
+	} else {
+		ft, fp = make([]float64, nT), make([]float64, nP)
+	}
 	chebyshevT(tr, ft)
 	chebyshevT(pr, fp)
 	s := 0.0

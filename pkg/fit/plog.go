@@ -431,10 +431,17 @@ func fitTwoTerms(ts, ks, sig []float64, starts [][2]Arrhenius, nr nRule, refit b
 			l1, d1 := m.term(x[:np], basis[i], g1[:])
 			l2, d2 := m.term(x[np:], basis[i], g2[:])
 			hi, lo := max(l1, l2), min(l1, l2)
-			lsum := hi + math.Log1p(math.Exp(lo-hi))
+			e := math.Exp(lo - hi)
+			lsum := hi + math.Log1p(e)
 			r[i] = w[i] * (lsum - lnk[i])
 			if jac != nil {
-				s1, s2 := math.Exp(l1-lsum), math.Exp(l2-lsum)
+				// Each term's share of k: 1/(1 + e) for the larger,
+				// e/(1 + e) for the other.
+				s1, s2 := 1/(1+e), 0.0
+				s2 = e * s1
+				if l1 < l2 {
+					s1, s2 = s2, s1
+				}
 				for j := range np {
 					jac.Set(i, j, w[i]*s1*d1[j])
 					jac.Set(i, np+j, w[i]*s2*d2[j])
