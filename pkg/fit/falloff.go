@@ -273,8 +273,15 @@ func (m *falloffModel) residuals(x, r []float64, jac *mat.Dense) {
 	nb := m.kind.nBroad()
 	v := m.z[6:]
 	bs := make([]broadening, len(m.temps))
+	logFc := make([]float64, len(m.temps)) // log10 Fcent (Troe) or ln W (SRI) per temperature
+	troe := m.kind == kindTroeConst || m.kind == kindTroe3 || m.kind == kindTroe4
 	for i, T := range m.temps {
 		bs[i] = m.perT(T, v)
+		if troe {
+			logFc[i] = math.Log10(bs[i].fc)
+		} else {
+			logFc[i] = math.Log(bs[i].fc)
+		}
 	}
 	var row [11]float64
 	for i, p := range m.pts {
@@ -299,7 +306,7 @@ func (m *falloffModel) residuals(x, r []float64, jac *mat.Dense) {
 			// log F = log Fcent/(1 + y²), y = x/(N − 0.14x), x = log Pr + c,
 			// c = −0.4 − 0.67 log Fcent, N = 0.75 − 1.27 log Fcent
 			// (Gilbert, Luther & Troe 1983).
-			lf := math.Log10(b.fc)
+			lf := logFc[p.iT]
 			c := -0.4 - 0.67*lf
 			n := 0.75 - 1.27*lf
 			xx := lnPr/ln10 + c
@@ -319,7 +326,7 @@ func (m *falloffModel) residuals(x, r []float64, jac *mat.Dense) {
 			// F = d·W^X·T^e, X = 1/(1 + (log Pr)²) (Stewart, Larson & Golden 1989).
 			L := lnPr / ln10
 			X := 1 / (1 + L*L)
-			lnW := math.Log(b.fc)
+			lnW := logFc[p.iT]
 			lnF = X*lnW + b.lnD
 			q = lnW * (-2 * L * X * X) / ln10
 			for k := range 3 {
@@ -342,8 +349,10 @@ func (m *falloffModel) residuals(x, r []float64, jac *mat.Dense) {
 		for k := range nb {
 			row[6+k] = p.w * dF[k]
 		}
+		jr := jac.RawMatrix()
+		out := jr.Data[i*jr.Stride : i*jr.Stride+len(m.free)]
 		for c, j := range m.free {
-			jac.Set(i, c, row[j])
+			out[c] = row[j]
 		}
 	}
 }
@@ -745,6 +754,10 @@ func (f *Falloff) clone() Falloff {
 // over 300–2500 K, whose term is below 1e-10).
 func boundHits(t *Table, f *Falloff, kind falloffKind, tol float64) []string {
 	var hits []string
+	base := make([]float64, len(t.Points)) // f's k at the points, computed once
+	for i, p := range t.Points {
+		base[i] = f.Eval(p.T, p.P)
+	}
 	// check tries the ends of bound b for the parameter set by set (which
 	// receives the coordinate y of the bound and changes a copy of f).
 	check := func(name string, b bound, set func(g *Falloff, y float64), show func(float64) string, now float64) {
@@ -755,8 +768,8 @@ func boundHits(t *Table, f *Falloff, kind falloffKind, tol float64) []string {
 			g := f.clone()
 			set(&g, end.y)
 			worst := 0.0
-			for _, p := range t.Points {
-				d := math.Abs(g.Eval(p.T, p.P)/f.Eval(p.T, p.P) - 1)
+			for i, p := range t.Points {
+				d := math.Abs(g.Eval(p.T, p.P)/base[i] - 1)
 				if !(d <= worst) { // NaN counts as a large change
 					worst = d
 					if math.IsNaN(d) {

@@ -238,12 +238,33 @@ func (t *fcentTables) fit(f *fcentTarget, i, j, k int) (a, cost float64) {
 func (f *fcentTarget) sri() SRI {
 	best, bestC := SRI{A: 0.5, B: 200, C: 300}, math.Inf(1)
 	lo, hi := math.Exp(boundLnSa.lo), math.Exp(boundLnSa.hi)
+	// The exponentials of the search from tables made once: the same
+	// values in the same arithmetic as evaluating them in the loops.
+	var bs []float64
+	for b := boundSb.lo + 500; b < boundSb.hi; b += 500 {
+		bs = append(bs, b)
+	}
+	ebs := make([][]float64, len(bs))
+	for k, b := range bs {
+		ebs[k] = make([]float64, len(f.temps))
+		for i, T := range f.temps {
+			ebs[k][i] = math.Exp(-b / T)
+		}
+	}
+	fc := make([]float64, len(f.temps))
+	for i, l := range f.lnF {
+		fc[i] = math.Exp(l)
+	}
+	ec := make([]float64, len(f.temps))
 	for _, c := range fcentTrials() {
-		for b := boundSb.lo + 500; b < boundSb.hi; b += 500 {
+		for i, T := range f.temps {
+			ec[i] = math.Exp(-T / c)
+		}
+		for k, b := range bs {
 			num, den := 0.0, 0.0
-			for i, T := range f.temps {
-				eb := math.Exp(-b / T)
-				num += eb * (math.Exp(f.lnF[i]) - math.Exp(-T/c))
+			for i := range f.temps {
+				eb := ebs[k][i]
+				num += eb * (fc[i] - ec[i])
 				den += eb * eb
 			}
 			if !(den > 0) {

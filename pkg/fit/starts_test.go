@@ -94,10 +94,10 @@ func TestCentreStarts(t *testing.T) {
 	}
 }
 
-// The coarse search's tables give the same broadening, bit for bit, as
-// evaluating troeA, cost and Troe.Fcent at every trial directly (the
-// previous code, an independent evaluation), for the three- and
-// four-parameter searches on the Fcent of GRI-Mech 3.0's H+CH3 and 2CH3
+// The coarse searches' tables give the same broadening, bit for bit, as
+// evaluating troeA, cost and Troe.Fcent (or the SRI sums) at every trial
+// directly (the previous code, an independent evaluation), for the three-
+// and four-parameter Troe searches and the SRI search on the Fcent of GRI-Mech 3.0's H+CH3 and 2CH3
 // (Smith et al. 1999).
 func TestFcentTablesMatchDirect(t *testing.T) {
 	temps := linGrid(300, 2500, 25)
@@ -135,6 +135,34 @@ func TestFcentTablesMatchDirect(t *testing.T) {
 			if got, want := target.troe(n, nil), direct(n); got != want {
 				t.Errorf("%s, %d parameters: tables %+v, direct %+v", name, n, got, want)
 			}
+		}
+		// The SRI search, evaluated in its loops as before the tables.
+		sriTarget := newFcentTarget(temps, f1, false)
+		want, bestC := SRI{A: 0.5, B: 200, C: 300}, math.Inf(1)
+		lo, hi := math.Exp(boundLnSa.lo), math.Exp(boundLnSa.hi)
+		for _, c := range trials {
+			for b := boundSb.lo + 500; b < boundSb.hi; b += 500 {
+				num, den := 0.0, 0.0
+				for i, T := range sriTarget.temps {
+					eb := math.Exp(-b / T)
+					num += eb * (math.Exp(sriTarget.lnF[i]) - math.Exp(-T/c))
+					den += eb * eb
+				}
+				if !(den > 0) {
+					continue
+				}
+				s := SRI{A: math.Max(lo*10, math.Min(hi/10, num/den)), B: b, C: c}
+				if s.A <= lo*10 {
+					continue
+				}
+				w := func(T float64) float64 { return s.A*math.Exp(-s.B/T) + math.Exp(-T/s.C) }
+				if cost := sriTarget.cost(w); cost < bestC {
+					want, bestC = s, cost
+				}
+			}
+		}
+		if got := sriTarget.sri(); got != want {
+			t.Errorf("%s, SRI: tables %+v, direct %+v", name, got, want)
 		}
 	}
 }
