@@ -72,7 +72,7 @@ func FitChebyshev(t *Table, opt Options) (*ChebyshevResult, error) {
 			return nil, fmt.Errorf("%w: %s: a %d × %d Chebyshev fit needs at least %d temperatures, %d pressures and %d distinct points; the table has %d, %d and %d",
 				ErrTooFewData, t.name(), nT, nP, nT, nP, nT*nP, len(temps), len(press), t.sites())
 		}
-		r, err := s.full.result(t, nT, nP)
+		r, err := s.result(nT, nP)
 		if err != nil {
 			return nil, err
 		}
@@ -91,6 +91,39 @@ type chebSearch struct {
 	extra []Point    // held-out points inside the table's range
 	folds []chebFold // cross-validation folds (when extra is empty)
 	c     Chebyshev  // the range of the table (Coef nil)
+	// The reduced coordinates (Chebyshev.reduced) of the table's points
+	// and of extra, computed once for every order tried.
+	redT, redExtra [][2]float64
+}
+
+// reducedAll returns the reduced coordinates of pts in c's range.
+func reducedAll(c Chebyshev, pts []Point) [][2]float64 {
+	out := make([][2]float64, len(pts))
+	for i, p := range pts {
+		out[i][0], out[i][1] = c.reduced(p.T, p.P)
+	}
+	return out
+}
+
+// result fits the nT × nP form to the whole table and reports it:
+// chebData.result with the table's reduced coordinates computed once.
+func (s *chebSearch) result(nT, nP int) (*ChebyshevResult, error) {
+	coef, err := s.full.fit(nT, nP)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", s.t.name(), err)
+	}
+	for _, row := range coef {
+		if !finite(row...) {
+			return nil, fmt.Errorf("%w: %s: %d × %d Chebyshev fit: coefficient not finite", ErrIllConditioned, s.t.name(), nT, nP)
+		}
+	}
+	c := s.c
+	c.Coef = coef
+	rep, err := reportOf(s.t, func(i int) float64 { return c.evalReduced(s.redT[i][0], s.redT[i][1]) }, c.NParams())
+	if err != nil {
+		return nil, err
+	}
+	return &ChebyshevResult{Chebyshev: c, NT: nT, NP: nP, Report: rep}, nil
 }
 
 // chebFold is a cross-validation fold: the problem without the points
@@ -105,6 +138,7 @@ func newChebSearch(t *Table, opt Options) *chebSearch {
 	c := Chebyshev{Tmin: tr[0], Tmax: tr[1], Pmin: pr[0], Pmax: pr[1]}
 	s := &chebSearch{t: t, tol: opt.Tolerance, c: c, full: newChebData(t.Points, t.Weighted(), c)}
 	s.extra = extraPoints(opt.Holdout, tr, pr)
+	s.redT, s.redExtra = reducedAll(c, t.Points), reducedAll(c, s.extra)
 	if len(s.extra) == 0 {
 		for _, f := range cvFolds(t, opt.GroupTol) {
 			train := t.without(f)
@@ -123,8 +157,8 @@ func newChebSearch(t *Table, opt Options) *chebSearch {
 func (s *chebSearch) heldOut(r *ChebyshevResult) *heldOutAcc {
 	if len(s.extra) > 0 {
 		a := newHeldOutAcc(HeldOutExtra)
-		for _, p := range s.extra {
-			a.add(p, r.Eval(p.T, p.P))
+		for i, p := range s.extra {
+			a.add(p, r.evalReduced(s.redExtra[i][0], s.redExtra[i][1]))
 		}
 		return a
 	}
@@ -170,7 +204,7 @@ search:
 			if n%np != 0 || n/np > maxT {
 				continue
 			}
-			r, err := s.full.result(s.t, n/np, np)
+			r, err := s.result(n/np, np)
 			if err != nil {
 				lastErr = err
 				continue
@@ -354,22 +388,3 @@ func (d *chebData) fitGrid(nT, nP int) ([][]float64, error) {
 	return coef, nil
 }
 
-// result fits the nT × nP form and reports it against the table t.
-func (d *chebData) result(t *Table, nT, nP int) (*ChebyshevResult, error) {
-	coef, err := d.fit(nT, nP)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", t.name(), err)
-	}
-	for _, row := range coef {
-		if !finite(row...) {
-			return nil, fmt.Errorf("%w: %s: %d × %d Chebyshev fit: coefficient not finite", ErrIllConditioned, t.name(), nT, nP)
-		}
-	}
-	c := d.c
-	c.Coef = coef
-	rep, err := formReport(t, &c)
-	if err != nil {
-		return nil, err
-	}
-	return &ChebyshevResult{Chebyshev: c, NT: nT, NP: nP, Report: rep}, nil
-}

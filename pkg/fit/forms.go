@@ -413,6 +413,11 @@ func chebyshevT(x float64, out []float64) {
 // Eval returns k at t K and p Pa.
 func (c Chebyshev) Eval(t, p float64) float64 {
 	tr, pr := c.reduced(t, p)
+	return c.evalReduced(tr, pr)
+}
+
+// evalReduced returns k at the reduced coordinates (tr, pr) (reduced).
+func (c Chebyshev) evalReduced(tr, pr float64) float64 {
 	nT := len(c.Coef)
 	if nT == 0 {
 		return math.NaN()

@@ -42,11 +42,16 @@ type Report struct {
 // NewReport compares f with the table. It returns an error wrapping
 // ErrBadData if f gives a non-finite or non-positive k at any point.
 func NewReport(t *Table, f Evaluator, nParams int) (Report, error) {
+	return reportOf(t, func(i int) float64 { p := t.Points[i]; return f.Eval(p.T, p.P) }, nParams)
+}
+
+// reportOf is NewReport with the fitted k at point i given by k(i).
+func reportOf(t *Table, kAt func(i int) float64, nParams int) (Report, error) {
 	r := Report{NParams: nParams, NPoints: len(t.Points)}
 	r.TRange, r.PRange = t.extent()
 	ss := 0.0
-	for _, p := range t.Points {
-		k := f.Eval(p.T, p.P)
+	for i, p := range t.Points {
+		k := kAt(i)
 		if !(k > 0) || math.IsInf(k, 0) {
 			return Report{}, fmt.Errorf("%w: fitted k = %g at T = %g K, P = %g Pa", ErrBadData, k, p.T, p.P)
 		}
