@@ -387,4 +387,3 @@ func (d *chebData) fitGrid(nT, nP int) ([][]float64, error) {
 	}
 	return coef, nil
 }
-
