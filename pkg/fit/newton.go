@@ -80,8 +80,13 @@ func (q *lsq) newtonRun(x0 []float64, set *optimize.Settings) ([]float64, float6
 		}
 		return n
 	}
-	f := 0.5 * q.cost(x)
-	q.eval(x, true)
+	// Residuals come with their Jacobian: most steps are accepted, and an
+	// accepted step needs it (½·S is computed as lsq.cost computes it).
+	half := func(v []float64) float64 {
+		q.eval(v, true)
+		return 0.5 * (sumSq(q.r) / float64(q.m))
+	}
+	f := half(x)
 	fill()
 	if math.IsInf(f, 1) || math.IsNaN(f) {
 		return x, f, optimize.Failure, optimize.ErrFunc(f)
@@ -173,7 +178,7 @@ func (q *lsq) newtonRun(x0 []float64, set *optimize.Settings) ([]float64, float6
 			if same {
 				return x, f, optimize.Failure, optimize.ErrNoProgress
 			}
-			ft = 0.5 * q.cost(xt)
+			ft = half(xt)
 			if ft <= f+decrease*step*proj {
 				break
 			}

@@ -442,9 +442,11 @@ func fitTwoTerms(ts, ks, sig []float64, starts [][2]Arrhenius, nr nRule, refit b
 				if l1 < l2 {
 					s1, s2 = s2, s1
 				}
+				jr := jac.RawMatrix()
+				row := jr.Data[i*jr.Stride : i*jr.Stride+2*np]
 				for j := range np {
-					jac.Set(i, j, w[i]*s1*d1[j])
-					jac.Set(i, np+j, w[i]*s2*d2[j])
+					row[j] = w[i] * s1 * d1[j]
+					row[np+j] = w[i] * s2 * d2[j]
 				}
 			}
 		}
