@@ -425,11 +425,19 @@ func fitTwoTerms(ts, ks, sig []float64, starts [][2]Arrhenius, nr nRule, refit b
 	for i, T := range ts {
 		basis[i] = m.basis(T)
 	}
+	_, nodes := m.(nodeTerms) // free n: the terms inline (nodeTerms.term)
 	f := func(x, r []float64, jac *mat.Dense) {
 		var g1, g2 [3]float64
 		for i := range ts {
-			l1, d1 := m.term(x[:np], basis[i], g1[:])
-			l2, d2 := m.term(x[np:], basis[i], g2[:])
+			var l1, l2 float64
+			var d1, d2 []float64
+			if b := basis[i]; nodes {
+				l1, l2 = b[0]*x[0]+b[1]*x[1]+b[2]*x[2], b[0]*x[3]+b[1]*x[4]+b[2]*x[5]
+				d1, d2 = b, b
+			} else {
+				l1, d1 = m.term(x[:np], b, g1[:])
+				l2, d2 = m.term(x[np:], b, g2[:])
+			}
 			hi, lo := max(l1, l2), min(l1, l2)
 			e := math.Exp(lo - hi)
 			lsum := hi + math.Log1p(e)
