@@ -51,13 +51,26 @@ type LDL struct {
 // arithmetic is the same; only the order of the terms of each sum differs,
 // and with it the last bits (TestBlockedEqualsRows: 1e-13).
 func Factor(m *Sym, sigma float64) (f *LDL, ok bool) {
+	return FactorInto(nil, m, sigma)
+}
+
+// FactorInto is Factor writing the factors into dst's storage when it has
+// room (a new LDL otherwise, as Factor): a solver that factorises one
+// matrix shape many times allocates the factors once. dst is overwritten
+// even when ok is false.
+func FactorInto(dst *LDL, m *Sym, sigma float64) (f *LDL, ok bool) {
 	if Reference {
 		return factorRows(m, sigma)
 	}
 	n, b := m.N, m.B
 	w := b + 1
-	// append, not make and copy: the copy is not cleared first.
-	f = &LDL{n: n, b: b, l: append([]float64(nil), m.A...)}
+	if dst != nil && cap(dst.l) >= len(m.A) && cap(dst.inv) >= n {
+		f = dst
+		f.n, f.b, f.l, f.inv = n, b, append(f.l[:0], m.A...), f.inv[:n]
+	} else {
+		// append, not make and copy: the copy is not cleared first.
+		f = &LDL{n: n, b: b, l: append([]float64(nil), m.A...), inv: make([]float64, n)}
+	}
 	l := f.l
 	for p := range n {
 		l[p*w+b] -= sigma
@@ -66,7 +79,7 @@ func Factor(m *Sym, sigma float64) (f *LDL, ok bool) {
 	cols := b + nb                 // panel columns: p0−b … p0+nb−1
 	wp := make([]float64, nb*cols) // W = L·D on the block's rows
 	lp := make([]float64, nb*cols) // L on the block's rows
-	inv := make([]float64, n)      // 1/D of every row done
+	inv := f.inv                   // 1/D of every row done
 	for p0 := 0; p0 < n; p0 += nb {
 		rows := min(nb, n-p0)
 		base := p0 - b // column of panel index 0

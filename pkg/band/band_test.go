@@ -171,3 +171,45 @@ func TestAxpyKernel(t *testing.T) {
 		}
 	}
 }
+
+// FactorInto reusing storage gives Factor's factors bit for bit, whatever
+// the storage held before (a larger matrix, a failed factorisation), and
+// solves with them as Factor's do.
+func TestFactorIntoReuses(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 8))
+	big, _ := random(300, 40, r)
+	var ws *LDL
+	ws, _ = FactorInto(ws, big, 0)
+	for _, nb := range [][2]int{{200, 30}, {300, 40}, {17, 5}} {
+		m, _ := random(nb[0], nb[1], r)
+		// A failed factorisation first: σ far above the spectrum.
+		if _, ok := FactorInto(ws, m, 1e6); ok {
+			t.Fatal("σ above the spectrum accepted")
+		}
+		got, ok := FactorInto(ws, m, 0)
+		want, ok2 := Factor(m, 0)
+		if !ok || !ok2 {
+			t.Fatal("not factorised")
+		}
+		if got != ws {
+			t.Errorf("n=%d b=%d: storage not reused", nb[0], nb[1])
+		}
+		for i := range want.l {
+			if got.l[i] != want.l[i] {
+				t.Fatalf("n=%d b=%d: entry %d: %v reused, %v new", nb[0], nb[1], i, got.l[i], want.l[i])
+			}
+		}
+		x, y := make([]float64, nb[0]), make([]float64, nb[0])
+		for i := range x {
+			x[i] = r.Float64()
+		}
+		copy(y, x)
+		got.Solve(x)
+		want.Solve(y)
+		for i := range x {
+			if x[i] != y[i] {
+				t.Fatalf("n=%d b=%d: solves differ at %d", nb[0], nb[1], i)
+			}
+		}
+	}
+}

@@ -539,9 +539,10 @@ type prepared struct {
 	eff    float64
 	weight float64
 	more   []component
-	// bufs holds each component's assembled matrix, reused from pressure
-	// to pressure (buildInto).
+	// bufs holds each component's assembled matrix and ldls its factors,
+	// reused from pressure to pressure (buildInto, band.FactorInto).
 	bufs map[*Well]*band.Sym
+	ldls map[*Well]*band.LDL
 }
 
 // component is one J component of a well.
@@ -762,11 +763,13 @@ func (p *prepared) rates1(w *Well, kernel *Kernel, omega float64) (float64, []fl
 		return 0, nil, fmt.Errorf("collision: collision frequency %v s-1 must be positive and finite", omega)
 	}
 	if p.bufs == nil {
-		p.bufs = map[*Well]*band.Sym{}
+		p.bufs, p.ldls = map[*Well]*band.Sym{}, map[*Well]*band.LDL{}
 	}
 	sys := buildInto(p.bufs[w], w, kernel, omega)
+	sys.ldl = p.ldls[w]
 	p.bufs[w] = sys.a
 	s, err := sys.eigen()
+	p.ldls[w] = sys.ldl
 	if err != nil {
 		return 0, nil, err
 	}

@@ -41,6 +41,9 @@ type system struct {
 	// factorised matrix stays a positive-definite M-matrix, and inverse
 	// iteration converges as (λ0+τ)/(λ1+τ), in a step or two when λ0 ≪ τ.
 	tau float64
+	// ldl, if not nil, is storage for the factors from an earlier point of
+	// the same shape (band.FactorInto); eigen leaves its factors there.
+	ldl *band.LDL
 }
 
 // tauPerOmega is τ per unit collision frequency: above the rounding of the
@@ -155,7 +158,10 @@ func (s *system) eigen() (Solution, error) {
 	if n == 0 {
 		return Solution{}, errors.New("collision: no grains")
 	}
-	f, ok := band.Factor(s.a, -s.tau)
+	f, ok := band.FactorInto(s.ldl, s.a, -s.tau)
+	if ok {
+		s.ldl = f
+	}
 	if !ok {
 		return Solution{}, fmt.Errorf("%w: a pivot of its LDLᵀ factorisation is not positive", ErrIllConditioned)
 	}
@@ -168,9 +174,16 @@ func (s *system) eigen() (Solution, error) {
 	sigma := -s.tau
 	for it := 1; it <= maxIterations; it++ {
 		f.Solve(x)
-		scale := 0.0
+		scale, nan := 0.0, false
 		for _, v := range x {
-			scale = math.Max(scale, math.Abs(v))
+			if a := math.Abs(v); a > scale {
+				scale = a
+			} else if a != a {
+				nan = true
+			}
+		}
+		if nan {
+			scale = math.NaN()
 		}
 		if !(scale > 0) || math.IsInf(scale, 0) {
 			return Solution{}, fmt.Errorf("%w: iterate is %v", ErrNoConvergence, scale)
