@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"strings"
 
 	"github.com/falloff-kinetics/falloff/pkg/collision"
@@ -193,6 +194,13 @@ func (n *Network) KInf(tK float64) float64 {
 // ceiling in cm⁻¹ (0: automatic; CountTop) and returns the well with its
 // channels for collision.Run.
 func (n *Network) masterEquation(ctx context.Context, ceiling float64) (collision.Channel, error) {
+	return n.masterEquationJobs(ctx, ceiling, 1)
+}
+
+// masterEquationJobs is masterEquation counting the reactant's states on
+// a goroutine of its own while the transition states are counted, when
+// jobs (0: GOMAXPROCS) allows more than one.
+func (n *Network) masterEquationJobs(ctx context.Context, ceiling float64, jobs int) (collision.Channel, error) {
 	m := n.Model
 	fine := m.EnergyGrid.Fine
 	top := n.CountTop(ceiling)
@@ -203,9 +211,32 @@ func (n *Network) masterEquation(ctx context.Context, ceiling float64) (collisio
 	if adiabatic {
 		reactant, jr = rrkm.SplitExternalRotation(reactant)
 	}
-	rc, err := rrkm.NewCounterContext(ctx, reactant, fine, top)
-	if err != nil {
-		return collision.Channel{}, countError(m.File, err)
+	// rc is used below only inside the channels' closures, which run after
+	// this function has waited for it.
+	var rc *rrkm.Counter
+	var rcErr error
+	rcDone := make(chan struct{})
+	countReactant := func() {
+		defer close(rcDone)
+		rc, rcErr = rrkm.NewCounterContext(ctx, reactant, fine, top)
+	}
+	if jobs == 1 || (jobs <= 0 && runtime.GOMAXPROCS(0) == 1) {
+		countReactant()
+	} else {
+		go countReactant()
+	}
+	defer func() { <-rcDone }() // never leave it running on an early return
+	waitReactant := func() error {
+		<-rcDone
+		if rcErr != nil {
+			return countError(m.File, rcErr)
+		}
+		return nil
+	}
+	if jobs == 1 {
+		if err := waitReactant(); err != nil {
+			return collision.Channel{}, err
+		}
 	}
 	tMax := m.Temperatures[len(m.Temperatures)-1]
 	var chs []collision.Channel
@@ -282,6 +313,9 @@ func (n *Network) masterEquation(ctx context.Context, ceiling float64) (collisio
 			}
 		}
 		chs = append(chs, cc)
+	}
+	if err := waitReactant(); err != nil {
+		return collision.Channel{}, err
 	}
 	well := chs[0]
 	well.Reactant = rc

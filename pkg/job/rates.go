@@ -224,7 +224,7 @@ func (n *Network) Rates(ctx context.Context, opt Options) (*RatesResult, error) 
 	if err := n.checkWork(opt); err != nil {
 		return nil, err
 	}
-	well, err := n.masterEquation(ctx, ceiling)
+	well, err := n.masterEquationJobs(ctx, ceiling, opt.Jobs)
 	if err != nil {
 		return nil, err
 	}
