@@ -80,13 +80,10 @@ func (q *lsq) newtonRun(x0 []float64, set *optimize.Settings) ([]float64, float6
 		}
 		return n
 	}
-	// Residuals come with their Jacobian: most steps are accepted, and an
-	// accepted step needs it (½·S is computed as lsq.cost computes it).
-	half := func(v []float64) float64 {
-		q.eval(v, true)
-		return 0.5 * (sumSq(q.r) / float64(q.m))
-	}
-	f := half(x)
+	// Trial points get residuals only (about three trials an accepted
+	// step on the PLOG refits); the accepted one then gets its Jacobian.
+	f := 0.5 * q.cost(x)
+	q.eval(x, true)
 	fill()
 	if math.IsInf(f, 1) || math.IsNaN(f) {
 		return x, f, optimize.Failure, optimize.ErrFunc(f)
@@ -178,7 +175,7 @@ func (q *lsq) newtonRun(x0 []float64, set *optimize.Settings) ([]float64, float6
 			if same {
 				return x, f, optimize.Failure, optimize.ErrNoProgress
 			}
-			ft = half(xt)
+			ft = 0.5 * q.cost(xt)
 			if ft <= f+decrease*step*proj {
 				break
 			}
