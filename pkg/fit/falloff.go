@@ -132,6 +132,48 @@ type falloffModel struct {
 	pts   []fpoint
 	free  []int     // indices of z that are fitted
 	z     []float64 // full parameter vector; fixed entries stay as set
+	// limits caches, per point, what depends on the limits' coordinates
+	// z[0:6] alone, for the z it was made at: with the limits held they do
+	// not change from one evaluation to the next.
+	limits struct {
+		z   [6]float64
+		ok  bool
+		pre []limitTerms
+	}
+}
+
+// limitTerms are a point's ln k∞, ln Pr, ln(1 + Pr) and Pr/(1 + Pr).
+type limitTerms struct{ li, lnPr, ln1p, s float64 }
+
+// limitTermsAt returns the limit terms of every point at m.z[0:6], from the
+// cache when z[0:6] has not changed.
+func (m *falloffModel) limitTermsAt() []limitTerms {
+	var z6 [6]float64
+	copy(z6[:], m.z[:6])
+	if m.limits.ok && m.limits.z == z6 {
+		return m.limits.pre
+	}
+	if m.limits.pre == nil {
+		m.limits.pre = make([]limitTerms, len(m.pts))
+	}
+	for i, p := range m.pts {
+		phi := &m.phi[p.iT]
+		l0 := phi[0]*m.z[0] + phi[1]*m.z[1] + phi[2]*m.z[2]
+		li := phi[0]*m.z[3] + phi[1]*m.z[4] + phi[2]*m.z[5]
+		lnPr := l0 + p.lnM - li
+		// ln(1+Pr) and Pr/(1+Pr) without overflow.
+		var ln1p, s float64
+		if lnPr > 0 {
+			e := math.Exp(-lnPr)
+			ln1p, s = lnPr+math.Log1p(e), 1/(1+e)
+		} else {
+			e := math.Exp(lnPr)
+			ln1p, s = math.Log1p(e), e/(1+e)
+		}
+		m.limits.pre[i] = limitTerms{li, lnPr, ln1p, s}
+	}
+	m.limits.z, m.limits.ok = z6, true
+	return m.limits.pre
 }
 
 func newFalloffModel(t *Table, kind falloffKind) (*falloffModel, error) {
@@ -284,20 +326,10 @@ func (m *falloffModel) residuals(x, r []float64, jac *mat.Dense) {
 		}
 	}
 	var row [11]float64
+	pre := m.limitTermsAt()
 	for i, p := range m.pts {
 		phi := &m.phi[p.iT]
-		l0 := phi[0]*m.z[0] + phi[1]*m.z[1] + phi[2]*m.z[2]
-		li := phi[0]*m.z[3] + phi[1]*m.z[4] + phi[2]*m.z[5]
-		lnPr := l0 + p.lnM - li
-		// ln(1+Pr) and Pr/(1+Pr) without overflow.
-		var ln1p, s float64
-		if lnPr > 0 {
-			e := math.Exp(-lnPr)
-			ln1p, s = lnPr+math.Log1p(e), 1/(1+e)
-		} else {
-			e := math.Exp(lnPr)
-			ln1p, s = math.Log1p(e), e/(1+e)
-		}
+		li, lnPr, ln1p, s := pre[i].li, pre[i].lnPr, pre[i].ln1p, pre[i].s
 		lnF, q := 0.0, 0.0 // ln F and ∂ln F/∂ln Pr
 		var dF [5]float64  // ∂ln F/∂v
 		b := &bs[p.iT]
