@@ -62,16 +62,50 @@ func FactorInto(dst *LDL, m *Sym, sigma float64) (f *LDL, ok bool) {
 	if Reference {
 		return factorRows(m, sigma)
 	}
+	return FactorScaledInto(dst, m, 1, nil, sigma)
+}
+
+// FactorScaledInto is FactorInto for c·M + diag(d) − σI (d[p] on row p,
+// nil for none), formed as the factors' storage is filled: the bits of
+// forming that matrix first, (c·M(p,q) + d(p)) − σ on the diagonal, without
+// a pass over a matrix of its own. With Reference it forms the matrix and
+// runs the previous code.
+func FactorScaledInto(dst *LDL, m *Sym, c float64, d []float64, sigma float64) (f *LDL, ok bool) {
 	n, b := m.N, m.B
 	w := b + 1
+	if Reference {
+		a := &Sym{N: n, B: b, A: make([]float64, len(m.A))}
+		for i, v := range m.A {
+			a.A[i] = c * v
+		}
+		for p := range d {
+			a.A[p*w+b] += d[p]
+		}
+		return factorRows(a, sigma)
+	}
 	if dst != nil && cap(dst.l) >= len(m.A) && cap(dst.inv) >= n {
 		f = dst
-		f.n, f.b, f.l, f.inv = n, b, append(f.l[:0], m.A...), f.inv[:n]
+		f.n, f.b, f.inv = n, b, f.inv[:n]
 	} else {
+		f = &LDL{n: n, b: b, inv: make([]float64, n)}
+	}
+	if c == 1 {
 		// append, not make and copy: the copy is not cleared first.
-		f = &LDL{n: n, b: b, l: append([]float64(nil), m.A...), inv: make([]float64, n)}
+		f.l = append(f.l[:0], m.A...)
+	} else {
+		if cap(f.l) >= len(m.A) {
+			f.l = f.l[:len(m.A)]
+		} else {
+			f.l = make([]float64, len(m.A))
+		}
+		for i, v := range m.A {
+			f.l[i] = c * v
+		}
 	}
 	l := f.l
+	for p := range d {
+		l[p*w+b] += d[p]
+	}
 	for p := range n {
 		l[p*w+b] -= sigma
 	}

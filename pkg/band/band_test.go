@@ -213,3 +213,37 @@ func TestFactorIntoReuses(t *testing.T) {
 		}
 	}
 }
+
+// FactorScaledInto gives bit for bit the factors of the matrix c·M +
+// diag(d) formed first (the sums in the same order), with the previous code
+// (Reference) too.
+func TestFactorScaledIntoEqualsFormed(t *testing.T) {
+	r := rand.New(rand.NewPCG(9, 10))
+	for _, ref := range []bool{false, true} {
+		Reference = ref
+		m, _ := random(150, 25, r)
+		d := make([]float64, m.N)
+		for i := range d {
+			d[i] = r.Float64()
+		}
+		const c, sigma = 3.7e5, 1e-3
+		a := NewSym(m.N, m.B)
+		for i, v := range m.A {
+			a.A[i] = c * v
+		}
+		for p := range d {
+			*a.At(p, 0) += d[p]
+		}
+		want, ok1 := Factor(a, sigma)
+		got, ok2 := FactorScaledInto(nil, m, c, d, sigma)
+		if !ok1 || !ok2 {
+			t.Fatal("not factorised")
+		}
+		for i := range want.l {
+			if got.l[i] != want.l[i] {
+				t.Fatalf("reference %v: entry %d: %v scaled, %v formed", ref, i, got.l[i], want.l[i])
+			}
+		}
+	}
+	Reference = false
+}

@@ -82,6 +82,63 @@ func cpuSeconds() float64 {
 	return tv(ru.Utime) + tv(ru.Stime)
 }
 
+// BenchmarkSolvePoints times the 600 points of the benchmark grid (30
+// temperatures × 20 pressures, the wells prepared beforehand), each solved
+// as the grid solves it now and as the previous code did (band.Reference:
+// row-by-row factorisation with gonum's kernels, and a new band matrix and
+// factors for every point), and reports the ratio: the per-point speed-up
+// averaged over the physics sweep.
+func BenchmarkSolvePoints(b *testing.B) {
+	ch, col, tr, temps, ps := benchGrid(b)
+	var wells []*prepared
+	for _, tK := range temps {
+		p, err := prepare(ch, tr, tK, 0, 0)
+		if err != nil {
+			b.Fatal(err)
+		}
+		wells = append(wells, p)
+	}
+	omegas := make([][]float64, len(temps))
+	for i, tK := range temps {
+		for _, P := range ps {
+			omegas[i] = append(omegas[i], col.Z(tK)*Concentration(P, tK))
+		}
+	}
+	var previous float64
+	for _, prev := range []bool{true, false} {
+		name := "banded"
+		if prev {
+			name = "banded-previous"
+		}
+		b.Run(name, func(b *testing.B) {
+			band.Reference = prev
+			defer func() { band.Reference = false }()
+			for b.Loop() {
+				for i, p := range wells {
+					for _, omega := range omegas[i] {
+						var err error
+						if prev {
+							_, err = p.w.Solve(p.kernel, omega)
+						} else {
+							_, err = p.rate(omega)
+						}
+						if err != nil {
+							b.Fatal(err)
+						}
+					}
+				}
+			}
+			per := float64(b.Elapsed().Nanoseconds()) / float64(b.N)
+			if prev {
+				previous = per
+			} else {
+				b.ReportMetric(previous/per, "speed-up")
+			}
+			b.ReportMetric(per/1e3/float64(len(temps)*len(ps)), "µs/point")
+		})
+	}
+}
+
 // BenchmarkSolvePoint compares one (T, P) point by the banded solver with the
 // dense reference (gonum mat.EigenSym) on the same matrix; the ratio is
 // reported as dense-ns/banded-ns (target ≥ 50).

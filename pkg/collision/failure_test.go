@@ -105,6 +105,7 @@ func TestFactorShiftedInertia(t *testing.T) {
 		t.Fatal(err)
 	}
 	s := build(p.w, p.kernel, 1e8)
+	s.matrix()
 	n := s.a.N
 	d := mat.NewSymDense(n, nil)
 	for q := range n {

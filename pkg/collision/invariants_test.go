@@ -72,6 +72,7 @@ func TestInvariants(t *testing.T) {
 // inverse iteration from sqrt(F) until λ settles to 1e-15, and the flux
 // identity, all in math/big.
 func bigEigen(s *system) float64 {
+	s.matrix() // A itself, if only its factors were formed
 	const prec = 256
 	n := len(s.loss)
 	nf := func(x float64) *big.Float { return new(big.Float).SetPrec(prec).SetFloat64(x) }

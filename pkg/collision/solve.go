@@ -44,6 +44,35 @@ type system struct {
 	// ldl, if not nil, is storage for the factors from an earlier point of
 	// the same shape (band.FactorInto); eigen leaves its factors there.
 	ldl *band.LDL
+	// With lazy set, A = ω·op + diag(diag) is formed into a only when
+	// needed (matrix): the factorisation forms it as it fills its storage
+	// (band.FactorScaledInto), and only a shift needs A itself.
+	lazy  bool
+	op    *band.Sym
+	omega float64
+	diag  []float64 // row order (descending energy)
+}
+
+// matrix returns A, formed into s.a the first time.
+func (s *system) matrix() *band.Sym {
+	if s.lazy {
+		for i, v := range s.op.A {
+			s.a.A[i] = s.omega * v
+		}
+		for p, d := range s.diag {
+			*s.a.At(p, 0) += d
+		}
+		s.lazy = false
+	}
+	return s.a
+}
+
+// factor returns the LDLᵀ factors of A − σI in s.ldl's storage.
+func (s *system) factor(sigma float64) (*band.LDL, bool) {
+	if !s.lazy {
+		return band.FactorInto(s.ldl, s.a, sigma)
+	}
+	return band.FactorScaledInto(s.ldl, s.op, s.omega, s.diag, sigma)
 }
 
 // tauPerOmega is τ per unit collision frequency: above the rounding of the
@@ -107,9 +136,10 @@ func build(w *Well, k *Kernel, omega float64) *system {
 	return buildInto(nil, w, k, omega)
 }
 
-// buildInto is build writing A into buf when buf has its shape (a new
-// matrix otherwise): one temperature's pressures reuse one matrix, so a
-// worker allocates its band once per temperature and not per pressure.
+// buildInto is build with buf, when it has A's shape, as the storage A is
+// formed in if it is needed (system.matrix; a new matrix otherwise): one
+// temperature's pressures reuse one matrix, so a worker allocates its band
+// once per temperature and not per pressure.
 func buildInto(buf *band.Sym, w *Well, k *Kernel, omega float64) *system {
 	op := k.operator(w)
 	n := w.N()
@@ -117,12 +147,9 @@ func buildInto(buf *band.Sym, w *Well, k *Kernel, omega float64) *system {
 	if a == nil || a.N != n || a.B != op.c.B {
 		a = band.NewSym(n, op.c.B)
 	}
-	s := &system{a: a, loss: w.K, sqf: sqrtF(w, n), tau: tauPerOmega * omega}
-	for i, v := range op.c.A {
-		s.a.A[i] = omega * v
-	}
+	s := &system{a: a, loss: w.K, sqf: sqrtF(w, n), tau: tauPerOmega * omega, lazy: true, op: op.c, omega: omega, diag: make([]float64, n)}
 	for i := range n {
-		*s.a.At(n-1-i, 0) += w.K[i]
+		s.diag[n-1-i] = w.K[i]
 	}
 	return s
 }
@@ -158,7 +185,7 @@ func (s *system) eigen() (Solution, error) {
 	if n == 0 {
 		return Solution{}, errors.New("collision: no grains")
 	}
-	f, ok := band.FactorInto(s.ldl, s.a, -s.tau)
+	f, ok := s.factor(-s.tau)
 	if ok {
 		s.ldl = f
 	}
@@ -205,10 +232,10 @@ func (s *system) eigen() (Solution, error) {
 		}
 		prev = lambda
 		if it%shiftEvery == 0 {
-			rq := s.a.Rayleigh(x)
+			rq := s.matrix().Rayleigh(x)
 			for step := 0.9; step > 1e-3; step /= 4 {
 				next := sigma + step*(rq-sigma)
-				if g, ok := band.Factor(s.a, next); ok {
+				if g, ok := band.Factor(s.matrix(), next); ok {
 					f, sigma = g, next
 					break
 				}
