@@ -5,6 +5,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"sync"
 
 	"github.com/falloff-kinetics/falloff/pkg/fit"
 	"github.com/falloff-kinetics/falloff/pkg/job"
@@ -73,14 +74,34 @@ func Rates(n *job.Network, res *job.RatesResult, d Units, temps []float64) ([]jo
 	if err != nil {
 		return nil, err
 	}
-	var files []job.File
+	// The figures are laid out here and drawn together at the end, each on
+	// a goroutine of its own, into files in this order.
+	type pending struct {
+		name string
+		svg  func() ([]byte, error)
+	}
+	var todo []pending
 	save := func(name string, svg func() ([]byte, error)) error {
-		b, err := svg()
-		if err != nil {
-			return &job.NumericalError{Err: fmt.Errorf("%s: %w", name, err)}
-		}
-		files = append(files, job.File{Name: name, Data: b})
+		todo = append(todo, pending{name, svg})
 		return nil
+	}
+	draw := func() ([]job.File, error) {
+		files := make([]job.File, len(todo))
+		errs := make([]error, len(todo))
+		var wg sync.WaitGroup
+		for i, f := range todo {
+			wg.Go(func() {
+				b, err := f.svg()
+				files[i], errs[i] = job.File{Name: f.name, Data: b}, err
+			})
+		}
+		wg.Wait()
+		for i, err := range errs {
+			if err != nil {
+				return nil, &job.NumericalError{Err: fmt.Errorf("%s: %w", todo[i].name, err)}
+			}
+		}
+		return files, nil
 	}
 	form, formName := PlotForm(res.Fits)
 	kp := res.KPowers()
@@ -131,7 +152,7 @@ func Rates(n *job.Network, res *job.RatesResult, d Units, temps []float64) ([]jo
 	}
 
 	if n.Main().TS == nil {
-		return files, nil // k(E) and ρ(E) plots need a transition state (see micro)
+		return draw() // k(E) and ρ(E) plots need a transition state (see micro)
 	}
 	var mc job.MicroChannel
 	var name string
@@ -155,9 +176,9 @@ func Rates(n *job.Network, res *job.RatesResult, d Units, temps []float64) ([]jo
 	if err := save(MicroPlot, microFigure(mc, energies, density, res.Temperatures).SVG); err != nil {
 		return nil, err
 	}
-	err = save(DensityPlot, plots.Figure{Title: "Density of states", XLabel: "E / cm-1", YLabel: "ρ(E) / states per cm-1", LogY: true,
+	save(DensityPlot, plots.Figure{Title: "Density of states", XLabel: "E / cm-1", YLabel: "ρ(E) / states per cm-1", LogY: true,
 		Series: []plots.Series{{Name: name, X: energies, Y: density}}}.SVG)
-	return files, err
+	return draw()
 }
 
 // TemperatureIndices returns the indices in grid of the temperatures
