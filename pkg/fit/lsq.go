@@ -150,13 +150,17 @@ func (q *lsq) solve(x0 []float64) ([]float64, float64, error) {
 		if q.refit && errors.Is(err, errIterationLimit) && finite(x...) {
 			err = nil
 		}
-		if err != nil {
-			return nil, 0, err
+		if err == nil && finite(x...) && !math.IsInf(c, 0) {
+			return x, c, nil
 		}
-		if !finite(x...) || math.IsInf(c, 0) {
-			return nil, 0, fmt.Errorf("%w: non-finite result", ErrNoConvergence)
+		// Where Levenberg–Marquardt fails or runs out of steps, the
+		// Newton method's line search carries on from where it stopped,
+		// as before it (a fallback; no test table needs it since the
+		// creep rule of marquardt).
+		if x != nil && finite(x...) && !math.IsInf(c, 0) {
+			x0 = x
 		}
-		return x, c, nil
+		q.valid = false
 	}
 	if c := q.cost(x0); math.IsInf(c, 0) {
 		return nil, 0, fmt.Errorf("%w: residuals not finite at the start", ErrNoConvergence)

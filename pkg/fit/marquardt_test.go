@@ -3,6 +3,7 @@ package fit
 import (
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -95,30 +96,51 @@ func TestMarquardtKnownMinima(t *testing.T) {
 // with a backtracking line search (an independent algorithm), on the fits
 // they serve: the Troe and SRI forms on tables made from GRI-Mech 3.0's
 // H+CH3 and 2CH3 (Smith et al. 1999) and PLOG on both tables. Both must
-// reach the same least-squares minimum: the rms error (what the fits
-// minimise, in ln k) no larger than Newton's by 1e-7 of itself (the stopping
-// rules stop at 1e-10 of the cost; measured: equal or smaller in every case),
-// the max error within 1e-4 of itself (parameters along the flat directions
-// of SRI and two-term PLOG move the worst point in the 6th digit:
-// 1.1e-5 measured), 1e-9 % absolute for data fitted exactly; and the new
+// reach the same least-squares minimum: the cost Σ(ln k_fit − ln k)²/m no
+// larger than Newton's by 1e-8 of itself (the stopping rules stop at 1e-10;
+// measured: equal or smaller in every case but one), or by 1e-5 where both
+// report a parameter on its bound (the cost still falls as it runs there;
+// measured 9.3e-7 on the held five-parameter SRI of 2CH3); the max error
+// within 1e-4 of itself (parameters along the flat directions of SRI and
+// two-term PLOG move the worst point in the 6th digit: 1.2e-5 measured),
+// any value below 1e-6 % for data fitted exactly; and the new
 // solver must use fewer residual evaluations (measured 2.2–7.9× fewer,
-// though each of its evaluations computes the Jacobian too).
+// though each of its evaluations computes the Jacobian too). The held fits
+// on 30 × 20 tables include the five-parameter SRI of 2CH3, whose valley
+// runs to the bound of d (marquardt's creep rule; 9 020 evaluations against
+// Newton's 38 669); their evaluation counts are not compared.
 func TestMarquardtMatchesNewton(t *testing.T) {
 	temps, press := invTGrid(300, 2500, 15), atm(logGrid(0.01, 100, 9)...)
 	type run struct {
 		maxPct, rmsPct float64
+		cost           float64 // Σ(ln k_fit − ln k)²/m, what the fits minimise (unweighted tables)
 		evals          int
+		bound          bool // a parameter reported on its bound
 	}
-	fitWith := func(newton bool, tab *Table, form FormName) run {
+	fitWithOpt := func(newton bool, tab *Table, form FormName, opt Options) run {
 		newtonSolver = newton
 		defer func() { newtonSolver = false }()
 		evalCount = 0
-		r, err := FitAll(tab, []FormName{form}, Options{Jobs: 1})
+		r, err := FitAll(tab, []FormName{form}, opt)
 		if err != nil {
 			t.Fatal(err)
 		}
 		rep := r.Reports()[form]
-		return run{rep.MaxErrorPct, rep.RMSErrorPct, evalCount}
+		var f Evaluator
+		switch form {
+		case FormTroe:
+			f = &r.Troe.Falloff
+		case FormSRI:
+			f = &r.SRI.Falloff
+		case FormPLOG:
+			f = &r.PLOG.PLOG
+		}
+		cost := 0.0
+		for _, p := range tab.Points {
+			d := math.Log(f.Eval(p.T, p.P) / p.K)
+			cost += d * d
+		}
+		return run{rep.MaxErrorPct, rep.RMSErrorPct, cost / float64(len(tab.Points)), evalCount, strings.Contains(rep.FailReason, "sits on")}
 	}
 	countEvals = true
 	defer func() { countEvals = false }()
@@ -126,25 +148,45 @@ func TestMarquardtMatchesNewton(t *testing.T) {
 		name string
 		f    Falloff
 		form FormName
+		held bool // limits held, on a 30 × 20 table (the benchmark's)
 	}{
-		{"H+CH3", griHCH3(), FormTroe},
-		{"2CH3", griCH3CH3(), FormTroe},
-		{"H+CH3", griHCH3(), FormSRI},
-		{"H+CH3", griHCH3(), FormPLOG},
-		{"2CH3", griCH3CH3(), FormPLOG},
+		{"H+CH3", griHCH3(), FormTroe, false},
+		{"2CH3", griCH3CH3(), FormTroe, false},
+		{"H+CH3", griHCH3(), FormSRI, false},
+		{"2CH3", griCH3CH3(), FormSRI, false},
+		{"H+CH3", griHCH3(), FormPLOG, false},
+		{"2CH3", griCH3CH3(), FormPLOG, false},
+		{"2CH3 held", griCH3CH3(), FormSRI, true},
+		{"H+CH3 held", griHCH3(), FormSRI, true},
+		{"2CH3 held", griCH3CH3(), FormTroe, true},
 	} {
 		tab := gridTable(&c.f, temps, press, "cm3/mol/s")
-		old, lm := fitWith(true, tab, c.form), fitWith(false, tab, c.form)
-		if lm.rmsPct > old.rmsPct*(1+1e-7)+1e-9 {
-			t.Errorf("%s %s: rms error %.10g %% (Levenberg–Marquardt), %.10g %% (Newton)", c.name, c.form, lm.rmsPct, old.rmsPct)
+		opt := Options{Jobs: 1}
+		if c.held {
+			ts := linGrid(300, 2500, 30)
+			tab = gridTable(&c.f, ts, atm(logGrid(0.01, 100, 20)...), "cm3/mol/s")
+			k0, kinf := make([]float64, len(ts)), make([]float64, len(ts))
+			for i, T := range ts {
+				k0[i], kinf[i] = c.f.Low.At(T), c.f.High.At(T)
+			}
+			opt.Limits = &Limits{K0: k0, KInf: kinf}
 		}
-		if math.Abs(lm.maxPct-old.maxPct) > 1e-4*old.maxPct+1e-9 {
+		fitWith := func(newton bool, tab *Table, form FormName) run { return fitWithOpt(newton, tab, form, opt) }
+		old, lm := fitWith(true, tab, c.form), fitWith(false, tab, c.form)
+		tol := 1e-8
+		if lm.bound && old.bound {
+			tol = 1e-5 // a valley toward a bound: both stop on their way down it
+		}
+		if lm.cost > old.cost*(1+tol)+1e-24 {
+			t.Errorf("%s %s: least-squares cost %.12g (Levenberg–Marquardt), %.12g (Newton)", c.name, c.form, lm.cost, old.cost)
+		}
+		if exact := lm.maxPct < 1e-6 && old.maxPct < 1e-6; !exact && math.Abs(lm.maxPct-old.maxPct) > 1e-4*old.maxPct {
 			t.Errorf("%s %s: max error %.10g %% (Levenberg–Marquardt), %.10g %% (Newton)", c.name, c.form, lm.maxPct, old.maxPct)
 		}
-		if lm.evals >= old.evals {
+		if lm.evals >= old.evals && !c.held {
 			t.Errorf("%s %s: %d residual evaluations, Newton %d", c.name, c.form, lm.evals, old.evals)
 		}
-		t.Logf("%s %s: max %.8g %% / %.8g %%, rms %.10g %% / %.10g %%, evaluations %d (Newton %d)", c.name, c.form, lm.maxPct, old.maxPct, lm.rmsPct, old.rmsPct, lm.evals, old.evals)
+		t.Logf("%s %s: max %.8g %% / %.8g %%, cost %.12g / %.12g, evaluations %d (Newton %d)", c.name, c.form, lm.maxPct, old.maxPct, lm.cost, old.cost, lm.evals, old.evals)
 	}
 }
 
