@@ -79,28 +79,10 @@ func (q *lsq) marquardt(x0 []float64, rules marquardtRules) ([]float64, float64,
 	var d float64 // the largest diagonal entry of h
 	// normal fills h and g = Jᵀr/m at the current x (q holds r and J).
 	normal := func() float64 {
-		jr := q.jac.RawMatrix()
-		clear(h)
-		clear(g)
-		for k := range q.m {
-			row := jr.Data[k*jr.Stride : k*jr.Stride+p]
-			rk := q.r[k]
-			for i, ji := range row {
-				g[i] += ji * rk
-				hi := h[i*p : i*p+i+1]
-				for j := range hi {
-					hi[j] += ji * row[j]
-				}
-			}
-		}
+		q.normalEquations(h, g)
 		d = 0
 		gmax := 0.0
 		for i := range p {
-			g[i] /= m
-			for j := 0; j <= i; j++ {
-				h[i*p+j] /= m
-				h[j*p+i] = h[i*p+j]
-			}
 			d = math.Max(d, h[i*p+i])
 			gmax = math.Max(gmax, math.Abs(g[i]))
 		}
@@ -187,6 +169,33 @@ func (q *lsq) marquardt(x0 []float64, rules marquardtRules) ([]float64, float64,
 		mu, nu = mu*nu, 2*nu
 		if math.IsInf(mu, 0) {
 			return x, s, fmt.Errorf("%w: damping overflow", ErrNoConvergence)
+		}
+	}
+}
+
+// normalEquations sets h (p × p, both triangles) to JᵀJ/m and g to Jᵀr/m
+// at the point q was last evaluated at with its Jacobian.
+func (q *lsq) normalEquations(h, g []float64) {
+	p, inv := q.p, 1/float64(q.m)
+	jr := q.jac.RawMatrix()
+	clear(h)
+	clear(g)
+	for k := range q.m {
+		row := jr.Data[k*jr.Stride : k*jr.Stride+p]
+		rk := q.r[k]
+		for i, ji := range row {
+			g[i] += ji * rk
+			hi := h[i*p : i*p+i+1]
+			for j := range hi {
+				hi[j] += ji * row[j]
+			}
+		}
+	}
+	for i := range p {
+		g[i] *= inv
+		for j := 0; j <= i; j++ {
+			h[i*p+j] *= inv
+			h[j*p+i] = h[i*p+j]
 		}
 	}
 }

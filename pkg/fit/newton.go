@@ -28,7 +28,7 @@ func (q *lsq) newtonRun(x0 []float64, set *optimize.Settings) ([]float64, float6
 		contract = 0.5   // Backtracking.ContractionFactor default
 		minStep  = 1e-20 // Backtracking.MinimumStepSize default
 	)
-	p, inv := q.p, 1/float64(q.m)
+	p := q.p
 	fc, _ := set.Converger.(*optimize.FunctionConverge)
 	x := append([]float64(nil), x0...)
 	g := make([]float64, p)
@@ -39,29 +39,11 @@ func (q *lsq) newtonRun(x0 []float64, set *optimize.Settings) ([]float64, float6
 	// fill sets g and h at the point q was last evaluated at with its
 	// Jacobian: lsq.problem's Grad and Hess.
 	fill := func() {
-		jr := q.jac.RawMatrix()
-		clear(g)
-		clear(h)
-		for k := range q.m {
-			row := jr.Data[k*jr.Stride : k*jr.Stride+p]
-			rk := q.r[k]
-			for i, ji := range row {
-				g[i] += ji * rk
-				hi := h[i*p : i*p+i+1]
-				for j := range hi {
-					hi[j] += ji * row[j]
-				}
-			}
-		}
+		q.normalEquations(h, g)
 		mx := 0.0
 		for i := range p {
-			g[i] *= inv
 			if math.IsNaN(g[i]) || math.IsInf(g[i], 0) {
 				g[i] = 0
-			}
-			for j := 0; j <= i; j++ {
-				h[i*p+j] *= inv
-				h[j*p+i] = h[i*p+j]
 			}
 			mx = math.Max(mx, h[i*p+i])
 		}

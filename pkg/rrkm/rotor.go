@@ -57,21 +57,28 @@ func newPowerSum(c []float64, delta float64) *powerSum {
 	for block < 1024 && block*block < len(c)*moments/nearBlocks {
 		block *= 2
 	}
-	nb := len(c) / block
-	ps := &powerSum{c: c, delta: delta, block: block, mom: make([][moments]float64, nb)}
-	for b := range nb {
-		centre := float64(b*block) + float64(block-1)/2
-		for j := b * block; j < (b+1)*block; j++ {
+	ps := &powerSum{c: c, delta: delta, block: block, mom: blockMoments(c, delta, block)}
+	ps.levels = blockLevels(c, delta)
+	return ps
+}
+
+// blockMoments returns, for every whole block of size bins of the comb,
+// its moments Σ c_j·(jδ − centre)^k about the block's centre, k <
+// moments.
+func blockMoments(c []float64, delta float64, size int) [][moments]float64 {
+	mom := make([][moments]float64, len(c)/size)
+	for b := range mom {
+		centre := float64(b*size) + float64(size-1)/2
+		for j := b * size; j < (b+1)*size; j++ {
 			d := (float64(j) - centre) * delta
 			w := c[j]
 			for k := range moments {
-				ps.mom[b][k] += w
+				mom[b][k] += w
 				w *= d
 			}
 		}
 	}
-	ps.levels = blockLevels(c, delta)
-	return ps
+	return mom
 }
 
 // blockLevels returns the moments of the comb's blocks of baseBlock,
@@ -95,19 +102,7 @@ func blockLevels(c []float64, delta float64) [][][moments]float64 {
 	if n == 0 {
 		return nil
 	}
-	lv := make([][moments]float64, n)
-	for b := range lv {
-		centre := float64(b*baseBlock) + float64(baseBlock-1)/2
-		for j := b * baseBlock; j < (b+1)*baseBlock; j++ {
-			d := (float64(j) - centre) * delta
-			w := c[j]
-			for k := range moments {
-				lv[b][k] += w
-				w *= d
-			}
-		}
-	}
-	levels = append(levels, lv)
+	levels = append(levels, blockMoments(c, delta, baseBlock))
 	for size := 2 * baseBlock; len(c)/size > 0; size *= 2 {
 		below := levels[len(levels)-1]
 		up := make([][moments]float64, len(c)/size)
