@@ -19,10 +19,11 @@ type marquardtRules struct {
 	damping   float64 // the starting μ
 }
 
+// fullRules are a fit's rules; refitRules those of a screening or
+// cross-validation refit, which starts near its minimum and so with
+// steps damped to about half the Gauss–Newton step (μ = 1).
 func fullRules() marquardtRules  { return marquardtRules{500, 1e-10, 1e-28, 5, 1e-14, 1e-3} }
-func refitRules() marquardtRules { return marquardtRules{100, 1e-7, 1e-28, 3, 1e-14, refitDamping} }
-
-var refitDamping = 1.0
+func refitRules() marquardtRules { return marquardtRules{100, 1e-7, 1e-28, 3, 1e-14, 1} }
 
 // creepSteps and creepFall define a creeping run (marquardt): S fell by
 // less than creepFall of itself over the last creepSteps accepted steps, 2e-8
