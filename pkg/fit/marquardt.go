@@ -19,9 +19,11 @@ type marquardtRules struct {
 	damping   float64 // the starting μ
 }
 
-// fullRules are a fit's rules; refitRules those of a screening or
-// cross-validation refit, which starts near its minimum and so with
-// steps damped to about half the Gauss–Newton step (μ = 1).
+// fullRules are a fit's rules; refitRules those of a screening run or a
+// cross-validation refit (about three digits of S, at most 100 steps),
+// which start with steps damped to about half the Gauss–Newton step
+// (μ = 1): a refit starts near its minimum, and a screening run only ranks
+// its start.
 func fullRules() marquardtRules  { return marquardtRules{500, 1e-10, 1e-28, 5, 1e-14, 1e-3} }
 func refitRules() marquardtRules { return marquardtRules{100, 1e-7, 1e-28, 3, 1e-14, 1} }
 
