@@ -20,7 +20,7 @@ git worktree add -q --detach "$tmp/base" "$base"
 go build -o "$tmp/falloff-now" ./cmd/falloff
 TIMEFORMAT='%U %S %R'
 median() { sort -g | awk '{v[NR] = $1} END {print (NR % 2) ? v[(NR + 1) / 2] : (v[NR / 2] + v[NR / 2 + 1]) / 2}'; }
-printf '%-28s %8s %8s %8s %8s %9s %9s\n' case "cpu now" "cpu prev" "ratio" "wall now" "wall prev" "ratio"
+printf '%-28s %10s %10s %8s %10s %11s %8s\n' case "CPU s now" "CPU s prev" "ratio" "wall s now" "wall s prev" "ratio"
 for f in testdata/bench/ch3nc-12mode.yaml testdata/bench/invented-84mode.yaml; do
 	for jobs in 1 2; do
 		: >"$tmp/now"
@@ -35,7 +35,7 @@ for f in testdata/bench/ch3nc-12mode.yaml testdata/bench/invented-84mode.yaml; d
 		cp=$(awk '{print $1 + $2}' "$tmp/previous" | median)
 		wn=$(awk '{print $3}' "$tmp/now" | median)
 		wp=$(awk '{print $3}' "$tmp/previous" | median)
-		printf '%-28s %8.3f %8.3f %7.2fx %8.3f %9.3f %8.2fx\n' "$(basename "$f" .yaml) jobs=$jobs" "$cn" "$cp" \
+		printf '%-28s %10.3f %10.3f %7.2fx %10.3f %11.3f %7.2fx\n' "$(basename "$f" .yaml) jobs=$jobs" "$cn" "$cp" \
 			"$(echo "$cp $cn" | awk '{print $1 / $2}')" "$wn" "$wp" "$(echo "$wp $wn" | awk '{print $1 / $2}')"
 		eval "wall_${jobs}_now=$wn wall_${jobs}_prev=$wp"
 	done
