@@ -57,8 +57,14 @@ func newPowerSum(c []float64, delta float64) *powerSum {
 	for block < 1024 && block*block < len(c)*moments/nearBlocks {
 		block *= 2
 	}
-	ps := &powerSum{c: c, delta: delta, block: block, mom: blockMoments(c, delta, block)}
-	ps.levels = blockLevels(c, delta)
+	ps := &powerSum{c: c, delta: delta, block: block, levels: blockLevels(c, delta)}
+	// atHalfNodes' blocks are one level of the hierarchy (none if the comb
+	// is shorter than a block).
+	for k, size := 0, baseBlock; k < len(ps.levels); k, size = k+1, 2*size {
+		if size == block {
+			ps.mom = ps.levels[k]
+		}
+	}
 	return ps
 }
 
