@@ -9,7 +9,6 @@ import (
 	"slices"
 	"sync"
 
-	"github.com/falloff-kinetics/falloff/pkg/band"
 	"github.com/falloff-kinetics/falloff/pkg/rrkm"
 	"github.com/falloff-kinetics/falloff/pkg/units"
 )
@@ -539,10 +538,10 @@ type prepared struct {
 	eff    float64
 	weight float64
 	more   []component
-	// bufs holds each component's assembled matrix and ldls its factors,
-	// reused from pressure to pressure (buildInto, band.FactorInto).
-	bufs map[*Well]*band.Sym
-	ldls map[*Well]*band.LDL
+	// systems holds each component's last system, whose storage and
+	// ω-independent parts the next pressure reuses (buildInto,
+	// band.FactorInto).
+	systems map[*Well]*system
 }
 
 // component is one J component of a well.
@@ -762,14 +761,12 @@ func (p *prepared) rates1(w *Well, kernel *Kernel, omega float64) (float64, []fl
 	if !(omega > 0) || math.IsInf(omega, 0) {
 		return 0, nil, fmt.Errorf("collision: collision frequency %v s-1 must be positive and finite", omega)
 	}
-	if p.bufs == nil {
-		p.bufs, p.ldls = map[*Well]*band.Sym{}, map[*Well]*band.LDL{}
+	if p.systems == nil {
+		p.systems = map[*Well]*system{}
 	}
-	sys := buildInto(p.bufs[w], w, kernel, omega)
-	sys.ldl = p.ldls[w]
-	p.bufs[w] = sys.a
+	sys := buildInto(p.systems[w], w, kernel, omega)
+	p.systems[w] = sys
 	s, err := sys.eigen()
-	p.ldls[w] = sys.ldl
 	if err != nil {
 		return 0, nil, err
 	}

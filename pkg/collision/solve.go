@@ -136,18 +136,20 @@ func build(w *Well, k *Kernel, omega float64) *system {
 	return buildInto(nil, w, k, omega)
 }
 
-// buildInto is build with buf, when it has A's shape, as the storage A is
-// formed in if it is needed (system.matrix; a new matrix otherwise): one
-// temperature's pressures reuse one matrix, so a worker allocates its band
-// once per temperature and not per pressure.
-func buildInto(buf *band.Sym, w *Well, k *Kernel, omega float64) *system {
+// buildInto is build reusing what prev, the system of the previous
+// pressure on the same well (nil for none), holds that does not depend on
+// ω: the storage A is formed in if it is needed (system.matrix), the
+// factors' storage, √F and the diagonal k in row order. One temperature's
+// pressures so allocate and compute these once per worker, not per
+// pressure.
+func buildInto(prev *system, w *Well, k *Kernel, omega float64) *system {
 	op := k.operator(w)
 	n := w.N()
-	a := buf
-	if a == nil || a.N != n || a.B != op.c.B {
-		a = band.NewSym(n, op.c.B)
+	if prev != nil && prev.a.N == n && prev.a.B == op.c.B && len(prev.diag) == n {
+		return &system{a: prev.a, ldl: prev.ldl, loss: w.K, sqf: prev.sqf, diag: prev.diag,
+			tau: tauPerOmega * omega, lazy: true, op: op.c, omega: omega}
 	}
-	s := &system{a: a, loss: w.K, sqf: sqrtF(w, n), tau: tauPerOmega * omega, lazy: true, op: op.c, omega: omega, diag: make([]float64, n)}
+	s := &system{a: band.NewSym(n, op.c.B), loss: w.K, sqf: sqrtF(w, n), tau: tauPerOmega * omega, lazy: true, op: op.c, omega: omega, diag: make([]float64, n)}
 	for i := range n {
 		s.diag[n-1-i] = w.K[i]
 	}
